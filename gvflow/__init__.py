@@ -1,0 +1,45 @@
+"""gvflow: gradually varied flow profiles in open channels.
+
+>>> import gvflow as gv
+>>> sec = gv.Trapezoidal(bottom_width=3.0, side_slope=1.5)
+>>> round(gv.normal_depth(sec, 12.0, 0.0008, 0.018), 3)
+1.51
+"""
+
+from .errors import ControlError, ConvergenceError, GVFlowError, GVFlowWarning, InvalidInputError, NoSolutionError
+from .friction import Chezy, DarcyWeisbach, Manning, colebrook_friction_factor, conveyance, friction_slope
+from .sections import Circular, Parabolic, Rectangular, Section, Trapezoidal, Triangular, WideRectangular
+from .uniform import (
+    CRITICAL_SLOPE_TOLERANCE,
+    ConduitCapacity,
+    alternate_depth,
+    conduit_capacity,
+    critical_depth,
+    critical_slope,
+    froude_number,
+    normal_depth,
+    sequent_depth,
+    slope_class,
+    specific_energy,
+    specific_force,
+    uniform_discharge,
+    uniform_velocity,
+)
+from .units import SI, US, Units
+
+__version__ = "0.1.0"
+
+__all__ = [
+    # units and errors
+    "Units", "SI", "US",
+    "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",
+    "GVFlowWarning",
+    # sections
+    "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular",
+    # friction
+    "Manning", "Chezy", "DarcyWeisbach", "conveyance", "friction_slope", "colebrook_friction_factor",
+    # uniform and critical flow
+    "normal_depth", "critical_depth", "critical_slope", "froude_number", "specific_energy",
+    "specific_force", "sequent_depth", "alternate_depth", "slope_class", "uniform_discharge",
+    "uniform_velocity", "conduit_capacity", "ConduitCapacity", "CRITICAL_SLOPE_TOLERANCE",
+]

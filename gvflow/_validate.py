@@ -1,0 +1,62 @@
+"""Input checks shared by the public functions (private)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .errors import InvalidInputError
+
+
+def positive_array(value, name: str, *, allow_zero: bool = False) -> np.ndarray:
+    """Return ``value`` as a float array, raising if any element is not finite and positive."""
+    try:
+        arr = np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        raise InvalidInputError(f"{name} must be a number or an array of numbers; got {value!r}") from None
+    bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
+    if np.any(bad):
+        first = arr[bad].flat[0] if arr.ndim else arr
+        what = "non-negative" if allow_zero else "positive"
+        raise InvalidInputError(f"{name} must be finite and {what}; got {first!r}")
+    return arr
+
+
+def finite_array(value, name: str) -> np.ndarray:
+    """Return ``value`` as a float array, raising on NaN or infinity."""
+    try:
+        arr = np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        raise InvalidInputError(f"{name} must be a number or an array of numbers; got {value!r}") from None
+    if not np.all(np.isfinite(arr)):
+        raise InvalidInputError(f"{name} must be finite; got {value!r}")
+    return arr
+
+
+def positive_float(value, name: str, *, allow_zero: bool = False) -> float:
+    """Return ``value`` as a Python float, raising if it is not finite and positive."""
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InvalidInputError(f"{name} must be a number; got {value!r}") from None
+    if not math.isfinite(v) or v < 0 or (v == 0 and not allow_zero):
+        what = "non-negative" if allow_zero else "positive"
+        raise InvalidInputError(f"{name} must be finite and {what}; got {value!r}")
+    return v
+
+
+def finite_float(value, name: str) -> float:
+    """Return ``value`` as a Python float, raising on NaN, infinity or a non-number."""
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InvalidInputError(f"{name} must be a number; got {value!r}") from None
+    if not math.isfinite(v):
+        raise InvalidInputError(f"{name} must be finite; got {value!r}")
+    return v
+
+
+def scalar_or_array(arr: np.ndarray):
+    """A float for a 0-d array, the array otherwise."""
+    return float(arr) if arr.ndim == 0 else arr

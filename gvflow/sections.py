@@ -1,0 +1,370 @@
+"""Prismatic cross-section shapes.
+
+Each section is a small immutable (frozen pydantic) object whose methods take
+a flow depth ``y`` [length] as a float or a NumPy array and return a result of
+the same shape: :meth:`~Section.area`, :meth:`~Section.wetted_perimeter`,
+:meth:`~Section.top_width`, :meth:`~Section.hydraulic_radius`,
+:meth:`~Section.hydraulic_depth`, :meth:`~Section.centroid_depth` (depth of
+the centroid of the flow area below the water surface) and
+:meth:`~Section.first_moment` (area times centroid depth, used in the
+specific force), with the depth derivatives the solvers need.
+
+Geometry (exact): trapezoid A = (b + z y) y, P = b + 2 y sqrt(1 + z²),
+T = b + 2 z y; circle of diameter D with wetted angle
+theta = 2 arccos(1 - 2y/D): A = D²(theta - sin theta)/8, P = D theta/2,
+T = D sin(theta/2) (Chow, *Open-Channel Hydraulics*, 1959, table 2-1).
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Annotated, ClassVar, Literal, Optional, Union
+
+import numpy as np
+from pydantic import BaseModel, ConfigDict, Field
+
+from ._validate import positive_array, scalar_or_array
+from .errors import InvalidInputError
+
+__all__ = [
+    "Section",
+    "Rectangular",
+    "Trapezoidal",
+    "Triangular",
+    "Circular",
+    "Parabolic",
+    "WideRectangular",
+    "AnySection",
+]
+
+_Dim = Annotated[float, Field(gt=0, allow_inf_nan=False)]
+_Slope = Annotated[float, Field(ge=0, allow_inf_nan=False)]
+
+# Codes read by the compiled marching kernels (gvflow.profiles._kernel).
+KIND_TRAPEZOID = 0
+KIND_WIDE = 1
+KIND_CIRCLE = 2
+KIND_PARABOLA = 3
+
+
+class Section(BaseModel):
+    """Base class of prismatic cross-sections. Subclasses supply ``_geometry``."""
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    #: True for a closed conduit (depth limited to its height).
+    closed: ClassVar[bool] = False
+
+    # -- subclass hooks -------------------------------------------------
+    def _geometry(self, y: np.ndarray):  # pragma: no cover - abstract
+        """Return (A, P, T, A*ybar, dT/dy, dP/dy) for valid depths ``y``."""
+        raise NotImplementedError
+
+    def kernel_spec(self) -> tuple[int, float, float, float]:  # pragma: no cover - abstract
+        """(kind code, p0, p1, p2) describing this shape to the compiled kernels."""
+        raise NotImplementedError
+
+    @property
+    def max_depth(self) -> float:
+        """Largest depth the section can hold [length] (``inf`` for open channels)."""
+        return math.inf
+
+    # -- public API -----------------------------------------------------
+    def _depth(self, y) -> np.ndarray:
+        arr = positive_array(y, "depth")
+        if self.closed and np.any(arr > self.max_depth * (1 + 1e-12)):
+            raise InvalidInputError(
+                f"depth must not exceed the conduit height {self.max_depth:g}; got "
+                f"{float(np.max(arr)):g} (the conduit would flow full: a pressure-flow case)"
+            )
+        return np.minimum(arr, self.max_depth) if self.closed else arr
+
+    def area(self, y):
+        """Flow area A [length²] at depth ``y`` [length]."""
+        return scalar_or_array(self._geometry(self._depth(y))[0])
+
+    def wetted_perimeter(self, y):
+        """Wetted perimeter P [length] at depth ``y`` [length]."""
+        return scalar_or_array(self._geometry(self._depth(y))[1])
+
+    def top_width(self, y):
+        """Water-surface width T [length] at depth ``y`` [length]."""
+        return scalar_or_array(self._geometry(self._depth(y))[2])
+
+    def hydraulic_radius(self, y):
+        """Hydraulic radius R = A/P [length] at depth ``y`` [length]."""
+        a, p = self._geometry(self._depth(y))[:2]
+        return scalar_or_array(a / p)
+
+    def hydraulic_depth(self, y):
+        """Hydraulic depth D = A/T [length] (infinite at the crown of a closed conduit)."""
+        a, _, t = self._geometry(self._depth(y))[:3]
+        with np.errstate(divide="ignore"):
+            return scalar_or_array(np.where(t > 0, a / np.where(t > 0, t, 1.0), np.inf))
+
+    def first_moment(self, y):
+        """First moment of the flow area about the water surface, A·ȳ [length³]."""
+        return scalar_or_array(self._geometry(self._depth(y))[3])
+
+    def centroid_depth(self, y):
+        """Depth ȳ of the centroid of the flow area below the water surface [length]."""
+        g = self._geometry(self._depth(y))
+        return scalar_or_array(g[3] / g[0])
+
+    def d_area(self, y):
+        """dA/dy [length], equal to the top width."""
+        return self.top_width(y)
+
+    def d_top_width(self, y):
+        """dT/dy [-] (infinite at the crown and invert of a circle)."""
+        return scalar_or_array(self._geometry(self._depth(y))[4])
+
+    def d_wetted_perimeter(self, y):
+        """dP/dy [-]."""
+        return scalar_or_array(self._geometry(self._depth(y))[5])
+
+    def properties(self, y) -> dict:
+        """All geometric properties at depth ``y`` in one call (dict of arrays or floats)."""
+        a, p, t, m, dt, dp = self._geometry(self._depth(y))
+        out = dict(area=a, wetted_perimeter=p, top_width=t, hydraulic_radius=a / p,
+                   first_moment=m, centroid_depth=m / a, d_top_width=dt, d_wetted_perimeter=dp)
+        return {k: scalar_or_array(np.asarray(v)) for k, v in out.items()}
+
+    def __repr__(self) -> str:
+        fields = ", ".join(f"{k}={v:g}" if isinstance(v, float) else f"{k}={v!r}"
+                           for k, v in self.__dict__.items() if k != "shape" and v is not None)
+        return f"{type(self).__name__}({fields})"
+
+    __str__ = __repr__
+
+
+class _TrapezoidLike(Section):
+    """Shared formulas of sections with straight sides (possibly unequal slopes)."""
+
+    def _bz(self) -> tuple[float, float, float]:
+        raise NotImplementedError  # pragma: no cover
+
+    def _geometry(self, y):
+        b, zl, zr = self._bz()
+        zs = zl + zr
+        sides = math.sqrt(1 + zl * zl) + math.sqrt(1 + zr * zr)
+        a = (b + 0.5 * zs * y) * y
+        p = b + sides * y
+        t = b + zs * y
+        m = 0.5 * b * y * y + zs * y ** 3 / 6.0
+        return a, p, t, m, np.full_like(y, zs), np.full_like(y, sides)
+
+    def kernel_spec(self):
+        b, zl, zr = self._bz()
+        return (KIND_TRAPEZOID, b, zl, zr)
+
+
+class Rectangular(_TrapezoidLike):
+    """Rectangular channel with vertical walls.
+
+    Parameters
+    ----------
+    width : float
+        Bottom width b [length].
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.Rectangular(width=3.0).area(1.5)
+    4.5
+    """
+
+    shape: Literal["rectangular"] = "rectangular"
+    width: _Dim
+
+    def _bz(self):
+        return self.width, 0.0, 0.0
+
+
+class Trapezoidal(_TrapezoidLike):
+    """Trapezoidal channel.
+
+    Parameters
+    ----------
+    bottom_width : float
+        Bottom width b [length].
+    side_slope : float
+        Bank slope z, horizontal per 1 vertical [-] (left bank, and both banks
+        unless ``side_slope_right`` is given).
+    side_slope_right : float, optional
+        Right-bank slope when the banks differ [-].
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.Trapezoidal(bottom_width=6.0, side_slope=2.0).area(2.0)
+    20.0
+    """
+
+    shape: Literal["trapezoidal"] = "trapezoidal"
+    bottom_width: Annotated[float, Field(ge=0, allow_inf_nan=False)]
+    side_slope: _Slope
+    side_slope_right: Optional[_Slope] = None
+
+    def model_post_init(self, __context) -> None:
+        zr = self.side_slope if self.side_slope_right is None else self.side_slope_right
+        if self.bottom_width == 0 and self.side_slope + zr == 0:
+            raise InvalidInputError("a trapezoid needs a positive bottom_width or side_slope")
+
+    def _bz(self):
+        zr = self.side_slope if self.side_slope_right is None else self.side_slope_right
+        return self.bottom_width, self.side_slope, zr
+
+
+class Triangular(_TrapezoidLike):
+    """Symmetric (or, with ``side_slope_right``, unsymmetric) V-shaped channel.
+
+    Parameters
+    ----------
+    side_slope : float
+        Side slope z, horizontal per 1 vertical [-].
+    side_slope_right : float, optional
+        Right-side slope when the sides differ [-].
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.Triangular(side_slope=2.0).top_width(1.0)
+    4.0
+    """
+
+    shape: Literal["triangular"] = "triangular"
+    side_slope: Annotated[float, Field(gt=0, allow_inf_nan=False)]
+    side_slope_right: Optional[Annotated[float, Field(gt=0, allow_inf_nan=False)]] = None
+
+    def _bz(self):
+        zr = self.side_slope if self.side_slope_right is None else self.side_slope_right
+        return 0.0, self.side_slope, zr
+
+
+class WideRectangular(_TrapezoidLike):
+    """Very wide rectangular channel: the wetted perimeter is the bed width alone.
+
+    The hydraulic radius equals the depth (R = y). This is the idealisation
+    behind the closed-form profile solutions of Bresse and Bakhmeteff
+    (Chow 1959, ch. 10).
+
+    Parameters
+    ----------
+    width : float
+        Bed width b [length]; results per unit width follow from q = Q/b.
+    """
+
+    shape: Literal["wide"] = "wide"
+    width: _Dim
+
+    def _geometry(self, y):
+        b = self.width
+        return b * y, np.full_like(y, b), np.full_like(y, b), 0.5 * b * y * y, \
+            np.zeros_like(y), np.zeros_like(y)
+
+    def kernel_spec(self):
+        return (KIND_WIDE, self.width, 0.0, 0.0)
+
+
+class Circular(Section):
+    """Circular conduit flowing partly full (depth at most the diameter).
+
+    Parameters
+    ----------
+    diameter : float
+        Inside diameter D [length].
+
+    Notes
+    -----
+    With the wetted angle theta = 2 arccos(1 - 2y/D): A = D²(theta - sin theta)/8,
+    P = D theta/2, T = D sin(theta/2); the first moment of area about the water
+    surface is A (y - D/2) + D³ sin³(theta/2)/12 (centroid of a circular
+    segment). The top width vanishes at the crown, where the Froude number
+    loses its meaning; solvers treat a full conduit as a limit, not a state.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.Circular(diameter=1.0).area(0.5), 6)  # half full: pi/8
+    0.392699
+    """
+
+    shape: Literal["circular"] = "circular"
+    diameter: _Dim
+    closed: ClassVar[bool] = True
+
+    @property
+    def max_depth(self) -> float:
+        return self.diameter
+
+    def _geometry(self, y):
+        d = self.diameter
+        theta = 2.0 * np.arccos(np.clip(1.0 - 2.0 * y / d, -1.0, 1.0))
+        half = 0.5 * theta
+        a = d * d * (theta - np.sin(theta)) / 8.0
+        p = d * half
+        t = d * np.sin(half)
+        m = a * (y - 0.5 * d) + d ** 3 * np.sin(half) ** 3 / 12.0
+        root = np.sqrt(np.maximum(y * (d - y), 0.0))
+        with np.errstate(divide="ignore", invalid="ignore"):
+            dt = np.where(root > 0, (d - 2.0 * y) / np.where(root > 0, root, 1.0), -np.inf)
+            dp = np.where(root > 0, d / np.where(root > 0, root, 1.0), np.inf)
+        return a, p, t, m, dt, dp
+
+    def kernel_spec(self):
+        return (KIND_CIRCLE, self.diameter, 0.0, 0.0)
+
+
+class Parabolic(Section):
+    """Parabolic channel, defined by its top width at a reference depth.
+
+    Parameters
+    ----------
+    top_width : float
+        Top width T_ref [length] at ``reference_depth``.
+    reference_depth : float
+        Depth at which the top width is ``top_width`` [length].
+
+    Notes
+    -----
+    T = c sqrt(y) with c = T_ref / sqrt(y_ref); A = (2/3) T y; centroid depth
+    0.4 y; P = (T/2) [sqrt(1 + u²) + asinh(u)/u] with u = 4y/T (arc length of
+    the parabola; Chow 1959, table 2-1).
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.Parabolic(top_width=4.0, reference_depth=1.0).area(1.0)
+    2.6666666666666665
+    """
+
+    shape: Literal["parabolic"] = "parabolic"
+    top_width_at_reference: _Dim = Field(alias="top_width")
+    reference_depth: _Dim
+
+    model_config = ConfigDict(frozen=True, extra="forbid", populate_by_name=True)
+
+    def _c(self) -> float:
+        return self.top_width_at_reference / math.sqrt(self.reference_depth)
+
+    def _geometry(self, y):
+        c = self._c()
+        s = np.sqrt(y)
+        t = c * s
+        a = 2.0 / 3.0 * t * y
+        u = 4.0 * y / t
+        p = 0.5 * t * (np.sqrt(1 + u * u) + np.arcsinh(u) / u)
+        m = 4.0 / 15.0 * c * y * y * s
+        dt = 0.5 * c / s
+        dp = 0.5 * c * np.sqrt(1 + 16.0 * y / (c * c)) / s
+        return a, p, t, m, dt, dp
+
+    def kernel_spec(self):
+        return (KIND_PARABOLA, self._c(), 0.0, 0.0)
+
+
+AnySection = Annotated[
+    Union[Rectangular, Trapezoidal, Triangular, Circular, Parabolic, WideRectangular],
+    Field(discriminator="shape"),
+]

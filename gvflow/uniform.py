@@ -1,0 +1,472 @@
+"""Uniform flow and critical flow: the reference depths of every profile.
+
+All functions take floats or NumPy arrays (broadcast together) and return a
+float for scalar input. They raise a :class:`~gvflow.errors.GVFlowError`
+(a ``ValueError``) with a plain message when no answer exists.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Literal
+
+import numpy as np
+
+from ._roots import bracketed_root, expand_upper
+from ._validate import finite_array, positive_array, scalar_or_array
+from .errors import InvalidInputError, NoSolutionError
+from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, as_roughness
+from .units import UnitsLike, resolve_units
+
+__all__ = [
+    "normal_depth",
+    "critical_depth",
+    "critical_slope",
+    "froude_number",
+    "specific_energy",
+    "specific_force",
+    "sequent_depth",
+    "alternate_depth",
+    "slope_class",
+    "uniform_discharge",
+    "uniform_velocity",
+    "conduit_capacity",
+    "ConduitCapacity",
+    "CRITICAL_SLOPE_TOLERANCE",
+]
+
+#: Relative difference |yn - yc| / yc below which a slope is classed "critical".
+CRITICAL_SLOPE_TOLERANCE = 1e-3
+
+_TINY = 1e-12  # smallest depth tried, as a fraction of the reference depth
+
+
+def _peak_conveyance_depth(section, rough, units, q):
+    """Depth of largest conveyance in a closed conduit (golden-section search)."""
+    d = section.max_depth
+    lo = np.full(np.shape(q), 0.5 * d)
+    hi = np.full(np.shape(q), d)
+    invphi = (math.sqrt(5) - 1) / 2
+
+    def lnk(y):
+        return np.log(_kfactor(section, y, rough, units, q))
+
+    c = hi - invphi * (hi - lo)
+    e = lo + invphi * (hi - lo)
+    fc, fe = lnk(c), lnk(e)
+    for _ in range(80):
+        left = fc > fe
+        hi = np.where(left, e, hi)
+        lo = np.where(left, lo, c)
+        c_new = hi - invphi * (hi - lo)
+        e_new = lo + invphi * (hi - lo)
+        c, e = np.where(left, c_new, e), np.where(left, c, e_new)
+        fc, fe = np.where(left, lnk(c_new), fe), np.where(left, fc, lnk(e_new))
+    y = 0.5 * (lo + hi)
+    return y, _kfactor(section, y, rough, units, q)
+
+
+def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
+    """Normal (uniform-flow) depth yn [length]: the depth at which Sf equals the bed slope.
+
+    Solves Q = K(y) sqrt(S0) for y, with K the conveyance of the roughness law
+    (Manning: K = (k/n) A R^(2/3); Chow 1959, *Open-Channel Hydraulics*, §6-2).
+
+    Parameters
+    ----------
+    section : Section
+        Cross-section.
+    discharge : float or ndarray
+        Discharge Q [length³/s], positive.
+    slope : float or ndarray
+        Bed slope S0 [-], positive (falling downstream).
+    roughness : float, Manning, Chezy or DarcyWeisbach
+        Resistance; a float is Manning's n.
+    units : "SI", "US" or Units
+        Unit system.
+
+    Returns
+    -------
+    float or ndarray
+        Normal depth [length].
+
+    Raises
+    ------
+    NoSolutionError
+        On a horizontal or adverse bed (no uniform flow exists), or in a
+        circular conduit when Q exceeds the peak uniform-flow capacity (about
+        1.076 times the full-pipe discharge, at y/D = 0.938). Between the
+        full-pipe discharge and that peak two depths carry Q: the lower is
+        returned.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.normal_depth(gv.Rectangular(width=3.0), 5.0, 0.001, 0.015), 4)
+    1.0787
+    """
+    u = resolve_units(units)
+    rough = as_roughness(roughness)
+    q = positive_array(discharge, "discharge")
+    s = finite_array(slope, "slope")
+    if np.any(s <= 0):
+        kind = "horizontal" if np.any(s == 0) else "adverse"
+        raise NoSolutionError(
+            f"normal depth does not exist on a {kind} bed (slope={float(np.min(s)):g}); uniform flow "
+            "needs a bed falling downstream (slope > 0)"
+        )
+    q, s = np.broadcast_arrays(q, s)
+    target = np.log(q / np.sqrt(s))
+
+    def fun(y):
+        return np.log(_kfactor(section, y, rough, u, q)) - target
+
+    if section.closed:
+        y_peak, k_peak = _peak_conveyance_depth(section, rough, u, q)
+        over = q > k_peak * np.sqrt(s) * (1 + 1e-12)
+        if np.any(over):
+            i = np.flatnonzero(over.ravel())[0]
+            cap = float((k_peak * np.sqrt(s)).ravel()[i])
+            raise NoSolutionError(
+                f"discharge {float(q.ravel()[i]):g} exceeds the uniform-flow capacity {cap:.6g} of "
+                f"{section!r} at slope {float(s.ravel()[i]):g}: the conduit would surcharge; use a larger "
+                "conduit or a steeper slope"
+            )
+        hi = y_peak
+    else:
+        hi = expand_upper(fun, None, np.ones(q.shape), what="normal depth")
+    lo = np.full(q.shape, _TINY) * np.maximum(hi, 1.0)
+    y = bracketed_root(fun, lo, hi, what="normal depth")
+    return scalar_or_array(y)
+
+
+def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1.0):
+    """Critical depth yc [length]: minimum specific energy, Froude number 1.
+
+    Solves alpha Q² T / (g A³) = 1 (Chow 1959, eq. 4-5). In a circular
+    conduit a critical depth exists for any discharge (A³/T grows without
+    bound toward the crown).
+
+    Parameters
+    ----------
+    section : Section
+    discharge : float or ndarray
+        Discharge Q [length³/s].
+    units : "SI", "US" or Units
+    alpha : float
+        Energy (Coriolis) coefficient [-], default 1.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.critical_depth(gv.Rectangular(width=2.0), 4.0), 6)  # (q²/g)^(1/3)
+    0.741617
+    """
+    u = resolve_units(units)
+    q = positive_array(discharge, "discharge")
+    a_ = float(positive_array(alpha, "alpha"))
+    target = np.log(a_ * q * q / u.g)
+
+    def fun(y):
+        a, _, t = section._geometry(y)[:3]
+        return 3.0 * np.log(a) - np.log(t) - target
+
+    if section.closed:
+        hi = np.full(q.shape, section.max_depth * (1 - 1e-13))
+    else:
+        hi = expand_upper(fun, None, np.ones(q.shape), what="critical depth")
+    lo = np.full(q.shape, _TINY) * np.maximum(hi, 1.0)
+    return scalar_or_array(bracketed_root(fun, lo, hi, what="critical depth"))
+
+
+def critical_slope(section, discharge, roughness, units: UnitsLike = "SI", alpha: float = 1.0):
+    """Critical slope Sc [-]: the bed slope whose normal depth equals the critical depth.
+
+    Sc = (Q / K(yc))² (Chow 1959, §6-5).
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.critical_slope(gv.Rectangular(width=2.0), 4.0, 0.015), 6)
+    0.005108
+    """
+    u = resolve_units(units)
+    rough = as_roughness(roughness)
+    q = positive_array(discharge, "discharge")
+    yc = np.asarray(critical_depth(section, q, u, alpha))
+    return scalar_or_array((q / _kfactor(section, yc, rough, u, q)) ** 2)
+
+
+def _qy(section, discharge, depth):
+    q = positive_array(discharge, "discharge")
+    y = section._depth(depth)
+    q, y = np.broadcast_arrays(q, y)
+    return q, y
+
+
+def froude_number(section, discharge, depth, units: UnitsLike = "SI"):
+    """Froude number Fr = V / sqrt(g A/T) [-], based on the hydraulic depth A/T.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.froude_number(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0)), 12)
+    1.0
+    """
+    u = resolve_units(units)
+    q, y = _qy(section, discharge, depth)
+    a, _, t = section._geometry(y)[:3]
+    return scalar_or_array(q / a * np.sqrt(t / (u.g * a)))
+
+
+def specific_energy(section, discharge, depth, units: UnitsLike = "SI", alpha: float = 1.0):
+    """Specific energy E = y + alpha Q²/(2 g A²) [length] (Chow 1959, eq. 3-5).
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.specific_energy(gv.Rectangular(width=1.0), 1.0, 0.5, units=gv.Units(g=10.0, manning_k=1.0)), 6)
+    0.7
+    """
+    u = resolve_units(units)
+    q, y = _qy(section, discharge, depth)
+    a = section._geometry(y)[0]
+    return scalar_or_array(y + alpha * q * q / (2.0 * u.g * a * a))
+
+
+def specific_force(section, discharge, depth, units: UnitsLike = "SI"):
+    """Specific force (momentum function) M = Q²/(g A) + A ȳ [length³] (Chow 1959, eq. 3-20).
+
+    ȳ is the depth of the centroid of the flow area below the surface. Two
+    depths with equal M are the sequent depths of a hydraulic jump.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.specific_force(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0))
+    1.5
+    """
+    u = resolve_units(units)
+    q, y = _qy(section, discharge, depth)
+    g = section._geometry(y)
+    return scalar_or_array(q * q / (u.g * g[0]) + g[3])
+
+
+def _other_branch(section, q, y, units, value_fn, name):
+    """Depth on the other side of critical depth with the same value of ``value_fn``."""
+    yc = np.asarray(critical_depth(section, q, units))
+    target = value_fn(y)
+    sub = y > yc
+    out = np.empty_like(y)
+
+    def fun(z):
+        return value_fn(z) - target_b
+
+    if np.any(~sub):  # supercritical given: find the subcritical depth above yc
+        idx = ~sub
+        target_b = target[idx]
+        qb, ycb = q[idx], yc[idx]
+
+        def fun_up(z):
+            return value_fn(z, qb) - target_b
+
+        if section.closed:
+            top = np.full(ycb.shape, section.max_depth)
+            if np.any(fun_up(top) < 0):
+                raise NoSolutionError(
+                    f"the {name} depth lies above the crown of {section!r}: the conduit would flow full; "
+                    "a pressure-flow analysis is needed"
+                )
+            hi = top
+        else:
+            hi = expand_upper(fun_up, None, 2.0 * ycb, what=f"{name} depth")
+        out[idx] = bracketed_root(fun_up, ycb, hi, what=f"{name} depth")
+    if np.any(sub):  # subcritical given: find the supercritical depth below yc
+        idx = sub
+        target_b = target[idx]
+        qb, ycb = q[idx], yc[idx]
+
+        def fun_dn(z):
+            return value_fn(z, qb) - target_b
+
+        out[idx] = bracketed_root(fun_dn, ycb * _TINY * 1e3, ycb, what=f"{name} depth")
+    del fun
+    return out
+
+
+def sequent_depth(section, discharge, depth, units: UnitsLike = "SI"):
+    """Sequent (conjugate) depth of a hydraulic jump by the specific-force balance [length].
+
+    Given the supercritical depth, returns the subcritical one, and vice versa.
+    In a rectangle this reproduces Belanger's y2/y1 = (sqrt(1 + 8 F1²) - 1)/2
+    (Chow 1959, eq. 15-3).
+
+    Raises
+    ------
+    NoSolutionError
+        When the subcritical sequent depth would be above the crown of a closed conduit.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> sec = gv.Rectangular(width=1.0)
+    >>> g1 = gv.Units(g=1.0, manning_k=1.0)
+    >>> round(gv.sequent_depth(sec, 10 ** 0.5, 1.0, units=g1), 10)  # F1² = 10 gives y2/y1 = 4
+    4.0
+    """
+    u = resolve_units(units)
+    q, y = _qy(section, discharge, depth)
+
+    def m(z, qq=q):
+        g = section._geometry(z)
+        return qq * qq / (u.g * g[0]) + g[3]
+
+    q1, y1 = np.atleast_1d(q).astype(float), np.atleast_1d(y).astype(float)
+    out = _other_branch(section, q1, y1, u, lambda z, qq=q1: m(z, qq), "sequent")
+    return scalar_or_array(out.reshape(np.shape(y)))
+
+
+def alternate_depth(section, discharge, depth, units: UnitsLike = "SI", alpha: float = 1.0):
+    """Alternate depth: the depth on the other side of critical with the same specific energy [length].
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> sec = gv.Rectangular(width=1.0)
+    >>> y2 = gv.alternate_depth(sec, 1.0, 0.3)
+    >>> bool(abs(gv.specific_energy(sec, 1.0, y2) - gv.specific_energy(sec, 1.0, 0.3)) < 1e-10)
+    True
+    """
+    u = resolve_units(units)
+    q, y = _qy(section, discharge, depth)
+    q1, y1 = np.atleast_1d(q).astype(float), np.atleast_1d(y).astype(float)
+
+    def e(z, qq=q1):
+        a = section._geometry(z)[0]
+        return z + alpha * qq * qq / (2.0 * u.g * a * a)
+
+    out = _other_branch(section, q1, y1, u, e, "alternate")
+    return scalar_or_array(out.reshape(np.shape(y)))
+
+
+SlopeClass = Literal["mild", "steep", "critical", "horizontal", "adverse"]
+
+
+def slope_class(section, discharge, slope, roughness, units: UnitsLike = "SI",
+                tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> SlopeClass:
+    """Classify a bed slope for a discharge: mild, steep, critical, horizontal or adverse.
+
+    Mild: yn > yc; steep: yn < yc; critical: |yn - yc| <= tolerance * yc
+    (Chow 1959, §9-2). For a closed conduit whose discharge exceeds its
+    uniform-flow capacity no normal depth exists and the class is undefined:
+    :class:`NoSolutionError` is raised.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.slope_class(gv.Rectangular(width=3.0), 5.0, 0.001, 0.015)
+    'mild'
+    """
+    s = float(finite_array(slope, "slope"))
+    if s == 0:
+        return "horizontal"
+    if s < 0:
+        return "adverse"
+    yn = normal_depth(section, discharge, s, roughness, units)
+    yc = critical_depth(section, discharge, units)
+    if abs(yn - yc) <= tolerance * yc:
+        return "critical"
+    return "mild" if yn > yc else "steep"
+
+
+def uniform_discharge(section, depth, slope, roughness, units: UnitsLike = "SI"):
+    """Discharge carried in uniform flow at a depth: Q = K(y) sqrt(S0) [length³/s].
+
+    Darcy-Weisbach roughness is solved for the Q whose friction factor matches.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> sec = gv.Rectangular(width=3.0)
+    >>> q = gv.uniform_discharge(sec, 1.2, 0.001, 0.015)
+    >>> round(gv.normal_depth(sec, q, 0.001, 0.015), 10)
+    1.2
+    """
+    u = resolve_units(units)
+    rough = as_roughness(roughness)
+    y = section._depth(depth)
+    s = positive_array(slope, "slope")
+    y, s = np.broadcast_arrays(y, s)
+    if not isinstance(rough, DarcyWeisbach):
+        return scalar_or_array(_kfactor(section, y, rough, u, None) * np.sqrt(s))
+    q = np.ones(y.shape)
+    for _ in range(100):  # fixed point: f depends weakly on Q through Re
+        q_new = _kfactor(section, y, rough, u, q) * np.sqrt(s)
+        if np.all(np.abs(q_new - q) <= 1e-14 * q_new):
+            break
+        q = q_new
+    return scalar_or_array(q_new)
+
+
+def uniform_velocity(section, depth, slope, roughness, units: UnitsLike = "SI"):
+    """Mean velocity in uniform flow at a depth: V = K(y) sqrt(S0) / A [length/s].
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.uniform_velocity(gv.Rectangular(width=2.0), 1.0, 0.001, 0.013), 6)
+    1.532392
+    """
+    q = uniform_discharge(section, depth, slope, roughness, units)
+    return scalar_or_array(np.asarray(q) / np.asarray(section.area(depth)))
+
+
+class ConduitCapacity(tuple):
+    """Uniform-flow capacity of a closed conduit (a named tuple-like result)."""
+
+    __slots__ = ()
+    _fields = ("full_discharge", "peak_discharge", "peak_depth", "full_velocity")
+
+    def __new__(cls, full_discharge, peak_discharge, peak_depth, full_velocity):
+        return tuple.__new__(cls, (full_discharge, peak_discharge, peak_depth, full_velocity))
+
+    full_discharge = property(lambda self: self[0], doc="Discharge flowing just full [length³/s].")
+    peak_discharge = property(lambda self: self[1], doc="Largest uniform-flow discharge [length³/s].")
+    peak_depth = property(lambda self: self[2], doc="Depth carrying the peak discharge [length].")
+    full_velocity = property(lambda self: self[3], doc="Mean velocity flowing just full [length/s].")
+
+    def __repr__(self):
+        return ("ConduitCapacity(full_discharge={:.6g}, peak_discharge={:.6g}, peak_depth={:.6g}, "
+                "full_velocity={:.6g})".format(*self))
+
+
+def conduit_capacity(section, slope, roughness, units: UnitsLike = "SI") -> ConduitCapacity:
+    """Uniform-flow capacity of a closed conduit flowing partly full.
+
+    With constant Manning n the discharge peaks at y/D = 0.938 at 1.076 times
+    the full-pipe discharge (Chow 1959, ch. 6; exact optimisation).
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> cap = gv.conduit_capacity(gv.Circular(diameter=1.0), 0.001, 0.013)
+    >>> round(cap.peak_discharge / cap.full_discharge, 4), round(cap.peak_depth, 4)
+    (1.0757, 0.9382)
+    """
+    if not section.closed:
+        raise InvalidInputError(f"conduit_capacity needs a closed conduit (e.g. gv.Circular); got {section!r}")
+    u = resolve_units(units)
+    rough = as_roughness(roughness)
+    s = positive_array(slope, "slope")
+    d = section.max_depth
+    q_full = float(uniform_discharge(section, d, s, rough, u))
+    qref = np.array([q_full])
+    y_peak, k_peak = _peak_conveyance_depth(section, rough, u, qref)
+    if isinstance(rough, DarcyWeisbach):
+        q_peak = float(uniform_discharge(section, float(y_peak[0]), s, rough, u))
+    else:
+        q_peak = float(k_peak[0] * np.sqrt(s))
+    return ConduitCapacity(q_full, q_peak, float(y_peak[0]), q_full / float(section.area(d)))
+
+
+del Chezy, Manning
