@@ -39,7 +39,7 @@ class Units(BaseModel):
     >>> import gvflow as gv
     >>> gv.Units(g=9.81, manning_k=1.0).g
     9.81
-    >>> gv.resolve_units("US").manning_k
+    >>> gv.US.manning_k
     1.486
     """
 
