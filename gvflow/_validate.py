@@ -17,7 +17,7 @@ def positive_array(value, name: str, *, allow_zero: bool = False) -> np.ndarray:
         raise InvalidInputError(f"{name} must be a number or an array of numbers; got {value!r}") from None
     bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
     if np.any(bad):
-        first = arr[bad].flat[0] if arr.ndim else arr
+        first = float(arr[bad].flat[0]) if arr.ndim else float(arr)
         what = "non-negative" if allow_zero else "positive"
         raise InvalidInputError(f"{name} must be finite and {what}; got {first!r}")
     return arr
@@ -60,3 +60,23 @@ def finite_float(value, name: str) -> float:
 def scalar_or_array(arr: np.ndarray):
     """A float for a 0-d array, the array otherwise."""
     return float(arr) if arr.ndim == 0 else arr
+
+
+def invalid_input_from(exc, owner: str) -> InvalidInputError:
+    """Turn a pydantic ``ValidationError`` raised while building ``owner`` into an InvalidInputError.
+
+    The message names each offending field and the value given, e.g.
+    ``"Rectangular: width must be greater than 0; got -1"``.
+    """
+    parts = []
+    for err in exc.errors():
+        loc = ".".join(str(p) for p in err.get("loc", ()))
+        msg = str(err.get("msg", "is invalid"))
+        msg = msg.removeprefix("Value error, ")
+        if msg.startswith("Input should be"):
+            msg = "must be" + msg[len("Input should be"):]
+        text = f"{loc} {msg}" if loc else msg
+        if loc and "input" in err:
+            text += f"; got {err['input']!r}"
+        parts.append(text)
+    return InvalidInputError(f"{owner}: " + "; ".join(parts))

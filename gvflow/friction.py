@@ -19,9 +19,9 @@ import math
 from typing import Annotated, ClassVar, Literal, Union
 
 import numpy as np
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
-from ._validate import positive_array, scalar_or_array
+from ._validate import invalid_input_from, positive_array, scalar_or_array
 from .errors import ConvergenceError, InvalidInputError
 from .units import UnitsLike, resolve_units
 
@@ -48,7 +48,10 @@ class _Roughness(BaseModel):
     def __init__(self, value: float | None = None, /, **data):
         if value is not None:
             data[type(self)._value_field] = value
-        super().__init__(**data)
+        try:
+            super().__init__(**data)
+        except ValidationError as exc:
+            raise invalid_input_from(exc, type(self).__name__) from None
 
     def kernel_spec(self) -> tuple[int, float]:  # pragma: no cover - abstract
         """(law code, coefficient) for the compiled kernels."""

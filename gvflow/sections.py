@@ -21,9 +21,9 @@ import math
 from typing import Annotated, ClassVar, Literal, Optional, Union
 
 import numpy as np
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
-from ._validate import positive_array, scalar_or_array
+from ._validate import invalid_input_from, positive_array, scalar_or_array
 from .errors import InvalidInputError
 
 __all__ = [
@@ -54,6 +54,12 @@ class Section(BaseModel):
 
     #: True for a closed conduit (depth limited to its height).
     closed: ClassVar[bool] = False
+
+    def __init__(self, /, **data):
+        try:
+            super().__init__(**data)
+        except ValidationError as exc:
+            raise invalid_input_from(exc, type(self).__name__) from None
 
     # -- subclass hooks -------------------------------------------------
     def _geometry(self, y: np.ndarray):  # pragma: no cover - abstract

@@ -41,6 +41,24 @@ CRITICAL_SLOPE_TOLERANCE = 1e-3
 _TINY = 1e-12  # smallest depth tried, as a fraction of the reference depth
 
 
+def _shrink_lower(fun, lo, *, what: str, increasing: bool = True):
+    """Lower ``lo`` (by factors of 1e4) until ``fun`` changes sign between it and the root.
+
+    For very small discharges the root can lie below the first trial depth;
+    without this the bracket would hold no sign change and the iteration
+    would return the end of the bracket instead of the root.
+    """
+    lo = np.array(lo, dtype=float, copy=True)
+    for _ in range(25):
+        f = np.asarray(fun(lo))
+        need = f > 0 if increasing else f < 0
+        if not np.any(need):
+            return lo
+        lo = np.where(need, lo * 1e-4, lo)
+    raise NoSolutionError(f"{what}: the depth is too small to resolve (below {float(np.min(lo)):.3g}); "
+                          "check the units and magnitude of the discharge")
+
+
 def _peak_conveyance_depth(section, rough, units, q):
     """Depth of largest conveyance in a closed conduit (golden-section search)."""
     d = section.max_depth
@@ -110,9 +128,9 @@ def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
     q = positive_array(discharge, "discharge")
     s = finite_array(slope, "slope")
     if np.any(s <= 0):
-        kind = "horizontal" if np.any(s == 0) else "adverse"
+        kind = "a horizontal" if np.any(s == 0) else "an adverse"
         raise NoSolutionError(
-            f"normal depth does not exist on a {kind} bed (slope={float(np.min(s)):g}); uniform flow "
+            f"normal depth does not exist on {kind} bed (slope={float(np.min(s)):g}); uniform flow "
             "needs a bed falling downstream (slope > 0)"
         )
     q, s = np.broadcast_arrays(q, s)
@@ -135,7 +153,7 @@ def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
         hi = y_peak
     else:
         hi = expand_upper(fun, None, np.ones(q.shape), what="normal depth")
-    lo = np.full(q.shape, _TINY) * np.maximum(hi, 1.0)
+    lo = _shrink_lower(fun, np.full(q.shape, _TINY) * np.maximum(hi, 1.0), what="normal depth")
     y = bracketed_root(fun, lo, hi, what="normal depth")
     return scalar_or_array(y)
 
@@ -173,9 +191,15 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
 
     if section.closed:
         hi = np.full(q.shape, section.max_depth * (1 - 1e-13))
+        short = np.asarray(fun(hi)) < 0
+        if np.any(short):
+            raise NoSolutionError(
+                f"discharge {float(q[short].flat[0]):g} is too large for free-surface flow in {section!r}: "
+                "its critical depth would be at the crown (the conduit flows full); use a larger conduit"
+            )
     else:
         hi = expand_upper(fun, None, np.ones(q.shape), what="critical depth")
-    lo = np.full(q.shape, _TINY) * np.maximum(hi, 1.0)
+    lo = _shrink_lower(fun, np.full(q.shape, _TINY) * np.maximum(hi, 1.0), what="critical depth")
     return scalar_or_array(bracketed_root(fun, lo, hi, what="critical depth"))
 
 
@@ -229,6 +253,7 @@ def specific_energy(section, discharge, depth, units: UnitsLike = "SI", alpha: f
     0.7
     """
     u = resolve_units(units)
+    alpha = float(positive_array(alpha, "alpha"))
     q, y = _qy(section, discharge, depth)
     a = section._geometry(y)[0]
     return scalar_or_array(y + alpha * q * q / (2.0 * u.g * a * a))
@@ -252,9 +277,9 @@ def specific_force(section, discharge, depth, units: UnitsLike = "SI"):
     return scalar_or_array(q * q / (u.g * g[0]) + g[3])
 
 
-def _other_branch(section, q, y, units, value_fn, name):
+def _other_branch(section, q, y, units, value_fn, name, alpha=1.0):
     """Depth on the other side of critical depth with the same value of ``value_fn``."""
-    yc = np.asarray(critical_depth(section, q, units))
+    yc = np.asarray(critical_depth(section, q, units, alpha))
     target = value_fn(y)
     sub = y > yc
     out = np.empty_like(y)
@@ -289,7 +314,8 @@ def _other_branch(section, q, y, units, value_fn, name):
         def fun_dn(z):
             return value_fn(z, qb) - target_b
 
-        out[idx] = bracketed_root(fun_dn, ycb * _TINY * 1e3, ycb, what=f"{name} depth")
+        lo = _shrink_lower(fun_dn, ycb * _TINY * 1e3, what=f"{name} depth", increasing=False)
+        out[idx] = bracketed_root(fun_dn, lo, ycb, what=f"{name} depth")
     del fun
     return out
 
@@ -345,7 +371,7 @@ def alternate_depth(section, discharge, depth, units: UnitsLike = "SI", alpha: f
         a = section._geometry(z)[0]
         return z + alpha * qq * qq / (2.0 * u.g * a * a)
 
-    out = _other_branch(section, q1, y1, u, e, "alternate")
+    out = _other_branch(section, q1, y1, u, e, "alternate", alpha)
     return scalar_or_array(out.reshape(np.shape(y)))
 
 
@@ -367,6 +393,8 @@ def slope_class(section, discharge, slope, roughness, units: UnitsLike = "SI",
     >>> gv.slope_class(gv.Rectangular(width=3.0), 5.0, 0.001, 0.015)
     'mild'
     """
+    positive_array(discharge, "discharge")
+    as_roughness(roughness)
     s = float(finite_array(slope, "slope"))
     if s == 0:
         return "horizontal"

@@ -10,8 +10,9 @@ from __future__ import annotations
 
 from typing import Literal, Union
 
-from pydantic import BaseModel, ConfigDict, Field
+from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
+from ._validate import invalid_input_from
 from .errors import InvalidInputError
 
 __all__ = ["Units", "SI", "US", "resolve_units", "UnitsLike"]
@@ -50,6 +51,12 @@ class Units(BaseModel):
     length: str = "m"
     kinematic_viscosity: float = Field(default=1.004e-6, gt=0, allow_inf_nan=False)
     name: str = "custom"
+
+    def __init__(self, /, **data):
+        try:
+            super().__init__(**data)
+        except ValidationError as exc:
+            raise invalid_input_from(exc, "Units") from None
 
     @property
     def discharge(self) -> str:
