@@ -6,8 +6,24 @@
 1.51
 """
 
-from .errors import ControlError, ConvergenceError, GVFlowError, GVFlowWarning, InvalidInputError, NoSolutionError
-from .friction import Chezy, DarcyWeisbach, Manning, colebrook_friction_factor, conveyance, friction_slope
+from .errors import (
+    ControlError,
+    ConvergenceError,
+    GVFlowError,
+    GVFlowWarning,
+    InvalidInputError,
+    NoSolutionError,
+)
+from .friction import (
+    COMPOSITE_ROUGHNESS_METHODS,
+    Chezy,
+    DarcyWeisbach,
+    Manning,
+    colebrook_friction_factor,
+    composite_manning,
+    conveyance,
+    friction_slope,
+)
 from .sections import Circular, Parabolic, Rectangular, Section, Trapezoidal, Triangular, WideRectangular
 from .uniform import (
     CRITICAL_SLOPE_TOLERANCE,
@@ -38,6 +54,7 @@ __all__ = [
     "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular",
     # friction
     "Manning", "Chezy", "DarcyWeisbach", "conveyance", "friction_slope", "colebrook_friction_factor",
+    "composite_manning", "COMPOSITE_ROUGHNESS_METHODS",
     # uniform and critical flow
     "normal_depth", "critical_depth", "critical_slope", "froude_number", "specific_energy",
     "specific_force", "sequent_depth", "alternate_depth", "slope_class", "uniform_discharge",

@@ -16,7 +16,9 @@ equation:
 from __future__ import annotations
 
 import math
-from typing import Annotated, ClassVar, Literal, Union
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Annotated, ClassVar, Literal
 
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
@@ -34,6 +36,9 @@ __all__ = [
     "conveyance",
     "friction_slope",
     "colebrook_friction_factor",
+    "composite_manning",
+    "COMPOSITE_ROUGHNESS_METHODS",
+    "CompositeMethod",
 ]
 
 KIND_MANNING = 0
@@ -141,7 +146,7 @@ class DarcyWeisbach(_Roughness):
         return f"DarcyWeisbach(roughness_height={self.roughness_height:g})"
 
 
-AnyRoughness = Annotated[Union[Manning, Chezy, DarcyWeisbach], Field(discriminator="law")]
+AnyRoughness = Annotated[Manning | Chezy | DarcyWeisbach, Field(discriminator="law")]
 
 
 def as_roughness(roughness) -> Manning | Chezy | DarcyWeisbach:
@@ -279,3 +284,164 @@ def friction_slope(section, discharge, depth, roughness, units: UnitsLike = "SI"
     q = positive_array(discharge, "discharge")
     k = _kfactor(section, y, rough, u, q)
     return scalar_or_array(np.asarray((q / k) ** 2))
+
+
+# -- composite roughness ---------------------------------------------------
+#
+# A section lined with different materials along its wetted perimeter (a
+# concrete bed with grassed banks, say) is given one equivalent Manning's n.
+# Each method assumes something different about how the flow area divides
+# among the linings; Chow (1959, *Open-Channel Hydraulics*, ch. 6) gives all
+# three. n_i and P_i are the roughness and wetted perimeter of lining i,
+# P = sum P_i, R = A/P.
+
+
+def _n_horton_einstein(p, n, r, p_total):
+    # Equal mean velocity in every sub-area: n = (sum P_i n_i^1.5 / P)^(2/3).
+    return (np.sum(p * n ** 1.5, axis=-1) / p_total) ** (2.0 / 3.0)
+
+
+def _n_pavlovskii(p, n, r, p_total):
+    # Total resisting force is the sum of the sub-area forces: n = (sum P_i n_i² / P)^(1/2).
+    return np.sqrt(np.sum(p * n * n, axis=-1) / p_total)
+
+
+def _n_lotter(p, n, r, p_total):
+    # Total discharge is the sum of the sub-area discharges:
+    # n = P R^(5/3) / sum(P_i R_i^(5/3) / n_i), with A = sum P_i R_i.
+    r_total = np.sum(p * r, axis=-1) / p_total
+    return p_total * r_total ** (5.0 / 3.0) / np.sum(p * r ** (5.0 / 3.0) / n, axis=-1)
+
+
+@dataclass(frozen=True)
+class CompositeMethod:
+    """One composite-roughness method: its function, what it needs and where it comes from."""
+
+    function: Callable
+    needs_hydraulic_radii: bool
+    assumption: str
+    source: str
+
+
+#: Registry of composite-roughness methods, keyed by the ``method=`` name.
+COMPOSITE_ROUGHNESS_METHODS: dict[str, CompositeMethod] = {
+    "horton_einstein": CompositeMethod(
+        _n_horton_einstein, False, "equal mean velocity in every sub-area",
+        "Horton (1933); Einstein (1934); as given in Chow 1959, ch. 6"),
+    "pavlovskii": CompositeMethod(
+        _n_pavlovskii, False, "total resisting force is the sum of the sub-area forces",
+        "Pavlovskii (1931); Einstein and Banks (1950); as given in Chow 1959, ch. 6"),
+    "lotter": CompositeMethod(
+        _n_lotter, True, "total discharge is the sum of the sub-area discharges",
+        "Lotter (1933); as given in Chow 1959, ch. 6"),
+}
+COMPOSITE_ROUGHNESS_METHODS["einstein_banks"] = COMPOSITE_ROUGHNESS_METHODS["pavlovskii"]
+
+
+def _roughness_values(roughnesses) -> np.ndarray:
+    if isinstance(roughnesses, (list, tuple)):
+        vals = []
+        for r in roughnesses:
+            if isinstance(r, (Chezy, DarcyWeisbach)):
+                raise InvalidInputError(
+                    f"roughnesses must be Manning's n values (floats or gv.Manning); got {r!r}")
+            vals.append(r.n if isinstance(r, Manning) else r)
+        roughnesses = vals
+    return positive_array(roughnesses, "roughnesses")
+
+
+def composite_manning(wetted_perimeters, roughnesses, method: str = "horton_einstein",
+                      hydraulic_radii=None):
+    """Equivalent Manning's n of a section lined with different materials.
+
+    Parameters
+    ----------
+    wetted_perimeters : array_like
+        Wetted perimeter P_i of each lining [length], materials along the
+        last axis (leading axes, e.g. depths, broadcast). A lining that is
+        dry at this depth may have P_i = 0; the total must be positive.
+    roughnesses : array_like
+        Manning's n_i of each lining (floats or ``gv.Manning``), broadcast
+        against ``wetted_perimeters``.
+    method : str
+        ``"horton_einstein"`` (default; equal velocity in every sub-area),
+        ``"pavlovskii"`` (alias ``"einstein_banks"``; the total resisting
+        force is the sum of the sub-area forces) or ``"lotter"`` (the total
+        discharge is the sum of the sub-area discharges; needs
+        ``hydraulic_radii``). See :data:`COMPOSITE_ROUGHNESS_METHODS`.
+    hydraulic_radii : array_like, optional
+        Hydraulic radius R_i = A_i/P_i of the sub-area belonging to each lining
+        [length]; required by ``"lotter"``, ignored by the others.
+
+    Returns
+    -------
+    float or ndarray
+        Equivalent Manning's n [same unit as n_i]; the last axis is reduced.
+
+    Raises
+    ------
+    InvalidInputError
+        For an unknown method, a negative, NaN or infinite perimeter, a
+        non-positive roughness, no wetted perimeter at all, or a missing
+        ``hydraulic_radii`` for the Lotter method.
+
+    Notes
+    -----
+    With P = sum P_i and R = A/P:
+
+    * Horton-Einstein: n = (sum P_i n_i^1.5 / P)^(2/3)
+    * Pavlovskii / Einstein-Banks: n = (sum P_i n_i² / P)^(1/2)
+    * Lotter: n = P R^(5/3) / sum(P_i R_i^(5/3) / n_i), A = sum P_i R_i
+
+    The unit factor k of Manning's equation cancels, so the result holds in
+    SI and US customary units alike.
+
+    References
+    ----------
+    Chow, V. T. (1959). *Open-Channel Hydraulics*. McGraw-Hill, ch. 6
+    (equivalent roughness of composite sections).
+    Horton, R. E. (1933). Separate roughness coefficients for channel bottom
+    and sides. *Engineering News-Record* 111(22).
+    Einstein, H. A. (1934). Der hydraulische oder Profil-Radius.
+    *Schweizerische Bauzeitung* 103(8).
+    Einstein, H. A. and Banks, R. B. (1950). Fluid resistance of composite
+    roughness. *Transactions, American Geophysical Union* 31(4).
+
+    Examples
+    --------
+    A 3 m wide rectangular channel flowing 1.5 m deep with a concrete bed
+    (n = 0.013) and rubble walls (n = 0.025):
+
+    >>> import gvflow as gv
+    >>> round(gv.composite_manning([3.0, 3.0], [0.013, 0.025]), 5)
+    0.01947
+    >>> round(gv.composite_manning([3.0, 3.0], [0.013, 0.025], method="pavlovskii"), 5)
+    0.01992
+    """
+    try:
+        entry = COMPOSITE_ROUGHNESS_METHODS[method]
+    except (KeyError, TypeError):
+        choices = ", ".join(repr(k) for k in COMPOSITE_ROUGHNESS_METHODS)
+        raise InvalidInputError(
+            f"composite roughness method {method!r} is unknown; valid choices are {choices}") from None
+    p = positive_array(wetted_perimeters, "wetted_perimeters", allow_zero=True)
+    n = _roughness_values(roughnesses)
+    if entry.needs_hydraulic_radii:
+        if hydraulic_radii is None:
+            raise InvalidInputError(
+                f"method {method!r} needs hydraulic_radii (R_i = A_i/P_i of each lining's sub-area)")
+        r = positive_array(hydraulic_radii, "hydraulic_radii")
+    else:
+        r = np.ones(())
+    if p.ndim == 0 or p.shape[-1] == 0:
+        raise InvalidInputError("wetted_perimeters must list at least one lining (materials on the last axis)")
+    try:
+        p, n, r = np.broadcast_arrays(p, n, r)
+    except ValueError:
+        raise InvalidInputError(
+            f"wetted_perimeters {np.shape(p)}, roughnesses {np.shape(n)} and hydraulic_radii "
+            f"{np.shape(r)} must have matching shapes (materials on the last axis)") from None
+    p_total = np.sum(p, axis=-1)
+    if np.any(p_total <= 0):
+        raise InvalidInputError("wetted_perimeters must add up to a positive total; got all zero")
+    return scalar_or_array(np.asarray(entry.function(p, n, r, p_total)))
