@@ -6,6 +6,7 @@
 1.51
 """
 
+from .design import BestSection, best_hydraulic_section
 from .errors import (
     ControlError,
     ConvergenceError,
@@ -59,4 +60,6 @@ __all__ = [
     "normal_depth", "critical_depth", "critical_slope", "froude_number", "specific_energy",
     "specific_force", "sequent_depth", "alternate_depth", "slope_class", "uniform_discharge",
     "uniform_velocity", "conduit_capacity", "ConduitCapacity", "CRITICAL_SLOPE_TOLERANCE",
+    # design
+    "best_hydraulic_section", "BestSection",
 ]

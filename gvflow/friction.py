@@ -202,7 +202,7 @@ def colebrook_friction_factor(reynolds, relative_roughness, *, tol: float = 1e-1
     # Swamee-Jain start, then Newton on g(x) = x + 2 log10(a + b x).
     x = -2.0 * np.log10(a + 5.74 / np.maximum(re, 1.0) ** 0.9)
     ln10 = math.log(10.0)
-    for it in range(max_iter):
+    for _ in range(max_iter):
         inner = a + b * x
         g = x + 2.0 * np.log10(inner)
         dg = 1.0 + 2.0 * b / (inner * ln10)
