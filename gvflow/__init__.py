@@ -43,10 +43,18 @@ from .uniform import (
     uniform_velocity,
 )
 from .units import SI, US, Units
+from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
+from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
+from .reach import Reach, Segment
+from .result import ControlNote, Profile, ProfilePiece
 
 __version__ = "0.1.0"
 
 __all__ = [
+    # reach model and results
+    "Reach", "Segment", "FixedDepth", "FixedStage", "UniformFlow", "CriticalFlow", "SluiceGate",
+    "Profile", "ProfilePiece", "ControlNote", "Jump",
+    "belanger_ratio", "jump_energy_loss_rectangular", "jump_length", "jump_type",
     # units and errors
     "Units", "SI", "US",
     "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",

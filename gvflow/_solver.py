@@ -1,0 +1,392 @@
+"""Mixed-regime solution of a reach for a batch of scenarios (private).
+
+The method (DESIGN.md, "Mixed regime on a reach"):
+
+1. Subcritical pass, downstream to upstream: from the downstream control (or
+   critical depth where none can govern) march the subcritical branch of
+   every segment; where it has no solution, the depth falls back to critical
+   and the march restarts from critical depth where the slope allows it.
+2. Supercritical pass, upstream to downstream: from a supercritical upstream
+   control, or from critical depth where the subcritical pass fell back to
+   critical at the head of a steep segment, march the supercritical branch.
+3. At every station the profile with the larger specific force
+   M = Q²/(gA) + A ȳ governs. Where governance passes from the supercritical
+   to the subcritical profile a hydraulic jump stands; its location is
+   refined by root finding on M_super(x) - M_sub(x) between the two stations.
+
+Everything is vectorised over scenarios (discharges, roughness samples):
+one march per segment and pass serves them all.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ._roots import bracketed_root
+from .controls import EndState
+from .errors import ControlError, ConvergenceError, NoSolutionError
+from .profiles._kernel import SUB, SUPER
+from .profiles.base import SegmentBatch
+
+REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
+_M_TOL = 1e-12  # relative tolerance when comparing specific forces
+
+
+@dataclass(eq=False)
+class BatchSolution:
+    """Governing solution of n scenarios on shared base stations."""
+
+    x: np.ndarray  # (M,)
+    segment: np.ndarray  # (M,) segment index of each station
+    bed: np.ndarray  # (M,) bed elevation
+    depth: np.ndarray  # (n, M) governing depth
+    regime: np.ndarray  # (n, M) +1 sub, 0 critical, -1 super
+    segs: list  # SegmentBatch per segment
+    slope_class: np.ndarray  # (n, K) str
+    # jumps, flat: one row per jump
+    jump_scenario: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    jump_x: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    jump_y1: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    jump_y2: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    jump_segment: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
+    jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
+    notes: list = field(default_factory=list)  # per scenario: list of (x, kind, text)
+
+
+def station_layout(reach, n_steps: int, max_step: float | None):
+    """Base stations: every segment gets its own stations, junctions appear twice."""
+    xs, seg_ix, bounds = [], [], []
+    start = 0.0
+    for k, s in enumerate(reach.segments):
+        n = n_steps if max_step is None else max(n_steps, int(np.ceil(s.length / max_step)))
+        x = start + np.linspace(0.0, s.length, n + 1)
+        x[-1] = start + s.length
+        bounds.append((len(np.concatenate(xs)) if xs else 0, n + 1))
+        xs.append(x)
+        seg_ix.append(np.full(n + 1, k))
+        start += s.length
+    return np.concatenate(xs), np.concatenate(seg_ix), bounds
+
+
+def _classes(seg: SegmentBatch, tol: float) -> np.ndarray:
+    if seg.slope == 0:
+        return np.full(seg.n, "horizontal", dtype=object)
+    if seg.slope < 0:
+        return np.full(seg.n, "adverse", dtype=object)
+    yn, yc = seg.yn, seg.yc
+    out = np.where(yn > yc, "mild", "steep").astype(object)
+    out[np.abs(yn - yc) <= tol * yc] = "critical"
+    out[~np.isfinite(yn)] = "mild"  # a surcharging conduit: friction exceeds the slope at every depth
+    return out
+
+
+def _check_inside(seg, y, ctrl, end):
+    top = seg.section.max_depth
+    if np.any(y > top):
+        raise ControlError(
+            f"{end} control {ctrl!r} puts the water {float(np.max(y)):.4g} deep in {seg.section!r}, above its "
+            "crown: the conduit would flow full (pressure flow is outside gvflow's free-surface model)")
+
+
+def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
+    """Depth in ``seg_to`` with the specific energy of ``y`` in ``seg_from`` (same bed level).
+
+    Returns (depth, critical_flag): where the branch has no root the depth is
+    critical and the flag is set.
+    """
+    if seg_from.spec == seg_to.spec:
+        return y.copy(), np.zeros(y.shape, bool)
+    e = seg_from.specific_energy(y)
+    yc = seg_to.yc
+    ec = seg_to.specific_energy(yc)
+    ok = e > ec
+    out = yc.copy()
+    if np.any(ok):
+        idx = np.flatnonzero(ok)
+        sub = seg_to.take(idx)
+        target = e[idx]
+
+        def fun(z):
+            return sub.specific_energy(z) - target
+
+        if branch == SUB:
+            lo = sub.yc
+            hi = np.maximum(target, sub.yc * 1.001)
+            if seg_to.section.closed:
+                hi = np.minimum(hi, seg_to.section.max_depth)
+            out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
+        else:
+            lo = sub.yc * 1e-3
+            for _ in range(60):
+                need = fun(lo) < 0
+                if not np.any(need):
+                    break
+                lo = np.where(need, lo * 0.5, lo)
+            out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="depth across a junction")
+    return out, ~ok
+
+
+def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
+    """March a branch; where it fails fill critical depth, restarting where the slope allows."""
+    n, m = seg.n, x_order.shape[0]
+    y = np.full((n, m), np.nan)
+    crit = np.zeros((n, m), bool)
+    crit[:, 0] = crit0
+    cols = np.arange(m)
+    idx = np.arange(n)
+    j0 = np.zeros(n, int)
+    y_start = np.asarray(y0, dtype=float)
+    while idx.size:
+        restart_idx, restart_j = [], []
+        for start in np.unique(j0):
+            grp = idx[j0 == start]
+            res = marcher.march(seg.take(grp), x_order[start:], y_start[grp], branch)
+            stop = start + res.n_valid  # first station the branch could not reach
+            full = res.code == 2
+            if np.any(full):
+                r = int(np.flatnonzero(full)[0])
+                raise NoSolutionError(
+                    f"the water surface reaches the crown of {seg.section!r} near x = "
+                    f"{x_order[min(stop[r], m - 1)]:.2f} (discharge {seg.discharge[grp[r]]:g}): the conduit flows "
+                    "full there; pressure flow is outside gvflow's free-surface model. Use a larger conduit or "
+                    "a lower downstream level")
+            if np.any(res.code == 3):
+                r = int(np.flatnonzero(res.code == 3)[0])
+                raise ConvergenceError(
+                    f"the standard-step iteration did not converge near x = {x_order[min(stop[r], m - 1)]:.2f}; "
+                    "try more steps (n_steps) or a looser tolerance")
+            failed = cols[None, start:] >= stop[:, None]
+            block = np.where(failed, seg.yc[grp, None], res.depth)
+            y[grp, start:] = block
+            crit[grp, start:] |= failed
+            again = (stop < m - 1) & can_restart[grp]
+            restart_idx.append(grp[again])
+            restart_j.append(stop[again])
+        idx = np.concatenate(restart_idx) if restart_idx else np.zeros(0, int)
+        j0 = np.concatenate(restart_j) if restart_j else np.zeros(0, int)
+        order = np.argsort(idx)
+        idx, j0 = idx[order], j0[order]
+        y_start = np.full(n, np.nan)
+        y_start[idx] = seg.yc[idx]
+    return y, crit
+
+
+def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
+                critical_tolerance: float = 1e-3) -> BatchSolution:
+    """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None)."""
+    units = reach.resolved_units
+    segments = reach.segments
+    nseg = len(segments)
+    q = np.atleast_1d(np.asarray(discharge, dtype=float))
+    n = q.size
+    segs = []
+    for k, s in enumerate(segments):
+        c = None if coef is None else coef[:, k]
+        segs.append(SegmentBatch.build(s.section, s.slope, s.roughness, q, units, reach.alpha, coef=c))
+    classes = np.stack([_classes(sg, critical_tolerance) for sg in segs], axis=1)
+    sf_c = [sg.friction_slope(sg.yc) for sg in segs]
+    can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
+    can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
+
+    x, seg_ix, bounds = station_layout(reach, n_steps, max_step)
+    bed = reach.bed_elevation(x, seg_ix)
+    M = x.size
+    notes = [[] for _ in range(n)]
+
+    # ---------------- subcritical pass -------------------------------------------------
+    sub_y = np.full((n, M), np.nan)
+    sub_c = np.zeros((n, M), bool)
+    last = segs[-1]
+    end_state = EndState("downstream", last, float(bed[-1]), classes[:, -1])
+    ctrl = reach.downstream
+    if ctrl is None:
+        y_down = np.where(classes[:, -1] == "mild", last.yn, last.yc)
+        governs_down = classes[:, -1] != "steep"
+    else:
+        ctrl.check_end("downstream")
+        y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
+        _check_inside(last, y_down, ctrl, "downstream")
+        governs_down = y_down >= last.yc * (1 - 1e-12)
+        must_be_sub = np.isin(classes[:, -1], ("mild", "horizontal", "adverse")) & ~governs_down
+        if np.any(must_be_sub):
+            i = int(np.flatnonzero(must_be_sub)[0])
+            raise ControlError(
+                f"downstream control {ctrl!r} gives depth {y_down[i]:.4g}, below critical depth "
+                f"{last.yc[i]:.4g} (discharge {q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
+                "subcritical, so its downstream control must be at or above critical depth. For a free "
+                "overfall or a drop use gv.CriticalFlow()")
+    y_start = np.where(governs_down, y_down, last.yc)
+    c_start = ~governs_down
+    for k in range(nseg - 1, -1, -1):
+        i0, m = bounds[k]
+        xs = x[i0:i0 + m][::-1]
+        y, c = _march_with_fallback(marcher, segs[k], xs, y_start, c_start, SUB, can_sub_restart[k])
+        sub_y[:, i0:i0 + m] = y[:, ::-1]
+        sub_c[:, i0:i0 + m] = c[:, ::-1]
+        if k > 0:
+            y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
+            c_start = flag | sub_c[:, i0]
+    sub_M = np.empty((n, M))
+    for k in range(nseg):
+        i0, m = bounds[k]
+        sub_M[:, i0:i0 + m] = segs[k].specific_force(sub_y[:, i0:i0 + m])
+
+    # ---------------- supercritical pass and governance ------------------------------------
+    depth = sub_y.copy()
+    regime = np.where(sub_c, REGIME_CRITICAL, REGIME_SUB)
+    jumps = []  # (scenario, x, y1, y2, segment, after_index, at_junction)
+    first = segs[0]
+    sup_state = np.full(n, np.nan)
+    sup_from_control = np.zeros(n, bool)
+    up = reach.upstream
+    if up is not None:
+        up.check_end("upstream")
+        y_up = np.asarray(up.depth_at(EndState("upstream", first, float(bed[0]), classes[:, 0])), dtype=float)
+        _check_inside(first, y_up, up, "upstream")
+        ok = (y_up < first.yc * (1 - 1e-9)) | (np.isclose(y_up, first.yc, rtol=1e-9) & can_sup_start[0])
+        sup_state = np.where(ok, y_up, np.nan)
+        sup_from_control = ok.copy()
+        for s in np.flatnonzero(~ok):
+            notes[s].append((0.0, "unused control",
+                             f"upstream control {up.describe(units)} does not govern: the flow entering the reach "
+                             "is subcritical and is governed from downstream"))
+    entry = np.isnan(sup_state) & sub_c[:, 0] & can_sup_start[0]
+    sup_state = np.where(entry, first.yc, sup_state)
+    for s in np.flatnonzero(entry):
+        notes[s].append((0.0, "critical control", "critical depth at the head of a steep segment"))
+    carried = np.zeros(n, bool)  # supercritical flow carried over from the previous segment
+    for k in range(nseg):
+        i0, m = bounds[k]
+        seg = segs[k]
+        act = np.flatnonzero(np.isfinite(sup_state))
+        if act.size:
+            xs = x[i0:i0 + m]
+            ysup, csup = _march_with_fallback(marcher, seg.take(act), xs, sup_state[act],
+                                              np.zeros(act.size, bool), SUPER, can_sup_start[k][act])
+            msup = seg.take(act).specific_force(ysup)
+            msub = sub_M[act, i0:i0 + m]
+            sup_wins = msup >= msub * (1 - _M_TOL)
+            lose = ~sup_wins
+            first_loss = np.where(lose.any(axis=1), lose.argmax(axis=1), m)
+            take = np.arange(m)[None, :] < first_loss[:, None]
+            blk = depth[act, i0:i0 + m]
+            depth[act, i0:i0 + m] = np.where(take, ysup, blk)
+            regime[act, i0:i0 + m] = np.where(take, np.where(csup, REGIME_CRITICAL, REGIME_SUPER),
+                                              regime[act, i0:i0 + m])
+            for r in np.flatnonzero(first_loss < m):
+                s, i = int(act[r]), int(first_loss[r])
+                if i == 0:
+                    if k == 0 and not sup_from_control[s]:
+                        continue  # critical entry immediately overtaken: plain subcritical flow
+                    if k == 0:
+                        sup_from_control[s] = False
+                        notes[s].append((0.0, "drowned jump",
+                                         "the tailwater drowns the jump against the upstream control: "
+                                         "submerged outflow at x = 0"))
+                        continue
+                    if carried[s]:
+                        jumps.append((s, x[i0], depth[s, i0 - 1], sub_y[s, i0], k, i0 - 1, True))
+                    continue
+                jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
+            # refine the jumps inside this segment, all scenarios at once
+            _refine(jumps, marcher, seg, x, sub_y, k)
+            gov_sup_end = first_loss == m
+            y_end = ysup[:, -1]
+        else:
+            gov_sup_end = np.zeros(0, bool)
+            y_end = np.zeros(0)
+        # state at the head of the next segment
+        nxt = np.full(n, np.nan)
+        carried = np.zeros(n, bool)
+        if k + 1 < nseg:
+            if act.size and np.any(gov_sup_end):
+                idx = act[gov_sup_end]
+                yt, flag = _transfer(seg.take(idx), segs[k + 1].take(idx), y_end[gov_sup_end], SUPER)
+                nxt[idx] = yt
+                carried[idx] = True
+            j0 = bounds[k + 1][0]
+            restart = np.isnan(nxt) & sub_c[:, j0] & can_sup_start[k + 1]
+            nxt = np.where(restart, segs[k + 1].yc, nxt)
+            for s in np.flatnonzero(restart):
+                notes[s].append((float(x[j0]), "critical control",
+                                 "critical depth where the bed steepens (the flow passes from subcritical "
+                                 "to supercritical)"))
+        elif act.size:
+            for r in np.flatnonzero(gov_sup_end):
+                s = act[r]
+                if ctrl is not None and governs_down[s]:
+                    notes[s].append((float(x[-1]), "jump swept out",
+                                     f"the downstream control ({ctrl.describe(units)}) is too low to hold a jump: "
+                                     "the supercritical flow leaves the reach and the jump forms downstream of it"))
+        sup_state = nxt
+
+    if ctrl is not None:
+        for s in range(n):
+            if governs_down[s] and regime[s, -1] != REGIME_SUPER:
+                notes[s].append((float(x[-1]), "downstream control", f"{ctrl.describe(units)} governs"))
+            elif not governs_down[s]:
+                notes[s].append((float(x[-1]), "unused control",
+                                 f"downstream control {ctrl.describe(units)} does not govern: the flow leaving "
+                                 "the reach is supercritical"))
+    elif reach.downstream is None:
+        for s in range(n):
+            if classes[s, -1] != "steep" and regime[s, -1] != REGIME_SUPER:
+                kind = "normal depth" if classes[s, -1] == "mild" else "critical depth"
+                notes[s].append((float(x[-1]), "downstream control",
+                                 f"no downstream control given: {kind} assumed at the downstream end"))
+    if up is not None:
+        for s in np.flatnonzero(sup_from_control):
+            notes[s].append((0.0, "upstream control", f"{up.describe(units)} governs"))
+
+    sol = BatchSolution(x=x, segment=seg_ix, bed=bed, depth=depth, regime=regime, segs=segs,
+                        slope_class=classes, notes=notes)
+    if jumps:
+        arr = list(zip(*jumps))
+        sol.jump_scenario = np.array(arr[0], int)
+        sol.jump_x = np.array(arr[1], float)
+        sol.jump_y1 = np.array(arr[2], float)
+        sol.jump_y2 = np.array(arr[3], float)
+        sol.jump_segment = np.array(arr[4], int)
+        sol.jump_after = np.array(arr[5], int)
+        sol.jump_at_junction = np.array(arr[6], bool)
+        order = np.lexsort((sol.jump_x, sol.jump_scenario))
+        for name in ("jump_scenario", "jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after",
+                     "jump_at_junction"):
+            setattr(sol, name, getattr(sol, name)[order])
+    return sol
+
+
+def _refine(jumps, marcher, seg, x, sub_y, k):
+    """Locate, by root finding, every jump of segment k whose x is still unknown (NaN)."""
+    rows = [j for j, jp in enumerate(jumps) if jp[4] == k and np.isnan(jp[1])]
+    if not rows:
+        return
+    s_idx = np.array([jumps[j][0] for j in rows])
+    after = np.array([jumps[j][5] for j in rows])
+    y_sup0 = np.array([jumps[j][2] for j in rows])
+    x_lo, x_hi = x[after], x[after + 1]
+    y_sub1 = sub_y[s_idx, after + 1]
+    sub = seg.take(s_idx)
+    local = np.arange(s_idx.size)
+
+    def depths(xq):
+        ys = marcher.step_many(sub, local, y_sup0, x_lo, xq, SUPER)
+        yb = marcher.step_many(sub, local, y_sub1, x_hi, xq, SUB)
+        ys = np.where(np.isfinite(ys), ys, sub.yc)
+        yb = np.where(np.isfinite(yb), yb, sub.yc)
+        return ys, yb
+
+    def fun(xq):
+        ys, yb = depths(xq)
+        return sub.specific_force(ys) - sub.specific_force(yb)
+
+    span = x_hi - x_lo
+    xj = bracketed_root(fun, x_lo, x_hi, rtol=0.0, atol=1e-10 * float(np.max(span)) + 1e-12,
+                        what="jump location")
+    ys, yb = depths(xj)
+    for r, j in enumerate(rows):
+        s, _, _, _, kk, aft, junc = jumps[j]
+        jumps[j] = (s, float(xj[r]), float(ys[r]), float(yb[r]), kk, aft, junc)

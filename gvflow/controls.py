@@ -1,0 +1,254 @@
+"""Boundary controls at the ends of a reach.
+
+A control says what fixes the water level at one end of a reach. The reach
+solver asks each control for a depth per scenario (:meth:`Control.depth_at`)
+and decides whether that depth can govern: a subcritical depth governs from
+the downstream end, a supercritical depth from the upstream end. A control
+that cannot govern the regime at its end is not an error: it is recorded as
+unused in the result. A control that cannot be applied at all (uniform flow
+on a horizontal bed, a depth below critical where the flow must be
+subcritical) raises :class:`~gvflow.errors.ControlError` with the reason.
+
+Structures (weirs, culverts, pools, rating tables) are controls too; they
+live in :mod:`gvflow.structures` and follow the same contract.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import ClassVar, Literal
+
+import numpy as np
+from pydantic import Field
+
+from ._models import SingleValueModel
+from .errors import ControlError
+
+__all__ = [
+    "EndState",
+    "Control",
+    "FixedDepth",
+    "FixedStage",
+    "UniformFlow",
+    "CriticalFlow",
+    "SluiceGate",
+    "BUILTIN_CONTROLS",
+]
+
+
+@dataclass(frozen=True, eq=False)
+class EndState:
+    """What a control sees of the reach end it stands at.
+
+    Attributes
+    ----------
+    end : {"upstream", "downstream"}
+    seg : gvflow.profiles.SegmentBatch
+        The end segment with the batch of scenarios (discharge, yc, yn per scenario).
+    bed_elevation : float
+        Bed elevation at that end [length].
+    slope_class : ndarray of str
+        "mild", "steep", "critical", "horizontal" or "adverse" per scenario.
+    """
+
+    end: str
+    seg: object
+    bed_elevation: float
+    slope_class: np.ndarray
+
+    @property
+    def units(self):
+        return self.seg.units
+
+
+class Control(SingleValueModel):
+    """Base class of boundary controls.
+
+    Subclasses implement :meth:`depth_at` and :meth:`describe`, and list the
+    ends they may stand at in ``ends``.
+    """
+
+    ends: ClassVar[tuple[str, ...]] = ("upstream", "downstream")
+
+    def depth_at(self, state: EndState) -> np.ndarray:  # pragma: no cover - abstract
+        """Depth this control imposes at its end, one value per scenario [length]."""
+        raise NotImplementedError
+
+    def describe(self, units) -> str:
+        """One line for reports."""
+        return repr(self)
+
+    def check_end(self, end: str) -> None:
+        if end not in self.ends:
+            raise ControlError(f"{type(self).__name__} can only stand at the {' or '.join(self.ends)} end of a "
+                               f"reach, not the {end} end")
+
+
+class FixedDepth(Control):
+    """A depth imposed at one end of the reach (e.g. a measured or design tailwater depth).
+
+    Parameters
+    ----------
+    depth : float
+        Flow depth [length], positive.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.FixedDepth(1.8)
+    FixedDepth(depth=1.8)
+    """
+
+    _value_field: ClassVar[str] = "depth"
+    kind: Literal["fixed_depth"] = "fixed_depth"
+    depth: float = Field(gt=0, allow_inf_nan=False)
+
+    def depth_at(self, state):
+        return np.full(state.seg.n, self.depth)
+
+    def describe(self, units):
+        return f"fixed depth {self.depth:.3f} {units.length}"
+
+    def __repr__(self):
+        return f"FixedDepth(depth={self.depth:g})"
+
+
+class FixedStage(Control):
+    """A water-surface elevation imposed at one end (e.g. a lake or river level).
+
+    Parameters
+    ----------
+    elevation : float
+        Water-surface elevation [length], in the datum of the reach.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.FixedStage(101.25).elevation
+    101.25
+    """
+
+    _value_field: ClassVar[str] = "elevation"
+    kind: Literal["fixed_stage"] = "fixed_stage"
+    elevation: float = Field(allow_inf_nan=False)
+
+    def depth_at(self, state):
+        depth = self.elevation - state.bed_elevation
+        if depth <= 0:
+            raise ControlError(
+                f"FixedStage({self.elevation:g}) at the {state.end} end is at or below the bed "
+                f"(bed elevation {state.bed_elevation:g}); raise the stage or check the datum")
+        return np.full(state.seg.n, depth)
+
+    def describe(self, units):
+        return f"fixed water level {self.elevation:.3f} {units.length}"
+
+    def __repr__(self):
+        return f"FixedStage(elevation={self.elevation:g})"
+
+
+class UniformFlow(Control):
+    """The flow is at normal depth at this end (a long prismatic channel continues beyond it).
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.UniformFlow()
+    UniformFlow()
+    """
+
+    kind: Literal["uniform_flow"] = "uniform_flow"
+
+    def depth_at(self, state):
+        yn = state.seg.yn
+        if np.any(~np.isfinite(yn)):
+            bad = state.slope_class[~np.isfinite(yn)][0]
+            raise ControlError(
+                f"UniformFlow() at the {state.end} end: normal depth does not exist on a {bad} end segment "
+                "(or the conduit would surcharge); use FixedDepth, FixedStage or CriticalFlow there")
+        return yn.copy()
+
+    def describe(self, units):
+        return "normal depth"
+
+    def __repr__(self):
+        return "UniformFlow()"
+
+
+class CriticalFlow(Control):
+    """Critical depth at this end: a free overfall, a brink or a critical-flow control section.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> gv.CriticalFlow()
+    CriticalFlow()
+    """
+
+    kind: Literal["critical_flow"] = "critical_flow"
+
+    def depth_at(self, state):
+        return state.seg.yc.copy()
+
+    def describe(self, units):
+        return "critical depth"
+
+    def __repr__(self):
+        return "CriticalFlow()"
+
+
+class SluiceGate(Control):
+    """A sluice gate at the upstream end releasing a jet at depth ``contraction * opening``.
+
+    Parameters
+    ----------
+    opening : float
+        Gate opening a [length].
+    contraction : float
+        Contraction coefficient Cc [-]; 0.61 by default (Henderson 1966,
+        *Open Channel Flow*, §6.5; from memory), range about 0.598-0.611.
+
+    Notes
+    -----
+    The jet (vena contracta) depth Cc·a stands at x = 0. If the subcritical
+    flow downstream has the larger specific force there, the jump is drowned
+    against the gate; the result says so.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> round(gv.SluiceGate(opening=0.5).jet_depth, 3)
+    0.305
+    """
+
+    _value_field: ClassVar[str] = "opening"
+    ends: ClassVar[tuple[str, ...]] = ("upstream",)
+    kind: Literal["sluice_gate"] = "sluice_gate"
+    opening: float = Field(gt=0, allow_inf_nan=False)
+    contraction: float = Field(default=0.61, gt=0, le=1, allow_inf_nan=False)
+
+    @property
+    def jet_depth(self) -> float:
+        """Depth of the jet at the vena contracta, Cc·a [length]."""
+        return self.contraction * self.opening
+
+    def depth_at(self, state):
+        yj = np.full(state.seg.n, self.jet_depth)
+        bad = yj >= state.seg.yc
+        if np.any(bad):
+            i = int(np.flatnonzero(bad)[0])
+            raise ControlError(
+                f"SluiceGate(opening={self.opening:g}): the jet depth {self.jet_depth:.4g} is not below critical "
+                f"depth {state.seg.yc[i]:.4g} for discharge {state.seg.discharge[i]:g}, so the gate does not "
+                "release supercritical flow; the opening is too large for this discharge")
+        return yj
+
+    def describe(self, units):
+        return (f"sluice gate, opening {self.opening:.3f} {units.length}, jet depth {self.jet_depth:.3f} "
+                f"{units.length}")
+
+    def __repr__(self):
+        return f"SluiceGate(opening={self.opening:g}, contraction={self.contraction:g})"
+
+
+BUILTIN_CONTROLS = (FixedDepth, FixedStage, UniformFlow, CriticalFlow, SluiceGate)

@@ -1,0 +1,404 @@
+"""Compiled inner loops of the profile engine (private).
+
+The standard-step march, the critical and normal depth of many scenarios at
+once, and the specific force run here under numba, one scalar problem at a
+time inside a loop over scenarios, so a march of 10,000 scenarios is one
+call from Python. Geometry and friction mirror :mod:`gvflow.sections` and
+:mod:`gvflow.friction` (the test suite checks they agree to round-off); the
+shape and law codes are their ``kernel_spec()`` values.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit
+
+# friction-slope averages between two stations
+AVG_ARITHMETIC = 0
+AVG_GEOMETRIC = 1
+AVG_HARMONIC = 2
+AVG_CONVEYANCE = 3
+AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
+            "conveyance": AVG_CONVEYANCE}
+
+SUB = 1  # subcritical branch, traced upstream
+SUPER = -1  # supercritical branch, traced downstream
+
+
+@njit(cache=True)
+def geom(kind, p0, p1, p2, y):
+    """(A, P, T, A*ybar, dP/dy) of shape ``kind`` at depth y (see sections.KIND_*)."""
+    if kind == 0:
+        zs = p1 + p2
+        sides = math.sqrt(1.0 + p1 * p1) + math.sqrt(1.0 + p2 * p2)
+        a = (p0 + 0.5 * zs * y) * y
+        return a, p0 + sides * y, p0 + zs * y, 0.5 * p0 * y * y + zs * y * y * y / 6.0, sides
+    elif kind == 1:
+        return p0 * y, p0, p0, 0.5 * p0 * y * y, 0.0
+    elif kind == 2:
+        d = p0
+        yy = min(max(y, 0.0), d)
+        c = 1.0 - 2.0 * yy / d
+        c = min(1.0, max(-1.0, c))
+        theta = 2.0 * math.acos(c)
+        sh = math.sin(0.5 * theta)
+        a = d * d * (theta - math.sin(theta)) / 8.0
+        root = math.sqrt(max(yy * (d - yy), 1e-300))
+        return a, 0.5 * d * theta, d * sh, a * (yy - 0.5 * d) + d * d * d * sh * sh * sh / 12.0, d / root
+    else:
+        c = p0
+        s = math.sqrt(y)
+        t = c * s
+        u = 4.0 * y / t
+        p = 0.5 * t * (math.sqrt(1.0 + u * u) + math.asinh(u) / u)
+        return 2.0 / 3.0 * t * y, p, t, 4.0 / 15.0 * c * y * y * s, 0.5 * c * math.sqrt(1.0 + 16.0 * y / (c * c)) / s
+
+
+@njit(cache=True)
+def colebrook(re, eps):
+    """Darcy friction factor from Colebrook-White (laminar 64/Re below Re = 2000)."""
+    if re < 2000.0:
+        return 64.0 / max(re, 1e-300)
+    a = eps / 3.7
+    b = 2.51 / re
+    x = -2.0 * math.log10(a + 5.74 / re ** 0.9)
+    for _ in range(50):
+        inner = a + b * x
+        gx = x + 2.0 * math.log10(inner)
+        step = gx / (1.0 + 2.0 * b / (inner * math.log(10.0)))
+        x -= step
+        if abs(step) <= 1e-13 * abs(x):
+            break
+    return 1.0 / (x * x)
+
+
+@njit(cache=True)
+def fslope(law, coef, k, g, nu, q, a, p):
+    """Friction slope Sf for law code ``law`` (0 Manning n, 1 Chezy C, 2 Darcy ks)."""
+    r = a / p
+    if law == 0:
+        c = coef * q / (k * a * r ** (2.0 / 3.0))
+        return c * c
+    elif law == 1:
+        return q * q / (coef * coef * a * a * r)
+    f = colebrook(4.0 * r * abs(q) / (a * nu), coef / (4.0 * r))
+    return f * q * q / (8.0 * g * r * a * a)
+
+
+@njit(cache=True)
+def dlnsf_dy(law, a, p, t, dp):
+    """d ln(Sf)/dy at fixed discharge (Darcy: friction factor held fixed)."""
+    if law == 0:
+        return -(10.0 / 3.0) * t / a + (4.0 / 3.0) * dp / p
+    return -3.0 * t / a + dp / p
+
+
+@njit(cache=True)
+def sf_average(avg, s1, s2):
+    """Mean friction slope over a step and its derivative with respect to s2."""
+    if avg == 0:
+        return 0.5 * (s1 + s2), 0.5
+    elif avg == 1:
+        m = math.sqrt(s1 * s2)
+        return m, 0.5 * m / s2
+    elif avg == 2:
+        return 2.0 * s1 * s2 / (s1 + s2), 2.0 * s1 * s1 / ((s1 + s2) * (s1 + s2))
+    a1 = 1.0 / math.sqrt(s1)
+    a2 = 1.0 / math.sqrt(s2)
+    den = a1 + a2
+    return 4.0 / (den * den), 4.0 * a2 * a2 * a2 / (den * den * den)
+
+
+@njit(cache=True)
+def critical_depth(kind, p0, p1, p2, q, g, alpha, ymax):
+    """Critical depth: alpha Q² T = g A³, by safeguarded Newton on ln(A³/T)."""
+    target = math.log(alpha * q * q / g)
+    lo = 0.0
+    hi = ymax * (1.0 - 1e-13) if ymax < math.inf else 1.0
+    if ymax == math.inf:
+        for _ in range(200):
+            a, p, t, m, dp = geom(kind, p0, p1, p2, hi)
+            if 3.0 * math.log(a) - math.log(t) > target:
+                break
+            lo = hi
+            hi *= 2.0
+    y = 0.5 * (lo + hi) if lo > 0 else 0.5 * hi
+    for _ in range(200):
+        a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+        f = 3.0 * math.log(a) - math.log(t) - target
+        if f > 0:
+            hi = y
+        else:
+            lo = y
+        # d/dy [3 ln A - ln T] = 3T/A - T'/T; T' from the shape
+        if kind == 0:
+            dt = p1 + p2
+        elif kind == 1:
+            dt = 0.0
+        elif kind == 2:
+            dt = (p0 - 2.0 * y) / math.sqrt(max(y * (p0 - y), 1e-300))
+        else:
+            dt = 0.5 * p0 / math.sqrt(y)
+        df = 3.0 * t / a - dt / t
+        yn = y - f / df if df > 0 else 0.5 * (lo + hi)
+        if not (lo < yn < hi):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= 1e-14 * y or hi - lo <= 1e-15 * hi:
+            return yn
+        y = yn
+    return y
+
+
+@njit(cache=True)
+def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
+    """Normal depth (NaN when none: s0 <= 0 or above a closed conduit's capacity)."""
+    if s0 <= 0.0:
+        return math.nan
+    hi = 1.0
+    if ymax < math.inf:
+        # lower branch below the conveyance peak: golden search for the peak first
+        lo_g, hi_g = 0.5 * ymax, ymax
+        r = (math.sqrt(5.0) - 1.0) / 2.0
+        for _ in range(80):
+            c = hi_g - r * (hi_g - lo_g)
+            e = lo_g + r * (hi_g - lo_g)
+            ac, pc, tc, mc, dc = geom(kind, p0, p1, p2, c)
+            ae, pe, te, me, de = geom(kind, p0, p1, p2, e)
+            if fslope(law, coef, k, g, nu, q, ac, pc) < fslope(law, coef, k, g, nu, q, ae, pe):
+                hi_g = e
+            else:
+                lo_g = c
+        hi = 0.5 * (lo_g + hi_g)
+        a, p, t, m, dp = geom(kind, p0, p1, p2, hi)
+        if fslope(law, coef, k, g, nu, q, a, p) > s0 * (1.0 + 1e-12):
+            return math.nan
+    else:
+        for _ in range(200):
+            a, p, t, m, dp = geom(kind, p0, p1, p2, hi)
+            if fslope(law, coef, k, g, nu, q, a, p) < s0:
+                break
+            hi *= 2.0
+    lo = 0.0
+    y = 0.5 * hi
+    lns0 = math.log(s0)
+    for _ in range(200):
+        a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+        f = math.log(fslope(law, coef, k, g, nu, q, a, p)) - lns0  # decreasing in y
+        if f > 0:
+            lo = y
+        else:
+            hi = y
+        df = dlnsf_dy(law, a, p, t, dp)
+        yn = y - f / df if df < 0 else 0.5 * (lo + hi)
+        if not (lo < yn < hi):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= 1e-14 * y or hi - lo <= 1e-15 * hi:
+            return yn
+        y = yn
+    return y
+
+
+@njit(cache=True)
+def specific_force(kind, p0, p1, p2, q, g, y):
+    """M = Q²/(gA) + A ybar."""
+    a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+    return q * q / (g * a) + m
+
+
+@njit(cache=True)
+def _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg, k, g, nu):
+    """Energy residual r(y2) of a standard step over signed distance d, and dr/dy2."""
+    a, p, t, m, dp = geom(kind, p0, p1, p2, y2)
+    hv2 = alpha * q * q / (2.0 * g * a * a)
+    sf2 = fslope(law, coef, k, g, nu, q, a, p)
+    sav, dsav = sf_average(avg, sf1, sf2)
+    dhv2 = -2.0 * hv2 * t / a
+    dsf2 = sf2 * dlnsf_dy(law, a, p, t, dp)
+    he = ce * abs(hv2 - hv1)
+    dhe = ce * dhv2 * (1.0 if hv2 >= hv1 else -1.0)
+    sgn = 1.0 if d > 0 else -1.0
+    r = y2 + hv2 - e1 - s0 * d + d * sav + sgn * he
+    dr = 1.0 + dhv2 + d * dsav * dsf2 + sgn * dhe
+    return r, dr
+
+
+@njit(cache=True)
+def step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol, guess):
+    """Depth after a standard step of signed length d on ``branch``.
+
+    ``guess`` seeds the iteration (e.g. extrapolated from the previous step).
+    Returns (depth, code): code 0 solved; 1 the branch has no root (the
+    profile reaches critical depth within the step); 2 the depth would exceed
+    the crown of a closed conduit; 3 no convergence.
+    """
+    a1, p1_, t1, m1, dp1 = geom(kind, p0, p1, p2, y1)
+    hv1 = alpha * q * q / (2.0 * g * a1 * a1)
+    e1 = y1 + hv1
+    sf1 = fslope(law, coef, k, g, nu, q, a1, p1_)
+    # Fast path: Newton from the guess, accepted only if every iterate stays on
+    # the branch (the residual is monotone there, so the root is the branch's).
+    y = guess
+    if (branch == 1 and yc < y < ymax) or (branch == -1 and 0.0 < y < yc):
+        for _ in range(8):
+            r, dr = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg, k, g, nu)
+            if dr == 0.0 or (dr > 0.0) != (branch == 1):
+                break
+            yn = y - r / dr
+            if branch == 1:
+                if not (yc < yn < ymax):
+                    break
+            elif not (0.0 < yn < yc):
+                break
+            if abs(yn - y) <= tol * y:
+                return yn, 0
+            y = yn
+    # Safe path: bracket on the branch, then safeguarded Newton.
+    rc, drc = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, yc, alpha, ce, avg, k, g, nu)
+    if branch == 1:
+        if rc > 0.0:
+            return yc, 1
+        lo, hi = yc, max(y1, yc) * 1.25
+        for _ in range(200):
+            if hi >= ymax:
+                hi = ymax
+                rh, dh = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, hi, alpha, ce, avg,
+                                   k, g, nu)
+                if rh < 0.0:
+                    return ymax, 2
+                break
+            rh, dh = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, hi, alpha, ce, avg, k, g, nu)
+            if rh > 0.0:
+                break
+            lo = hi
+            hi *= 2.0
+    else:
+        if rc > 0.0:
+            return yc, 1
+        hi, lo = yc, min(y1, yc) * 0.8
+        for _ in range(200):
+            rl, dl = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, lo, alpha, ce, avg, k, g, nu)
+            if rl > 0.0:
+                break
+            hi = lo
+            lo *= 0.5
+    y = y1 if lo < y1 < hi else 0.5 * (lo + hi)
+    for _ in range(100):
+        r, dr = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg, k, g, nu)
+        if (r > 0.0) == (branch == 1):
+            hi = y
+        else:
+            lo = y
+        yn = y - r / dr if dr != 0.0 else 0.5 * (lo + hi)
+        if not (lo < yn < hi):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= tol * y or hi - lo <= 1e-15 * hi:
+            return yn, 0
+        y = yn
+    return y, 3
+
+
+@njit(cache=True)
+def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k, g, nu):
+    """Signed distance from a station at depth y1 to where the profile reaches yc (direct step)."""
+    a1, p1_, t1, m1, dp1 = geom(kind, p0, p1, p2, y1)
+    ac, pc, tc, mc, dpc = geom(kind, p0, p1, p2, yc)
+    e1 = y1 + alpha * q * q / (2.0 * g * a1 * a1)
+    ec = yc + alpha * q * q / (2.0 * g * ac * ac)
+    sav, _ = sf_average(avg, fslope(law, coef, k, g, nu, q, a1, p1_), fslope(law, coef, k, g, nu, q, ac, pc))
+    den = sav - s0
+    if den == 0.0:
+        return math.inf
+    return (e1 - ec) / den
+
+
+@njit(cache=True)
+def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol,
+          out_y, out_n, out_xc, out_code):
+    """Standard-step march of every scenario over the stations ``x`` (in marching order).
+
+    ``coef``, ``q``, ``y0`` and ``yc`` hold one value per scenario. Writes the
+    depths into ``out_y[s, :]``; ``out_n[s]`` is the number of stations solved
+    on the branch; where a scenario stopped early, ``out_xc[s]`` is where it
+    reached critical depth and ``out_code[s]`` the step code that stopped it.
+    """
+    ns = q.shape[0]
+    m = x.shape[0]
+    for s in range(ns):
+        y = y0[s]
+        slope_prev = 0.0
+        out_y[s, 0] = y
+        out_n[s] = m
+        out_xc[s] = math.nan
+        out_code[s] = 0
+        for j in range(1, m):
+            d = x[j] - x[j - 1]
+            y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
+                            k, g, nu, ymax, tol, y + slope_prev * d)
+            if code != 0:
+                out_n[s] = j
+                out_code[s] = code
+                if code == 1:
+                    dc = critical_distance(kind, p0, p1, p2, law, coef[s], q[s], s0, y, yc[s], alpha, avg,
+                                           k, g, nu)
+                    frac = min(max(dc / d, 0.0), 1.0) if d != 0.0 else 0.0
+                    out_xc[s] = x[j - 1] + frac * d
+                for jj in range(j, m):
+                    out_y[s, jj] = math.nan
+                break
+            out_y[s, j] = y2
+            slope_prev = (y2 - y) / d
+            y = y2
+
+
+@njit(cache=True)
+def properties(kind, p0, p1, p2, law, coef, q, y, k, g, nu, out):
+    """Fill out[:, i] with (A, P, T, A*ybar, Sf) at y[i] for scenario values coef[i], q[i] (NaN-safe)."""
+    for i in range(y.shape[0]):
+        yi = y[i]
+        if not (yi > 0.0):
+            for j in range(5):
+                out[j, i] = math.nan
+            continue
+        a, p, t, m, dp = geom(kind, p0, p1, p2, yi)
+        out[0, i] = a
+        out[1, i] = p
+        out[2, i] = t
+        out[3, i] = m
+        out[4, i] = fslope(law, coef[i], k, g, nu, q[i], a, p)
+
+
+@njit(cache=True)
+def critical_many(kind, p0, p1, p2, q, g, alpha, ymax):
+    """Critical depth for every discharge in ``q``."""
+    out = np.empty(q.shape[0])
+    for i in range(q.shape[0]):
+        out[i] = critical_depth(kind, p0, p1, p2, q[i], g, alpha, ymax)
+    return out
+
+
+@njit(cache=True)
+def normal_many(kind, p0, p1, p2, law, c, q, slope, k, g, nu, ymax):
+    """Normal depth for every (roughness, discharge) pair (NaN where none exists)."""
+    out = np.empty(q.shape[0])
+    for i in range(q.shape[0]):
+        out[i] = normal_depth(kind, p0, p1, p2, law, c[i], q[i], slope, k, g, nu, ymax)
+    return out
+
+
+@njit(cache=True)
+def step_many(kind, p0, p1, p2, law, coef, q, s0, y1, x1, x2, yc, branch, alpha, ce, avg, k, g, nu, ymax,
+              tol):
+    """One standard step per element (arrays of equal length); NaN where the branch has no root."""
+    n = y1.shape[0]
+    out = np.empty(n)
+    for i in range(n):
+        d = x2[i] - x1[i]
+        if d == 0.0:
+            out[i] = y1[i]
+            continue
+        y, code = step(kind, p0, p1, p2, law, coef[i], q[i], s0, y1[i], d, yc[i], branch, alpha, ce, avg,
+                       k, g, nu, ymax, tol, y1[i])
+        out[i] = y if code == 0 else math.nan
+    return out

@@ -1,0 +1,216 @@
+"""The contract every profile marcher follows.
+
+A marcher traces one branch of the gradually varied flow equation (the
+subcritical branch upstream from a downstream control, or the supercritical
+branch downstream from an upstream control) along one prismatic segment,
+for a batch of scenarios at once. The base class keeps the books; a
+subclass implements :meth:`Marcher.march` (fixed stations) and
+:meth:`Marcher.step_to` (one partial step, used to refine jump locations).
+Subclasses register under a name in :data:`MARCHERS`, which is what
+``method="standard_step"`` and ``method="ivp"`` look up; a user may also pass
+a subclass itself.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .._validate import positive_array
+from ..errors import InvalidInputError
+from ..friction import as_roughness
+from ..units import Units, resolve_units
+from . import _kernel as K
+
+__all__ = ["SegmentBatch", "MarchResult", "Marcher", "MARCHERS", "register_marcher", "get_marcher",
+           "SUB", "SUPER"]
+
+SUB = K.SUB
+SUPER = K.SUPER
+
+#: stop codes of a march, per scenario
+STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no convergence"}
+
+
+@dataclass(frozen=True, eq=False)
+class SegmentBatch:
+    """One prismatic segment and a batch of n scenarios, as plain floats and arrays.
+
+    Built once per solve so that marching loops never touch pydantic models.
+
+    Attributes
+    ----------
+    section : Section
+        Cross-section.
+    slope : float
+        Bed slope S0 [-].
+    law : int
+        Friction law code (0 Manning, 1 Chezy, 2 Darcy-Weisbach).
+    coef : ndarray, shape (n,)
+        Roughness coefficient per scenario (n, C or ks).
+    discharge : ndarray, shape (n,)
+        Discharge per scenario [length³/s].
+    units : Units
+    alpha : float
+        Energy coefficient [-].
+    yc, yn : ndarray, shape (n,)
+        Critical and normal depth per scenario [length]; yn is NaN where no
+        uniform flow exists (horizontal or adverse bed, surcharged conduit).
+    """
+
+    section: object
+    slope: float
+    law: int
+    coef: np.ndarray
+    discharge: np.ndarray
+    units: Units
+    alpha: float
+    yc: np.ndarray
+    yn: np.ndarray
+    spec: tuple = field(repr=False)
+
+    @classmethod
+    def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
+        """Build a batch; ``coef`` (array) overrides the roughness coefficient per scenario."""
+        u = resolve_units(units)
+        rough = as_roughness(roughness)
+        law, c0 = rough.kernel_spec()
+        q = np.atleast_1d(positive_array(discharge, "discharge")).astype(float).ravel()
+        c = np.full(q.shape, c0) if coef is None else np.broadcast_to(
+            positive_array(coef, "roughness"), q.shape).astype(float).copy()
+        spec = section.kernel_spec()
+        kind, p0, p1, p2 = spec
+        ymax = section.max_depth
+        yc = K.critical_many(kind, p0, p1, p2, q, u.g, float(alpha), ymax)
+        yn = K.normal_many(kind, p0, p1, p2, int(law), c, q, float(slope), u.manning_k, u.g,
+                           u.kinematic_viscosity, ymax)
+        return cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, spec)
+
+    @property
+    def n(self) -> int:
+        """Number of scenarios."""
+        return self.discharge.shape[0]
+
+    def take(self, idx) -> SegmentBatch:
+        """The sub-batch of scenarios ``idx`` (an index array or slice)."""
+        return SegmentBatch(self.section, self.slope, self.law, self.coef[idx], self.discharge[idx],
+                            self.units, self.alpha, self.yc[idx], self.yn[idx], self.spec)
+
+    def properties(self, depth):
+        """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe."""
+        d = np.asarray(depth, dtype=float)
+        shape = np.broadcast_shapes(d.shape, (self.n,) + (1,) * (d.ndim - 1)) if d.ndim else (self.n,)
+        yy = np.broadcast_to(d, shape)
+        expand = (-1,) + (1,) * (len(shape) - 1)
+        q = np.broadcast_to(self.discharge.reshape(expand), shape).ravel()
+        c = np.broadcast_to(self.coef.reshape(expand), shape).ravel()
+        out = np.empty((5, q.size))
+        kind, p0, p1, p2 = self.spec
+        u = self.units
+        K.properties(kind, p0, p1, p2, self.law, np.ascontiguousarray(c), np.ascontiguousarray(q),
+                     np.ascontiguousarray(yy.ravel()), u.manning_k, u.g, u.kinematic_viscosity, out)
+        return out.reshape((5,) + shape)
+
+    def _q(self, ndim):
+        return self.discharge.reshape((-1,) + (1,) * (ndim - 1)) if ndim else self.discharge
+
+    def specific_force(self, depth):
+        """Specific force M = Q²/(gA) + A ybar [length³] of each scenario at ``depth``."""
+        d = np.asarray(depth, dtype=float)
+        a, _, _, m, _ = self.properties(d)
+        q = self._q(d.ndim)
+        return q * q / (self.units.g * a) + m
+
+    def specific_energy(self, depth):
+        """Specific energy E = y + alpha Q²/(2 g A²) [length] of each scenario at ``depth``."""
+        d = np.asarray(depth, dtype=float)
+        a = self.properties(d)[0]
+        q = self._q(d.ndim)
+        return d + self.alpha * q * q / (2.0 * self.units.g * a * a)
+
+    def friction_slope(self, depth):
+        """Friction slope Sf [-] of each scenario at ``depth``."""
+        return self.properties(depth)[4]
+
+
+@dataclass(frozen=True, eq=False)
+class MarchResult:
+    """Depths of a batch march over fixed stations.
+
+    Attributes
+    ----------
+    depth : ndarray, shape (n, m)
+        Depth at each station in marching order; NaN after a scenario stopped.
+    n_valid : ndarray of int, shape (n,)
+        Stations solved on the branch (m when the march reached the segment end).
+    x_critical : ndarray, shape (n,)
+        Where a scenario reached critical depth (NaN if it did not).
+    code : ndarray of int, shape (n,)
+        Why it stopped: see :data:`STOP_CODES`.
+    """
+
+    depth: np.ndarray
+    n_valid: np.ndarray
+    x_critical: np.ndarray
+    code: np.ndarray
+
+
+class Marcher:
+    """Base class of profile marchers: subclasses implement ``march`` and ``step_to``.
+
+    Parameters
+    ----------
+    **options
+        Method options, validated by the subclass.
+    """
+
+    name = "base"
+
+    def march(self, seg: SegmentBatch, x: np.ndarray, y0: np.ndarray, branch: int) -> MarchResult:
+        """Trace every scenario of ``seg`` from depth ``y0`` over stations ``x`` (marching order)."""
+        raise NotImplementedError  # pragma: no cover
+
+    def step_to(self, seg: SegmentBatch, index: int, y1: float, x1: float, x2: float, branch: int) -> float:
+        """Depth at x2 of the profile through (x1, y1) for scenario ``index`` (NaN if none)."""
+        raise NotImplementedError  # pragma: no cover
+
+    def step_many(self, seg: SegmentBatch, index, y1, x1, x2, branch: int) -> np.ndarray:
+        """:meth:`step_to` for arrays of scenario indices and start/end points (NaN where none).
+
+        The base implementation loops over :meth:`step_to`; compiled marchers override it.
+        """
+        index, y1, x1, x2 = np.broadcast_arrays(np.asarray(index), np.asarray(y1, float),
+                                                np.asarray(x1, float), np.asarray(x2, float))
+        return np.array([self.step_to(seg, int(i), a, b, c, branch)
+                         for i, a, b, c in zip(index.ravel(), y1.ravel(), x1.ravel(), x2.ravel())]
+                        ).reshape(index.shape)
+
+    def __repr__(self):
+        opts = ", ".join(f"{k}={v!r}" for k, v in vars(self).items())
+        return f"{type(self).__name__}({opts})"
+
+
+MARCHERS: dict[str, type[Marcher]] = {}
+
+
+def register_marcher(cls: type[Marcher]) -> type[Marcher]:
+    """Class decorator: make a marcher available as ``method=cls.name``."""
+    MARCHERS[cls.name] = cls
+    return cls
+
+
+def get_marcher(method, **options) -> Marcher:
+    """Instantiate the marcher registered as ``method`` (or the ``Marcher`` subclass given)."""
+    if isinstance(method, Marcher):
+        if options:
+            raise InvalidInputError("pass options to the marcher's constructor, not with an instance")
+        return method
+    if isinstance(method, type) and issubclass(method, Marcher):
+        return method(**options)
+    try:
+        cls = MARCHERS[method]
+    except (KeyError, TypeError):
+        raise InvalidInputError(
+            f"method must be one of {sorted(MARCHERS)} or a Marcher subclass; got {method!r}") from None
+    return cls(**options)

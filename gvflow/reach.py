@@ -1,0 +1,184 @@
+"""The reach model: chained prismatic segments between two boundary controls.
+
+>>> import gvflow as gv
+>>> reach = gv.Reach(
+...     segments=[gv.Segment(length=500.0, slope=0.001, section=gv.Rectangular(width=3.0), roughness=0.015)],
+...     discharge=5.0, downstream=gv.FixedDepth(2.0))
+>>> profile = reach.solve()
+>>> profile.profile_types
+['M1']
+"""
+
+from __future__ import annotations
+
+from typing import Annotated, Any, Literal, Optional, Union
+
+import numpy as np
+from pydantic import Field, field_validator, model_validator
+
+from ._models import FrozenModel
+from ._validate import positive_float
+from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
+from .errors import InvalidInputError
+from .friction import AnyRoughness, as_roughness
+from .profiles import get_marcher
+from .sections import AnySection
+from .units import Units, resolve_units
+
+__all__ = ["Segment", "Reach", "AnyControl"]
+
+AnyControl = Annotated[
+    Union[FixedDepth, FixedStage, UniformFlow, CriticalFlow, SluiceGate],
+    Field(discriminator="kind"),
+]
+
+
+class Segment(FrozenModel):
+    """One prismatic piece of a reach.
+
+    Parameters
+    ----------
+    length : float
+        Length along the channel [length].
+    slope : float
+        Bed slope S0 [-]: positive falling downstream, 0 horizontal, negative adverse.
+    section : Section
+        Cross-section (the same all along the segment).
+    roughness : float, Manning, Chezy or DarcyWeisbach
+        Boundary resistance; a float is Manning's n.
+    name : str, optional
+        A label for reports.
+    """
+
+    length: float = Field(gt=0, allow_inf_nan=False)
+    slope: float = Field(allow_inf_nan=False, gt=-1, lt=1)
+    section: AnySection
+    roughness: AnyRoughness
+    name: Optional[str] = None
+
+    @field_validator("roughness", mode="before")
+    @classmethod
+    def _number_is_manning(cls, v: Any):
+        if isinstance(v, (int, float)) and not isinstance(v, bool):
+            return as_roughness(v)
+        return v
+
+    def __repr__(self):
+        label = f"{self.name!r}, " if self.name else ""
+        return (f"Segment({label}length={self.length:g}, slope={self.slope:g}, section={self.section!r}, "
+                f"roughness={self.roughness!r})")
+
+
+class Reach(FrozenModel):
+    """A reach: segments listed upstream to downstream, a discharge and the end controls.
+
+    Parameters
+    ----------
+    segments : list of Segment
+        From upstream to downstream. Distance x runs from the upstream end.
+    discharge : float
+        Discharge Q [length³/s].
+    upstream, downstream : control, optional
+        Boundary controls (:class:`FixedDepth`, :class:`FixedStage`,
+        :class:`UniformFlow`, :class:`CriticalFlow`, :class:`SluiceGate`,
+        or a structure). Either may be omitted: downstream, normal depth is
+        assumed below a mild segment and critical depth below a horizontal or
+        adverse one; upstream, flow enters a steep segment at critical depth.
+    units : "SI", "US" or Units
+    datum : float
+        Bed elevation at the downstream end [length].
+    alpha : float
+        Energy (Coriolis) coefficient [-].
+    name : str, optional
+    """
+
+    segments: list[Segment] = Field(min_length=1)
+    discharge: float = Field(gt=0, allow_inf_nan=False)
+    upstream: Optional[AnyControl] = None
+    downstream: Optional[AnyControl] = None
+    units: Union[Literal["SI", "US"], Units] = "SI"
+    datum: float = Field(default=0.0, allow_inf_nan=False)
+    alpha: float = Field(default=1.0, ge=1.0, le=2.0, allow_inf_nan=False)
+    name: Optional[str] = None
+
+    @model_validator(mode="after")
+    def _check_controls(self):
+        for end in ("upstream", "downstream"):
+            ctrl = getattr(self, end)
+            if ctrl is not None:
+                ctrl.check_end(end)
+        return self
+
+    # -- geometry --------------------------------------------------------------------
+    @property
+    def resolved_units(self) -> Units:
+        """The :class:`Units` object of this reach."""
+        return resolve_units(self.units)
+
+    @property
+    def length(self) -> float:
+        """Total length [length]."""
+        return float(sum(s.length for s in self.segments))
+
+    @property
+    def boundaries(self) -> np.ndarray:
+        """x of the segment ends, from 0 to the reach length (K + 1 values) [length]."""
+        return np.concatenate([[0.0], np.cumsum([s.length for s in self.segments])])
+
+    def segment_at(self, x) -> np.ndarray:
+        """Index of the segment holding each x (a junction belongs to the downstream segment)."""
+        xb = self.boundaries
+        return np.clip(np.searchsorted(xb, np.asarray(x, float), side="right") - 1, 0, len(self.segments) - 1)
+
+    def bed_elevation(self, x, segment=None) -> np.ndarray:
+        """Bed elevation at x [length], from the datum at the downstream end and the slopes."""
+        x = np.asarray(x, dtype=float)
+        k = self.segment_at(x) if segment is None else np.asarray(segment)
+        xb = self.boundaries
+        slopes = np.array([s.slope for s in self.segments])
+        lengths = np.diff(xb)
+        z_end = self.datum + np.concatenate([np.cumsum((slopes * lengths)[::-1])[::-1][1:], [0.0]])
+        return z_end[k] + slopes[k] * (xb[k + 1] - x)
+
+    # -- solving ------------------------------------------------------------------------
+    def solve(self, method="standard_step", *, n_steps: int = 100, max_step: float | None = None,
+              critical_tolerance: float = 1e-3, **options):
+        """Solve the mixed-regime water-surface profile.
+
+        Parameters
+        ----------
+        method : str or Marcher subclass
+            ``"standard_step"`` (default) or ``"ivp"`` (scipy's solve_ivp).
+        n_steps : int
+            Steps per segment (at least); stations are evenly spaced.
+        max_step : float, optional
+            Largest station spacing [length]; adds steps to long segments.
+        critical_tolerance : float
+            Relative |yn - yc|/yc under which a slope is classed critical.
+        **options
+            Options of the marcher (e.g. ``friction_average``, ``rtol``).
+
+        Returns
+        -------
+        Profile
+        """
+        from ._solver import solve_batch
+        from .result import Profile
+
+        marcher = get_marcher(method, **options)
+        n_steps, max_step = _check_steps(n_steps, max_step)
+        sol = solve_batch(self, marcher, np.array([self.discharge]), None, n_steps, max_step, critical_tolerance)
+        return Profile.from_batch(self, sol, 0, method=getattr(marcher, "name", str(method)))
+
+    def __repr__(self):
+        segs = ", ".join(repr(s) for s in self.segments)
+        return (f"Reach(discharge={self.discharge:g}, segments=[{segs}], upstream={self.upstream!r}, "
+                f"downstream={self.downstream!r}, units={self.units!r})")
+
+
+def _check_steps(n_steps, max_step):
+    if not isinstance(n_steps, (int, np.integer)) or isinstance(n_steps, bool) or n_steps < 2:
+        raise InvalidInputError(f"n_steps must be an integer of at least 2; got {n_steps!r}")
+    if max_step is not None:
+        max_step = positive_float(max_step, "max_step")
+    return int(n_steps), max_step

@@ -1,0 +1,274 @@
+"""The solved profile of a reach: station arrays, jumps, profile types, controls and reports."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
+from ._validate import finite_array, scalar_or_array
+from .jumps import Jump, jump_length, jump_type
+
+__all__ = ["Profile", "ProfilePiece", "ControlNote"]
+
+_REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
+#: depths within this relative distance of normal depth all along a piece count as uniform flow
+UNIFORM_TOLERANCE = 1e-6
+
+
+@dataclass(frozen=True)
+class ProfilePiece:
+    """One continuous gradually varied flow profile on one segment."""
+
+    label: str
+    segment: int
+    x_start: float
+    x_end: float
+    regime: str
+
+    def __repr__(self):
+        return f"ProfilePiece({self.label}, segment {self.segment}, x {self.x_start:.2f}-{self.x_end:.2f})"
+
+
+@dataclass(frozen=True)
+class ControlNote:
+    """Where and how the flow is controlled, or something the engineer should know."""
+
+    x: float
+    kind: str
+    text: str
+
+    def __repr__(self):
+        return f"ControlNote(x={self.x:.2f}, {self.kind}: {self.text})"
+
+
+def _station_props(sol: BatchSolution, i: int, seg_ix, depth):
+    """A, P, T, A·ȳ, Sf at each station of scenario i."""
+    out = np.empty((5, depth.size))
+    for k in np.unique(seg_ix):
+        sel = seg_ix == k
+        seg = sol.segs[k].take(np.array([i]))
+        out[:, sel] = seg.properties(depth[sel][None, :])[:, 0, :]
+    return out
+
+
+class Profile:
+    """Water-surface profile of a reach (immutable result of :meth:`Reach.solve`).
+
+    Arrays run upstream to downstream, one value per station [units of the reach]:
+    ``x`` (distance from the upstream end), ``depth``, ``stage`` (water-surface
+    elevation), ``bed`` (bed elevation), ``velocity``, ``froude``,
+    ``velocity_head``, ``specific_energy``, ``energy_grade`` (elevation of the
+    energy grade line), ``friction_slope``, ``regime`` ("subcritical",
+    "critical", "supercritical") and ``segment`` (index). At a hydraulic jump
+    two stations share one x: the supercritical then the subcritical depth.
+
+    Other members: ``jumps`` (list of :class:`~gvflow.jumps.Jump`),
+    ``profile_types`` (labels of the profile pieces, upstream to downstream),
+    ``pieces`` (the pieces with their extents), ``controls`` (notes on what
+    governs where, unused controls, drowned or swept-out jumps),
+    ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
+    """
+
+    def __init__(self, *, reach, method, x, depth, regime, segment, bed, jumps, pieces, controls,
+                 normal_depths, critical_depths, slope_classes, props):
+        units = reach.resolved_units
+        a, _, t, _, sf = props
+        q = reach.discharge
+        self.reach = reach
+        self.method = method
+        self.units = units
+        self.discharge = q
+        self.x = x
+        self.depth = depth
+        self.bed = bed
+        self.stage = bed + depth
+        self.velocity = q / a
+        self.froude = self.velocity * np.sqrt(t / (units.g * a))
+        self.velocity_head = reach.alpha * self.velocity ** 2 / (2.0 * units.g)
+        self.specific_energy = depth + self.velocity_head
+        self.energy_grade = self.stage + self.velocity_head
+        self.friction_slope = sf
+        self.regime = np.array([_REGIME_NAMES[int(r)] for r in regime])
+        self.segment = segment
+        self.jumps = jumps
+        self.pieces = pieces
+        self.profile_types = [p.label for p in pieces]
+        self.controls = controls
+        self.normal_depths = normal_depths
+        self.critical_depths = critical_depths
+        self.slope_classes = slope_classes
+        for name in ("x", "depth", "bed", "stage", "velocity", "froude", "velocity_head", "specific_energy",
+                     "energy_grade", "friction_slope", "regime", "segment"):
+            getattr(self, name).setflags(write=False)
+
+    # -- construction --------------------------------------------------------------------
+    @classmethod
+    def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> "Profile":
+        """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
+        from .profiles.classify import classify
+
+        x = sol.x.astype(float)
+        y = sol.depth[i].astype(float)
+        reg = sol.regime[i].astype(int)
+        seg = sol.segment.astype(int)
+        rows = np.flatnonzero(sol.jump_scenario == i)
+        # insert the two sequent depths of every jump inside a segment
+        ins_at, ins_x, ins_y, ins_r, ins_s = [], [], [], [], []
+        for j in rows:
+            if sol.jump_at_junction[j]:
+                continue
+            a = int(sol.jump_after[j])
+            ins_at += [a + 1, a + 1]
+            ins_x += [sol.jump_x[j]] * 2
+            ins_y += [sol.jump_y1[j], sol.jump_y2[j]]
+            ins_r += [REGIME_SUPER, REGIME_SUB]
+            ins_s += [int(sol.jump_segment[j])] * 2
+        if ins_at:
+            x = np.insert(x, ins_at, ins_x)
+            y = np.insert(y, ins_at, ins_y)
+            reg = np.insert(reg, ins_at, ins_r)
+            seg = np.insert(seg, ins_at, ins_s)
+        # a junction station appears twice; keep one where nothing changes across it
+        dup = np.flatnonzero((np.diff(x) == 0) & (np.diff(seg) != 0))
+        same = np.abs(y[dup + 1] - y[dup]) <= 1e-12 * y[dup]
+        drop = dup[same] + 1
+        x, y, reg, seg = (np.delete(v, drop) for v in (x, y, reg, seg))
+        bed = reach.bed_elevation(x, seg)
+        props = _station_props(sol, i, seg, y)
+
+        q = reach.discharge
+        g = reach.resolved_units.g
+        jumps = []
+        for j in rows:
+            k = int(sol.jump_segment[j])
+            k1 = k - 1 if sol.jump_at_junction[j] else k
+            s1 = sol.segs[k1].take(np.array([i]))
+            s2 = sol.segs[k].take(np.array([i]))
+            y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
+            a1, _, t1, _, _ = s1.properties(np.array([y1]))[:, 0]
+            fr = q / a1 * np.sqrt(t1 / (g * a1))
+            loss = float(s1.specific_energy(np.array([y1]))[0] - s2.specific_energy(np.array([y2]))[0])
+            jumps.append(Jump(x=float(sol.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=float(fr),
+                              energy_loss=loss, length=float(jump_length(y1, y2, max(fr, 1.0))),
+                              kind=jump_type(max(fr, 1.0)), segment=k,
+                              where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
+
+        yn = np.array([s.yn[i] for s in sol.segs])
+        yc = np.array([s.yc[i] for s in sol.segs])
+        classes = [str(c) for c in sol.slope_class[i]]
+        pieces = []
+        # split at segment changes, jumps (repeated x within a segment) and regime changes
+        brk = np.flatnonzero((np.diff(seg) != 0) | ((np.diff(x) == 0) & (np.diff(seg) == 0))) + 1
+        for part in np.split(np.arange(x.size), brk):
+            k = int(seg[part[0]])
+            for want in (REGIME_SUPER, REGIME_SUB):
+                sel = part[reg[part] == want]
+                if sel.size == 0:
+                    continue
+                runs = np.split(sel, np.flatnonzero(np.diff(sel) > 1) + 1)
+                for run in runs:
+                    ys = y[run]
+                    if np.isfinite(yn[k]) and np.all(np.abs(ys - yn[k]) <= UNIFORM_TOLERANCE * yn[k]):
+                        continue
+                    label = classify(classes[k], float(np.median(ys)), float(yn[k]), float(yc[k]))
+                    pieces.append(ProfilePiece(label, k, float(x[run[0]]), float(x[run[-1]]),
+                                               _REGIME_NAMES[want]))
+        pieces.sort(key=lambda p: (p.x_start, p.x_end))
+        controls = sorted((ControlNote(float(a), b, c) for a, b, c in sol.notes[i]), key=lambda c: c.x)
+        return cls(reach=reach, method=method, x=x, depth=y, regime=reg, segment=seg, bed=bed, jumps=jumps,
+                   pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc,
+                   slope_classes=classes, props=props)
+
+    # -- queries -------------------------------------------------------------------------
+    def depth_at(self, x):
+        """Depth interpolated linearly between stations at distance(s) ``x`` [length].
+
+        At a jump the downstream (subcritical) depth is returned for x at the jump.
+        """
+        xq = finite_array(x, "x")
+        if np.any((xq < self.x[0] - 1e-9) | (xq > self.x[-1] + 1e-9)):
+            from .errors import InvalidInputError
+
+            raise InvalidInputError(f"x must lie within the reach, 0 to {self.x[-1]:g}; got {x!r}")
+        return scalar_or_array(np.interp(xq, self.x, self.depth))
+
+    def stage_at(self, x):
+        """Water-surface elevation interpolated at ``x`` [length]."""
+        xq = finite_array(x, "x")
+        return scalar_or_array(np.asarray(self.depth_at(xq)) + self.reach.bed_elevation(xq))
+
+    @property
+    def success(self) -> bool:
+        """True: a Profile only exists for a solved reach (failures raise)."""
+        return True
+
+    def table(self) -> np.ndarray:
+        """Station table as a NumPy structured array (one row per station)."""
+        names = ["x", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
+                 "friction_slope"]
+        dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
+        out = np.empty(self.x.size, dtype=dt)
+        for n in names:
+            out[n] = getattr(self, n)
+        out["segment"] = self.segment
+        out["regime"] = self.regime
+        return out
+
+    def to_pandas(self):
+        """Station table as a pandas DataFrame (needs the optional pandas dependency)."""
+        try:
+            import pandas as pd
+        except ImportError:  # pragma: no cover - depends on the environment
+            raise ImportError("to_pandas() needs pandas: pip install 'gvflow[pandas]'") from None
+        return pd.DataFrame(self.table())
+
+    def plot(self, ax=None, **kwargs):
+        """Long section of the reach (see :func:`gvflow.plot.plot_profile`); returns the Axes."""
+        from .plot import plot_profile
+
+        return plot_profile(self, ax=ax, **kwargs)
+
+    # -- reports -------------------------------------------------------------------------
+    def summary(self, stations: int = 12) -> str:
+        """A readable multi-line report: segments, controls, jumps, profile types, station table."""
+        u = self.units
+        L = u.length
+        lines = [f"Water-surface profile: Q = {self.discharge:g} {u.discharge}, {len(self.reach.segments)} "
+                 f"segment(s), {self.x[-1]:g} {L} long, method {self.method}"]
+        lines.append("")
+        lines.append(f"{'seg':>3} {'x from':>9} {'x to':>9} {'slope':>9} {'class':>10} {'yn':>8} {'yc':>8}")
+        xb = self.reach.boundaries
+        for k, s in enumerate(self.reach.segments):
+            yn = "-" if not np.isfinite(self.normal_depths[k]) else f"{self.normal_depths[k]:.3f}"
+            lines.append(f"{k:>3} {xb[k]:>9.2f} {xb[k + 1]:>9.2f} {s.slope:>9.5f} {self.slope_classes[k]:>10} "
+                         f"{yn:>8} {self.critical_depths[k]:>8.3f}")
+        lines.append("")
+        lines.append("Profile types: " + (", ".join(f"{p.label} (seg {p.segment}, x {p.x_start:.1f}-{p.x_end:.1f})"
+                                                   for p in self.pieces) or "uniform flow only"))
+        if self.jumps:
+            for jp in self.jumps:
+                lines.append(f"Hydraulic jump at x = {jp.x:.2f} {L}: y1 = {jp.upstream_depth:.3f}, "
+                             f"y2 = {jp.downstream_depth:.3f} {L}, F1 = {jp.froude:.2f} ({jp.kind}), "
+                             f"head loss {jp.energy_loss:.3f} {L}, length about {jp.length:.1f} {L}")
+        else:
+            lines.append("Hydraulic jumps: none in the reach")
+        for c in self.controls:
+            lines.append(f"Control at x = {c.x:.2f} {L}: {c.kind}: {c.text}")
+        lines.append("")
+        idx = np.unique(np.linspace(0, self.x.size - 1, min(stations, self.x.size)).round().astype(int))
+        idx = np.union1d(idx, np.flatnonzero(np.diff(self.x) == 0))
+        idx = np.union1d(idx, np.flatnonzero(np.diff(self.x) == 0) + 1)
+        lines.append(f"{'x':>9} {'bed':>9} {'depth':>8} {'stage':>9} {'V':>7} {'Fr':>6} {'regime':>13}")
+        for j in idx:
+            lines.append(f"{self.x[j]:>9.2f} {self.bed[j]:>9.3f} {self.depth[j]:>8.3f} {self.stage[j]:>9.3f} "
+                         f"{self.velocity[j]:>7.3f} {self.froude[j]:>6.2f} {self.regime[j]:>13}")
+        lines.append(f"({L}, {u.velocity}; {self.x.size} stations in all)")
+        return "\n".join(lines)
+
+    def __repr__(self):
+        jumps = ", ".join(f"x={j.x:.2f}" for j in self.jumps) or "none"
+        return (f"<Profile Q={self.discharge:g} {self.units.discharge}, {self.x.size} stations over "
+                f"{self.x[-1]:g} {self.units.length}, types {self.profile_types}, jumps: {jumps}, "
+                f"depth {self.depth.min():.3f}-{self.depth.max():.3f} {self.units.length}>")
