@@ -384,8 +384,7 @@ def _refine(jumps, marcher, seg, x, sub_y, k):
         return sub.specific_force(ys) - sub.specific_force(yb)
 
     span = x_hi - x_lo
-    xj = bracketed_root(fun, x_lo, x_hi, rtol=0.0, atol=1e-10 * float(np.max(span)) + 1e-12,
-                        what="jump location")
+    xj = bracketed_root(fun, x_lo, x_hi, rtol=0.0, atol=1e-10 * span + 1e-12, what="jump location")
     ys, yb = depths(xj)
     for r, j in enumerate(rows):
         s, _, _, _, kk, aft, junc = jumps[j]
