@@ -264,8 +264,9 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         act = np.flatnonzero(np.isfinite(sup_state))
         if act.size:
             xs = x[i0:i0 + m]
-            ysup, csup = _march_with_fallback(marcher, seg.take(act), xs, sup_state[act],
-                                              np.zeros(act.size, bool), SUPER, can_sup_start[k][act])
+            from_critical = np.abs(sup_state[act] - seg.yc[act]) <= 1e-12 * seg.yc[act]
+            ysup, csup = _march_with_fallback(marcher, seg.take(act), xs, sup_state[act], from_critical, SUPER,
+                                              can_sup_start[k][act])
             msup = seg.take(act).specific_force(ysup)
             msub = sub_M[act, i0:i0 + m]
             sup_wins = msup >= msub * (1 - _M_TOL)
