@@ -309,12 +309,31 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 nxt[idx] = yt
                 carried[idx] = True
             j0 = bounds[k + 1][0]
-            restart = np.isnan(nxt) & sub_c[:, j0] & can_sup_start[k + 1]
-            nxt = np.where(restart, segs[k + 1].yc, nxt)
-            for s in np.flatnonzero(restart):
-                notes[s].append((float(x[j0]), "critical control",
-                                 "critical depth where the bed steepens (the flow passes from subcritical "
-                                 "to supercritical)"))
+            i_end = i0 + m - 1
+            nseg1 = segs[k + 1]
+            sub_end = np.isnan(nxt) & (regime[:, i_end] != REGIME_SUPER)
+            # critical depth at the end of segment k: a choke (the next section needs more energy)
+            # or a brink; the flow leaves it supercritical into segment k + 1
+            crit_up = sub_end & sub_c[:, i_end]
+            # critical depth at the head of a steep segment k + 1
+            crit_dn = sub_end & ~crit_up & sub_c[:, j0] & can_sup_start[k + 1]
+            if np.any(crit_up):
+                idx = np.flatnonzero(crit_up)
+                yt, _ = _transfer(seg.take(idx), nseg1.take(idx), seg.yc[idx], SUPER)
+                nxt[idx] = yt
+                carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
+            nxt = np.where(crit_dn, nseg1.yc, nxt)
+            changed = seg.spec != nseg1.spec
+            for s in np.flatnonzero(crit_up | crit_dn):
+                if crit_up[s] and changed and classes[s, k] != "steep":
+                    text = (f"choke: critical depth at the end of segment {k}, where segment {k + 1}'s section "
+                            "needs more specific energy than the approaching flow carries; the water upstream "
+                            f"rises to {depth[s, i0]:.3f} {units.length} at x = {x[i0]:.2f}")
+                    notes[s].append((float(x[j0]), "choke", text))
+                else:
+                    notes[s].append((float(x[j0]), "critical control",
+                                     "critical depth where the bed steepens (the flow passes from subcritical "
+                                     "to supercritical)"))
         elif act.size:
             for r in np.flatnonzero(gov_sup_end):
                 s = act[r]

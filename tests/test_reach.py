@@ -310,3 +310,27 @@ def test_property_mild_reach_depths_are_positive_and_subcritical(slope, tail, q)
     # monotone toward normal depth going upstream
     gap = np.abs(p.depth - yn)
     assert np.all(np.diff(gap) >= -1e-12)
+
+
+def test_contraction_chokes_and_raises_the_upstream_depth():
+    """A narrow mild section needing more energy than the approach flow has goes critical at its exit.
+
+    Checks from closed forms (rectangle: yc = (q²/g)^(1/3), E_min = 1.5 yc; Chow 1959, §3-2): critical
+    depth at the exit of the narrow section, and the supercritical depth leaving it into the wide
+    channel has the same specific energy, 1.5 yc.
+    """
+    wide, narrow = gv.Rectangular(width=6.0), gv.Rectangular(width=1.2)
+    reach = gv.Reach(segments=[seg(300.0, 0.001, wide), seg(30.0, 0.001, narrow), seg(300.0, 0.001, wide)],
+                     discharge=Q)
+    p = reach.solve()
+    assert [c.kind for c in p.controls if c.kind == "choke"] == ["choke"]
+    yc_n = yc_rect(b=1.2)
+    at = np.flatnonzero(np.isclose(p.x, 330.0))
+    assert p.depth[at[0]] == pytest.approx(yc_n, rel=1e-9)
+    e_min = 1.5 * yc_n
+    y_super = brentq(lambda y: y + (Q / 6.0) ** 2 / (2 * G * y * y) - e_min, 1e-3, yc_rect(b=6.0))
+    assert p.depth[at[1]] == pytest.approx(y_super, rel=1e-8)
+    assert p.profile_types == ["M1", "M2", "M3"]
+    assert len(p.jumps) == 1 and p.jumps[0].segment == 2
+    # upstream of the choke the wide channel stands well above its own normal depth
+    assert p.depth[0] > p.normal_depths[0] * 1.5
