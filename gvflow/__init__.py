@@ -43,6 +43,25 @@ from .uniform import (
     uniform_velocity,
 )
 from .units import SI, US, Units
+from .profiles import (
+    PROFILE_SHAPES,
+    ProfileTrace,
+    classify,
+    direct_step,
+    gvf_inverse_slope,
+    gvf_slope,
+    gvf_terms,
+    profile_type,
+    trace_profile,
+)
+from .verify import (
+    bresse_length,
+    depth_at_distance,
+    direct_integration_length,
+    hydraulic_exponents,
+    profile_length,
+    varied_flow_function,
+)
 from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
 from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
 from .reach import Reach, Segment
@@ -68,6 +87,11 @@ __all__ = [
     "normal_depth", "critical_depth", "critical_slope", "froude_number", "specific_energy",
     "specific_force", "sequent_depth", "alternate_depth", "slope_class", "uniform_discharge",
     "uniform_velocity", "conduit_capacity", "ConduitCapacity", "CRITICAL_SLOPE_TOLERANCE",
+    # profile engine and checks
+    "gvf_slope", "gvf_inverse_slope", "gvf_terms", "classify", "profile_type", "PROFILE_SHAPES",
+    "trace_profile", "ProfileTrace", "direct_step",
+    "profile_length", "depth_at_distance", "bresse_length", "varied_flow_function", "hydraulic_exponents",
+    "direct_integration_length",
     # design
     "best_hydraulic_section", "BestSection",
 ]
