@@ -1,0 +1,84 @@
+"""Hydraulic structures that set the controls of a reach.
+
+Pure, vectorised relations for weirs, culverts, sluice gates, free
+overfalls, pools at the upstream end, and tabulated stage-discharge
+relations. Each function states its source; discharges may be NumPy arrays.
+
+>>> import gvflow.structures as st
+>>> round(st.rectangular_weir_head(0.6161, crest_width=2.0, crest_height=1.0), 4)
+0.3
+"""
+
+from .culverts import (
+    INLET_TYPES,
+    BoxBarrel,
+    CircularBarrel,
+    CulvertHeadwater,
+    CulvertInlet,
+    DownstreamChannel,
+    OutletControl,
+    culvert_headwater,
+    inlet_control_headwater,
+    outlet_control_headwater,
+)
+from .gates import (
+    DEFAULT_CONTRACTION,
+    gate_contracted_depth,
+    gate_discharge,
+    gate_discharge_coefficient,
+    gate_flows_free,
+    gate_free_flow_limit,
+    gate_jet_depth,
+    gate_upstream_depth,
+)
+from .overfall import (
+    BRINK_DEPTH_RATIO,
+    CRITICAL_SECTION_DISTANCE_RANGE,
+    brink_depth,
+    critical_section_distance,
+    discharge_from_brink_depth,
+)
+from .pool import PoolOutflow, critical_entry_head, entrance_depth, pool_discharge
+from .rating import RatingTable
+from .weirs import (
+    BROAD_CRESTED_COEFFICIENT,
+    BROAD_CRESTED_MODULAR_LIMIT,
+    DEFAULT_MAX_SUBMERGENCE,
+    VILLEMONTE_EXPONENT,
+    broad_crested_weir_discharge,
+    broad_crested_weir_head,
+    kindsvater_carter_coefficients,
+    kindsvater_carter_discharge,
+    kindsvater_carter_head,
+    kindsvater_shen_coefficients,
+    rectangular_weir_discharge,
+    rectangular_weir_head,
+    rehbock_coefficient,
+    v_notch_discharge,
+    v_notch_head,
+    villemonte_factor,
+)
+
+__all__ = [
+    # weirs
+    "rehbock_coefficient", "rectangular_weir_discharge", "rectangular_weir_head",
+    "kindsvater_carter_coefficients", "kindsvater_carter_discharge", "kindsvater_carter_head",
+    "kindsvater_shen_coefficients", "v_notch_discharge", "v_notch_head",
+    "broad_crested_weir_discharge", "broad_crested_weir_head", "villemonte_factor",
+    "VILLEMONTE_EXPONENT", "DEFAULT_MAX_SUBMERGENCE", "BROAD_CRESTED_COEFFICIENT",
+    "BROAD_CRESTED_MODULAR_LIMIT",
+    # culverts
+    "CircularBarrel", "BoxBarrel", "DownstreamChannel", "CulvertInlet", "INLET_TYPES",
+    "inlet_control_headwater", "outlet_control_headwater", "culvert_headwater",
+    "OutletControl", "CulvertHeadwater",
+    # gates
+    "DEFAULT_CONTRACTION", "gate_jet_depth", "gate_discharge_coefficient", "gate_free_flow_limit",
+    "gate_flows_free", "gate_contracted_depth", "gate_discharge", "gate_upstream_depth",
+    # free overfall
+    "BRINK_DEPTH_RATIO", "CRITICAL_SECTION_DISTANCE_RANGE", "brink_depth", "discharge_from_brink_depth",
+    "critical_section_distance",
+    # pool
+    "entrance_depth", "critical_entry_head", "pool_discharge", "PoolOutflow",
+    # rating
+    "RatingTable",
+]

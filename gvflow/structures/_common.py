@@ -1,0 +1,60 @@
+"""Helpers shared by the structure modules (private)."""
+
+from __future__ import annotations
+
+import numpy as np
+from pydantic import BaseModel, ConfigDict, ValidationError
+
+from .._roots import bracketed_root, expand_upper
+from .._validate import invalid_input_from
+from ..units import Units
+
+#: Standard gravity in m/s² (CGPM 1901), used to express published metre constants in any unit system.
+_G_SI = 9.80665
+_FEET_PER_METRE = 1.0 / 0.3048
+
+
+def length_per_metre(units: Units) -> float:
+    """Length units per metre for ``units``.
+
+    Some published coefficients carry a length (the head and width
+    corrections of the thin-plate weir formulas, in millimetres). They are
+    stored in metres and scaled with this factor: 1 for metres, 3.28084 for
+    feet; for a custom unit system whose length label is neither, the factor
+    is inferred from its gravity, g / 9.80665 m/s².
+    """
+    label = units.length.strip().lower()
+    if label in ("m", "metre", "meter", "metres", "meters"):
+        return 1.0
+    if label in ("ft", "foot", "feet"):
+        return _FEET_PER_METRE
+    return units.g / _G_SI
+
+
+def solve_increasing(fun, target, lo, hi, *, what: str, limit: float = np.inf):
+    """Solve fun(x) = target for x >= lo, fun increasing, vectorised.
+
+    ``hi`` is a first upper guess, doubled until the residual changes sign.
+    """
+    target = np.asarray(target, dtype=float)
+    lo, hi = np.broadcast_arrays(np.asarray(lo, dtype=float), np.asarray(hi, dtype=float))
+    lo = np.broadcast_to(lo, target.shape).astype(float)
+    hi = np.broadcast_to(hi, target.shape).astype(float)
+
+    def residual(x):
+        return fun(x) - target
+
+    hi = expand_upper(residual, lo, hi, limit=limit, what=what)
+    return bracketed_root(residual, lo, hi, rtol=1e-13, what=what)
+
+
+class FrozenModel(BaseModel):
+    """Immutable pydantic model whose construction errors are InvalidInputError."""
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    def __init__(self, /, **data):
+        try:
+            super().__init__(**data)
+        except ValidationError as exc:
+            raise invalid_input_from(exc, type(self).__name__) from None
