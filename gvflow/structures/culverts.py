@@ -532,7 +532,17 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
         if sel.size:
             qs, rs, ls = q[sel], rhs[sel], h_low[sel]
             top = np.maximum(rs + dx * sf_max[sel], ls) + 1e-9 * d
-            h[sel] = bracketed_root(lambda z, qs=qs, rs=rs: step_residual(z, qs, rs), ls, top, rtol=1e-15,
+            # The residual rises with depth on the subcritical branch at a rate near 1 away from
+            # critical depth: try a tight bracket around the previous depth first.
+            hp = h[sel]
+            fp = step_residual(hp, qs, rs)
+            w = 4.0 * np.abs(fp) + 1e-12 * d
+            lo_t = np.maximum(hp - w, ls)
+            hi_t = np.minimum(hp + w, top)
+            tight = (step_residual(lo_t, qs, rs) <= 0) & (step_residual(hi_t, qs, rs) >= 0)
+            lo_b = np.where(tight, lo_t, ls)
+            hi_b = np.where(tight, hi_t, top)
+            h[sel] = bracketed_root(lambda z, qs=qs, rs=rs: step_residual(z, qs, rs), lo_b, hi_b, rtol=1e-15,
                                     what="barrel profile")
         full_all &= h >= d
     a_in = barrel._area_perimeter(h)[0]

@@ -2,7 +2,7 @@
 
 Free flow: the jet leaves under the gate and contracts to the vena contracta
 depth y2 = Cc a; energy is conserved from the upstream section to the vena
-contracta (Henderson 1966, *Open Channel Flow*, §6.? sluice gates; from
+contracta (Henderson 1966, *Open Channel Flow*, ch. 6, sluice gates; from
 memory - verify), which gives
 
     q = Cd a sqrt(2 g y1),  Cd = Cc / sqrt(1 + Cc a / y1).

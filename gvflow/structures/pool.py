@@ -6,9 +6,9 @@ the energy equation holds with an entrance loss ke V²/2g:
 
     H = y + (1 + ke) Q² / (2 g A(y)²)
 
-(Chow 1959, *Open-Channel Hydraulics*, §§10-? and 11-? on flow from a
-reservoir into a channel; Henderson 1966, *Open Channel Flow*, §4.? ; from
-memory - verify). For a mild channel the entrance depth is subcritical and,
+(Chow 1959, *Open-Channel Hydraulics*, ch. 10-11, flow from a reservoir
+into a channel; Henderson 1966, *Open Channel Flow*, ch. 4; from memory -
+verify). For a mild channel the entrance depth is subcritical and,
 in a long channel, equal to the normal depth; for a steep channel the flow
 passes through critical depth at the entrance and the channel cannot draw
 more water than that critical section lets through.

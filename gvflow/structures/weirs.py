@@ -316,7 +316,7 @@ def rectangular_weir_discharge(head, crest_width, crest_height, *, end_contracti
     -----
     Rehbock's coefficient as given by Henderson (1966, ch. 6; from memory -
     verify); the contraction correction b' = b - 0.1 n h is Francis's (1883),
-    as given by Chow (1959, *Open-Channel Hydraulics*, §14-?; from memory -
+    as given by Chow (1959, *Open-Channel Hydraulics*, ch. 14; from memory -
     verify). The approach velocity is inside Cd through h/P.
 
     Examples
