@@ -273,6 +273,38 @@ class WideRectangular(_TrapezoidLike):
         return (KIND_WIDE, self.width, 0.0, 0.0)
 
 
+def _theta_minus_sin(theta):
+    """theta - sin(theta) without cancellation at small angles (Taylor series below 0.25 rad)."""
+    t2 = theta * theta
+    series = theta * t2 / 6.0 * (1.0 - t2 / 20.0 * (1.0 - t2 / 42.0 * (1.0 - t2 / 72.0 * (
+        1.0 - t2 / 110.0 * (1.0 - t2 / 156.0)))))
+    return np.where(theta < 0.25, series, theta - np.sin(theta))
+
+
+def _binomial_moment_weights(n=16):
+    # w_k = c_k * 2/((2k+3)(2k+5)), c_k the coefficients of sqrt(1 - x) = sum c_k x^k
+    c, out = 1.0, []
+    for k in range(n):
+        out.append(c * 2.0 / ((2 * k + 3) * (2 * k + 5)))
+        c *= (k - 0.5) / (k + 1)
+    return tuple(out)
+
+
+_MOMENT_WEIGHTS = _binomial_moment_weights()
+
+
+def _circle_moment_series(y, d, s):
+    """First moment of a shallow circular segment without cancellation (y/D small).
+
+    A ybar = int_0^y (y - eta) 2 sqrt(eta (D - eta)) d eta; with eta = y u² this is
+    4 sqrt(D) y^(5/2) int_0^1 (1 - u²) u² sqrt(1 - s u²) du, s = y/D, summed term by term.
+    """
+    acc = np.zeros_like(s)
+    for w in reversed(_MOMENT_WEIGHTS):
+        acc = acc * s + w
+    return 4.0 * math.sqrt(d) * y * y * np.sqrt(y) * acc
+
+
 class Circular(Section):
     """Circular conduit flowing partly full (depth at most the diameter).
 
@@ -306,13 +338,19 @@ class Circular(Section):
 
     def _geometry(self, y):
         d = self.diameter
-        theta = 2.0 * np.arccos(np.clip(1.0 - 2.0 * y / d, -1.0, 1.0))
+        # theta = 2 arccos(1 - 2y/D) = 4 arcsin(sqrt(y/D)); the arcsin forms, taken from the
+        # nearer of invert and crown, keep full relative precision at very small depths and
+        # near the crown, where arccos loses digits.
+        s = np.clip(y / d, 0.0, 1.0)
+        theta = np.where(s <= 0.5, 4.0 * np.arcsin(np.sqrt(s)),
+                         2.0 * np.pi - 4.0 * np.arcsin(np.sqrt(1.0 - s)))
         half = 0.5 * theta
-        a = d * d * (theta - np.sin(theta)) / 8.0
+        a = d * d * _theta_minus_sin(theta) / 8.0
         p = d * half
-        t = d * np.sin(half)
-        m = a * (y - 0.5 * d) + d ** 3 * np.sin(half) ** 3 / 12.0
+        # T = D sin(theta/2) = 2 sqrt(y (D - y)): exactly zero at the crown
         root = np.sqrt(np.maximum(y * (d - y), 0.0))
+        t = 2.0 * root
+        m = np.where(s < 0.05, _circle_moment_series(y, d, s), a * (y - 0.5 * d) + t ** 3 / 12.0)
         with np.errstate(divide="ignore", invalid="ignore"):
             dt = np.where(root > 0, (d - 2.0 * y) / np.where(root > 0, root, 1.0), -np.inf)
             dp = np.where(root > 0, d / np.where(root > 0, root, 1.0), np.inf)

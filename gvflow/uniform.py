@@ -50,7 +50,10 @@ def _shrink_lower(fun, lo, *, what: str, increasing: bool = True):
     """
     lo = np.array(lo, dtype=float, copy=True)
     for _ in range(25):
-        f = np.asarray(fun(lo))
+        with np.errstate(all="ignore"):
+            f = np.asarray(fun(lo))
+        if not np.all(np.isfinite(f)):
+            break  # below the depths the section's geometry resolves in floating point
         need = f > 0 if increasing else f < 0
         if not np.any(need):
             return lo
@@ -183,7 +186,7 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
     u = resolve_units(units)
     q = positive_array(discharge, "discharge")
     a_ = float(positive_array(alpha, "alpha"))
-    target = np.log(a_ * q * q / u.g)
+    target = math.log(a_ / u.g) + 2.0 * np.log(q)  # log form: no underflow of q² for tiny q
 
     def fun(y):
         a, _, t = section._geometry(y)[:3]
