@@ -209,7 +209,8 @@ def best_hydraulic_section(shape: str, discharge, slope, roughness, units: Units
 
     References
     ----------
-    Chow, V. T. (1959). *Open-Channel Hydraulics*. McGraw-Hill, §7-6 and table 7-1.
+    Chow, V. T. (1959). *Open-Channel Hydraulics*. McGraw-Hill, ch. 7 (best hydraulic
+    sections; table 7-1, numbering from memory).
 
     Examples
     --------

@@ -5,6 +5,7 @@ sections; exact, reproducible by calculus): rectangle y = b/2; trapezoid half a 
 (z = 1/sqrt 3, b = 2y/sqrt 3); triangle with a 90° vertex (z = 1); all but the triangle have
 R = y/2. gvflow finds the optimum by minimising the wetted perimeter over the shape parameters
 with its own normal-depth solver, so these closed forms are independent of the code under test.
+(Section and table numbers of Chow 1959 are cited from memory; the optima are exact.)
 """
 
 import math

@@ -5,7 +5,7 @@ Sources: the geometric elements of Chow, *Open-Channel Hydraulics* (1959), table
 can be obtained a second, independent way (area as the integral of the top width,
 first moment as the integral of (y - eta) T(eta), wetted perimeter as an arc length)
 it is computed here by adaptive quadrature (scipy.integrate.quad) rather than from
-the same closed form the library uses.
+the same closed form the library uses. (Table numbers of Chow 1959 are cited from memory.)
 """
 
 import math

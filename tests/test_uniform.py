@@ -2,7 +2,9 @@
 
 Sources are named beside each check. "exact" marks a closed form or an optimisation that
 can be reproduced to machine precision; "(from memory)" marks a published value recalled
-rather than read from the page (REFERENCES.md keeps the same marks).
+rather than read from the page (REFERENCES.md keeps the same marks). Chapter, section,
+table and equation numbers cited for Chow (1959) are from memory; the formulas themselves
+are standard and written out beside each check.
 """
 
 import math
