@@ -14,6 +14,7 @@ from .errors import (
     GVFlowWarning,
     InvalidInputError,
     NoSolutionError,
+    ReachFileError,
 )
 from .friction import (
     COMPOSITE_ROUGHNESS_METHODS,
@@ -66,6 +67,8 @@ from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformF
 from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
 from .reach import Reach, Segment
 from .result import ControlNote, Profile, ProfilePiece
+from .io import demo_reach, parse_reach, reach_schema, read_reach, write_profile_csv, write_reach
+from .plot import plot_profile
 
 __version__ = "0.1.0"
 
@@ -74,10 +77,12 @@ __all__ = [
     "Reach", "Segment", "FixedDepth", "FixedStage", "UniformFlow", "CriticalFlow", "SluiceGate",
     "Profile", "ProfilePiece", "ControlNote", "Jump",
     "belanger_ratio", "jump_energy_loss_rectangular", "jump_length", "jump_type",
+    # reach files, tables, plots
+    "read_reach", "write_reach", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach", "plot_profile",
     # units and errors
     "Units", "SI", "US",
     "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",
-    "GVFlowWarning",
+    "ReachFileError", "GVFlowWarning",
     # sections
     "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular",
     # friction

@@ -1,41 +1,128 @@
-"""The ``gvflow`` command."""
+"""The ``gvflow`` command.
+
+::
+
+    gvflow demo [--method standard_step|ivp] [--steps N] [--plot FILE.png] [--csv FILE]
+    gvflow run REACH.json [--method standard_step|ivp] [--steps N] [--plot FILE.png] [--csv FILE]
+    gvflow schema
+
+``demo`` solves the bundled demo reach, ``run`` a reach file (see
+:mod:`gvflow.io`); both print the profile summary (segments, profile types,
+jumps, controls and a short station table) and the safety caution, and can
+write the long-section figure and the full station table. ``schema`` prints
+the JSON schema of reach files. Bad input ends the command with exit code 2
+and a one-line message on standard error.
+"""
 
 from __future__ import annotations
 
 import argparse
+import json
 import sys
 
 CAUTION = (
     "CAUTION: results are for planning and checking. Verify them against local codes and "
-    "have a licensed engineer review any design."
+    "standards, and have a licensed engineer review any design that relies on them."
 )
 
+METHODS = ("standard_step", "ivp")
 
-def _demo(args) -> int:
-    import gvflow as gv
 
-    sec = gv.Trapezoidal(bottom_width=4.0, side_slope=2.0)
-    print("gvflow demo: uniform and critical flow in a 4 m trapezoidal canal (z = 2, n = 0.022)")
-    print(f"{'Q [m³/s]':>9} {'slope':>8} {'yn [m]':>8} {'yc [m]':>8} {'class':>9}")
-    for q in (5.0, 20.0, 60.0):
-        for s in (0.0005, 0.02):
-            yn = gv.normal_depth(sec, q, s, 0.022)
-            yc = gv.critical_depth(sec, q)
-            print(f"{q:9.1f} {s:8.4f} {yn:8.3f} {yc:8.3f} {gv.slope_class(sec, q, s, 0.022):>9}")
+def _solve_and_report(reach, args) -> int:
+    from .io import write_profile_csv
+
+    profile = reach.solve(method=args.method, n_steps=args.steps)
+    if reach.name:
+        print(reach.name)
+    print(profile.summary())
+    written = []
+    if args.plot:
+        _write_plot(profile, args.plot)
+        written.append(f"Long section written to {args.plot}")
+    if args.csv:
+        write_profile_csv(profile, args.csv)
+        written.append(f"Station table ({profile.x.size} stations) written to {args.csv}")
     print()
+    for line in written:
+        print(line)
+    if written:
+        print()
     print(CAUTION)
     return 0
 
 
+def _write_plot(profile, path) -> None:
+    from matplotlib.figure import Figure
+
+    from .plot import plot_profile
+
+    fig = Figure(figsize=(10.0, 4.8), layout="constrained")
+    plot_profile(profile, fig.add_subplot())
+    fig.savefig(path, dpi=150)
+
+
+def _demo(args) -> int:
+    from .io import demo_reach
+
+    return _solve_and_report(demo_reach(), args)
+
+
+def _run(args) -> int:
+    from .io import read_reach
+
+    return _solve_and_report(read_reach(args.reach), args)
+
+
+def _schema(args) -> int:
+    from .io import reach_schema
+
+    print(json.dumps(reach_schema(), indent=2))
+    return 0
+
+
+def _parser() -> argparse.ArgumentParser:
+    from . import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="gvflow",
+        description="Gradually varied flow profiles in open channels: solve a reach, print its profile, "
+                    "plot its long section.",
+        epilog=CAUTION)
+    parser.add_argument("--version", action="version", version=f"gvflow {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True, metavar="{demo,run,schema}")
+
+    def solve_options(p):
+        p.add_argument("--method", choices=METHODS, default="standard_step",
+                       help="profile marcher (default: standard_step)")
+        p.add_argument("--steps", type=int, default=100, metavar="N",
+                       help="computation steps per segment, at least 2 (default: 100)")
+        p.add_argument("--plot", metavar="FILE.png", help="write the long-section figure to FILE")
+        p.add_argument("--csv", metavar="FILE", help="write the station table (one row per station) to FILE")
+
+    demo = sub.add_parser("demo", help="solve the bundled demo reach and print a summary",
+                          description="Solve the bundled demo reach (an invented gated canal, steep chute and "
+                                      "stilling reach) and print a summary.")
+    solve_options(demo)
+    demo.set_defaults(func=_demo)
+    run = sub.add_parser("run", help="solve a reach file and print a summary",
+                         description="Solve the reach described in a JSON reach file and print a summary.")
+    run.add_argument("reach", metavar="REACH.json", help="reach file (see 'gvflow schema')")
+    solve_options(run)
+    run.set_defaults(func=_run)
+    schema = sub.add_parser("schema", help="print the JSON schema of reach files",
+                            description="Print the JSON schema (draft 2020-12) of reach files.")
+    schema.set_defaults(func=_schema)
+    return parser
+
+
 def main(argv: list[str] | None = None) -> int:
-    parser = argparse.ArgumentParser(prog="gvflow", description="Gradually varied flow profiles.")
-    sub = parser.add_subparsers(dest="command", required=True)
-    sub.add_parser("demo", help="solve the bundled demo and print a summary")
-    args = parser.parse_args(argv)
+    """Run the ``gvflow`` command with ``argv`` (default: the process arguments); return the exit code."""
+    args = _parser().parse_args(argv)
     try:
-        return {"demo": _demo}[args.command](args)
-    except ValueError as exc:
-        print(f"gvflow: error: {exc}", file=sys.stderr)
+        return args.func(args)
+    except (ValueError, OSError) as exc:
+        message = " ".join(str(exc).split())
+        print(f"gvflow: error: {message}", file=sys.stderr)
         return 2
 
 

@@ -13,6 +13,7 @@ __all__ = [
     "NoSolutionError",
     "ConvergenceError",
     "ControlError",
+    "ReachFileError",
     "GVFlowWarning",
 ]
 
@@ -56,6 +57,14 @@ class ConvergenceError(GVFlowError):
 
 class ControlError(GVFlowError):
     """A boundary control cannot be applied as given (wrong regime, missing, inconsistent)."""
+
+
+class ReachFileError(InvalidInputError):
+    """A reach file cannot be read: not JSON, or a field is missing or out of range.
+
+    The message names the file and the path of each bad field
+    (``segments.1.section.width``).
+    """
 
 
 class GVFlowWarning(UserWarning):
