@@ -18,7 +18,7 @@ T = D sin(theta/2) (Chow, *Open-Channel Hydraulics*, 1959, table 2-1).
 from __future__ import annotations
 
 import math
-from typing import Annotated, ClassVar, Literal, Optional, Union
+from typing import Annotated, ClassVar, Literal
 
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
@@ -210,7 +210,7 @@ class Trapezoidal(_TrapezoidLike):
     shape: Literal["trapezoidal"] = "trapezoidal"
     bottom_width: Annotated[float, Field(ge=0, allow_inf_nan=False)]
     side_slope: _Slope
-    side_slope_right: Optional[_Slope] = None
+    side_slope_right: _Slope | None = None
 
     def model_post_init(self, __context) -> None:
         zr = self.side_slope if self.side_slope_right is None else self.side_slope_right
@@ -241,7 +241,7 @@ class Triangular(_TrapezoidLike):
 
     shape: Literal["triangular"] = "triangular"
     side_slope: Annotated[float, Field(gt=0, allow_inf_nan=False)]
-    side_slope_right: Optional[Annotated[float, Field(gt=0, allow_inf_nan=False)]] = None
+    side_slope_right: Annotated[float, Field(gt=0, allow_inf_nan=False)] | None = None
 
     def _bz(self):
         zr = self.side_slope if self.side_slope_right is None else self.side_slope_right
@@ -409,6 +409,6 @@ class Parabolic(Section):
 
 
 AnySection = Annotated[
-    Union[Rectangular, Trapezoidal, Triangular, Circular, Parabolic, WideRectangular],
+    Rectangular | Trapezoidal | Triangular | Circular | Parabolic | WideRectangular,
     Field(discriminator="shape"),
 ]
