@@ -68,6 +68,7 @@ class _Problem:
         self.args = (kind, p0, p1, p2, seg.law, float(seg.coef[index]), float(seg.discharge[index]),
                      seg.slope, u.manning_k, u.g, u.kinematic_viscosity, seg.alpha)
         self.yc = float(seg.yc[index])
+        self.yn = float(seg.yn[index])
         self.ymax = float(seg.section.max_depth)
 
     def dydx(self, x, y):
@@ -96,14 +97,17 @@ class IVPMarcher(Marcher):
     critical_band : float
         Relative distance from critical depth, |y - yc| <= critical_band · yc,
         inside which the march integrates x(y) instead of y(x).
-    max_step : float
-        Largest step ``solve_ivp`` may take [length] (``inf`` by default).
+    max_step : float, optional
+        Largest step ``solve_ivp`` may take [length]. By default a tenth of
+        the distance marched: the dense output that gives the stations is
+        less accurate inside very long steps (which the solver takes where
+        the profile is nearly uniform).
     """
 
     name = "ivp"
 
     def __init__(self, ivp_method: str = "DOP853", rtol: float = 1e-9, atol: float = 1e-12,
-                 critical_band: float = 0.05, max_step: float = math.inf):
+                 critical_band: float = 0.05, max_step: float | None = None):
         if ivp_method not in IVP_METHODS:
             raise InvalidInputError(f"ivp_method must be one of {list(IVP_METHODS)}; got {ivp_method!r}")
         self.ivp_method = ivp_method
@@ -113,7 +117,7 @@ class IVPMarcher(Marcher):
         if cb >= 0.5:
             raise InvalidInputError(f"critical_band must be below 0.5; got {critical_band!r}")
         self.critical_band = cb
-        self.max_step = positive_float(max_step, "max_step") if math.isfinite(max_step) else math.inf
+        self.max_step = None if max_step is None else positive_float(max_step, "max_step")
 
     # ------------------------------------------------------------------ one scenario
     def _pieces(self, prob: _Problem, x0: float, x_end: float, y0: float, branch: int):
@@ -129,6 +133,7 @@ class IVPMarcher(Marcher):
         pieces = []
         x, y = x0, y0
         in_band = abs(y - yc) <= band
+        normal_ahead = False  # normal depth lies between the profile and critical depth
         for _ in range(8):  # at most: in band -> out -> in band -> critical; a few switches
             if x == x_end:
                 return pieces, 0, math.nan, x
@@ -142,6 +147,12 @@ class IVPMarcher(Marcher):
                     target = min(target, prob.ymax)
                 if y == target:
                     return pieces, 1, x, x
+                if math.isfinite(prob.yn) and min(y, target) <= prob.yn <= max(y, target):
+                    # the profile tends to normal depth inside the band and never reaches
+                    # critical depth: x(y) would diverge there, y(x) is regular
+                    in_band = False
+                    normal_ahead = True
+                    continue
 
                 def hit_end(yy, xx, _e=x_end):
                     return xx[0] - _e
@@ -166,18 +177,23 @@ class IVPMarcher(Marcher):
                 continue
             events = []
             edge = yc + branch * band
+            if normal_ahead:
+                edge = yc  # never met: the profile tends to normal depth first
 
             def enter_band(xx, yy, _edge=edge):
                 return yy[0] - _edge
             enter_band.terminal = True
+            enter_band.direction = -branch  # only when moving toward critical depth
             events.append(enter_band)
             if math.isfinite(prob.ymax):
                 def full(xx, yy, _top=prob.ymax):
                     return yy[0] - _top
                 full.terminal = True
+                full.direction = 1.0
                 events.append(full)
             sol = integrate.solve_ivp(prob.dydx, (x, x_end), [y], method=self.ivp_method, rtol=self.rtol,
-                                      atol=self.atol, dense_output=True, events=events, max_step=self.max_step)
+                                      atol=self.atol, dense_output=True, events=events,
+                                      max_step=self.max_step or span / 10.0)
             if sol.status < 0:
                 return pieces, 3, math.nan, x
             xe = float(sol.t[-1])

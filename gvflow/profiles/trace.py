@@ -31,6 +31,8 @@ NORMAL_DEPTH_TOLERANCE = 1e-3
 
 TRACE_METHODS = ("standard_step", "ivp", "direct_step")
 
+_AT_CRITICAL = 1e-9  # a control depth this close (relative) to critical depth is taken as critical
+
 _STATUSES = ("segment end", "normal depth", "critical depth", "conduit full")
 
 
@@ -210,6 +212,8 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
                               f"{section!r} at slope {s0:g}: no normal depth, so no profile type; use a larger "
                               "conduit or a steeper slope")
     sclass = classify_slope(s0, yn, yc, slope_tolerance)
+    if abs(y0 - yc) <= _AT_CRITICAL * yc:  # critical depth computed elsewhere: same depth to round-off
+        y0 = yc
 
     if direction is None:
         if y0 > yc or (y0 == yc and sclass != "steep"):
@@ -237,8 +241,8 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
         s, y, stop = _trace_stations(seg, y0, yn, branch, length, n_steps * sub, normal_tolerance, marcher)
     s, y = _thin(s, y, substeps if method == "direct_step" or sub > 1 else 1, stop)
 
-    # label from a depth strictly inside the traced piece where there is one
-    rep = float(y[1]) if y.size > 1 else y0
+    # label from a depth strictly inside the traced piece (mid first step) where there is one
+    rep = 0.5 * float(y[0] + y[1]) if y.size > 1 else y0
     label = classify(sclass, rep, yn, yc)
     s_stop = float(s[-1])
     if branch == SUB:
