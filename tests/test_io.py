@@ -251,3 +251,13 @@ def test_demo_file_matches_demo_reach():
 
     text = (resources.files("gvflow") / "data" / "demo.json").read_text()
     assert gv.Reach.model_validate_json(text) == gv.demo_reach()
+
+
+def test_demo_scenario_is_the_same_with_the_ivp_marcher(demo):
+    # Both marchers must tell the same story for the bundled demo (method agreement, not validation):
+    # the same profile types and jumps within 1 % of the reach length (issue 4 acceptance tolerance).
+    other = demo.reach.solve(method="ivp")
+    assert other.profile_types == demo.profile_types
+    assert len(other.jumps) == len(demo.jumps)
+    for a, b in zip(demo.jumps, other.jumps, strict=True):
+        assert abs(a.x - b.x) < 0.01 * demo.x[-1]
