@@ -67,6 +67,8 @@ from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformF
 from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
 from .reach import Reach, Segment
 from .result import ControlNote, Profile, ProfilePiece
+from .batch import SolveManyError, SweepResult, solve_many
+from .uncertainty import MonteCarloResult, Uncertain, monte_carlo
 from .io import demo_reach, parse_reach, reach_schema, read_reach, write_profile_csv, write_reach
 from .plot import plot_profile
 
@@ -99,4 +101,6 @@ __all__ = [
     "direct_integration_length",
     # design
     "best_hydraulic_section", "BestSection",
+    # many scenarios
+    "SweepResult", "solve_many", "SolveManyError", "Uncertain", "monte_carlo", "MonteCarloResult",
 ]

@@ -170,6 +170,20 @@ class Reach(FrozenModel):
         sol = solve_batch(self, marcher, np.array([self.discharge]), None, n_steps, max_step, critical_tolerance)
         return Profile.from_batch(self, sol, 0, method=getattr(marcher, "name", str(method)))
 
+    def sweep(self, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
+              n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = 1e-3,
+              progress=None, chunk_size: int | None = None, **options):
+        """Solve this reach for many discharges and roughness values at once.
+
+        See :func:`gvflow.batch.sweep` for the parameters; returns a
+        :class:`~gvflow.batch.SweepResult`.
+        """
+        from .batch import sweep
+
+        return sweep(self, discharge, roughness=roughness, roughness_scale=roughness_scale, method=method,
+                     n_steps=n_steps, max_step=max_step, critical_tolerance=critical_tolerance,
+                     progress=progress, chunk_size=chunk_size, **options)
+
     def __repr__(self):
         segs = ", ".join(repr(s) for s in self.segments)
         return (f"Reach(discharge={self.discharge:g}, segments=[{segs}], upstream={self.upstream!r}, "

@@ -20,8 +20,9 @@ import numpy as np
 from scipy import optimize
 
 from .._validate import finite_float, positive_array, positive_float
-from ..errors import ConvergenceError, InvalidInputError
+from ..errors import ConvergenceError, InvalidInputError, NoSolutionError
 from ..friction import _kfactor, as_roughness
+from ..uniform import critical_depth, normal_depth
 from ..units import UnitsLike, resolve_units
 
 __all__ = ["direct_step", "FRICTION_AVERAGES"]
@@ -136,15 +137,13 @@ def direct_step(section, discharge, slope, roughness, depth, units: UnitsLike = 
     if not (np.all(d > 0) or np.all(d < 0)):
         raise InvalidInputError("depth must be strictly increasing or strictly decreasing")
     y = section._depth(y)
-    from ..uniform import critical_depth, normal_depth  # noqa: PLC0415 (avoid import cycles at load)
-
     lo, hi = float(y.min()), float(y.max())
     refs = [("critical", float(critical_depth(section, flow.q, flow.u, flow.alpha)))]
     if flow.s0 > 0:
         try:
             refs.append(("normal", float(normal_depth(section, flow.q, flow.s0, flow.rough, flow.u))))
-        except ValueError:
-            pass
+        except NoSolutionError:
+            pass  # a conduit above its uniform-flow capacity: no normal depth to span
     for name, ref in refs:
         if lo < ref < hi or (name == "normal" and ref in (lo, hi)):
             raise InvalidInputError(f"the depths span {name} depth {ref:g}: a direct-step profile stays in one "

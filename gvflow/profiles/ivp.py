@@ -229,8 +229,8 @@ class IVPMarcher(Marcher):
                     elif fb == 0 or fa * fb > 0:
                         out[i] = yb if abs(fb) <= abs(fa) else ya
                     else:
-                        out[i] = optimize.brentq(lambda yy: sol(yy)[0] - xi, ya, yb, xtol=1e-14 * abs(yb),
-                                                 rtol=1e-15)
+                        out[i] = optimize.brentq(lambda yy, _s=sol, _x=xi: _s(yy)[0] - _x, ya, yb,
+                                                 xtol=1e-14 * abs(yb), rtol=1e-15)
         return out
 
     # ------------------------------------------------------------------ contract

@@ -1,0 +1,372 @@
+"""Monte Carlo over uncertain roughness and discharge: envelopes of depth and stage along a reach.
+
+Roughness coefficients are rarely known to better than a range: handbooks
+give a minimum, a normal and a maximum Manning's n for each lining (Chow
+1959, *Open-Channel Hydraulics*, Table 5-6). :func:`monte_carlo` samples
+roughness per segment (and, optionally, the discharge) from such ranges with
+a seeded random generator, solves all the samples as one vectorised sweep
+(:func:`gvflow.batch.sweep`), and summarises them as percentile envelopes of
+depth and water-surface elevation along the reach and the distribution of
+the hydraulic jump's location.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._validate import finite_array, finite_float
+from .batch import SweepResult, sweep
+from .errors import InvalidInputError
+
+__all__ = ["Uncertain", "monte_carlo", "MonteCarloResult", "triangular_quantile"]
+
+_DISTRIBUTIONS = ("triangular", "uniform")
+
+
+def triangular_quantile(probability, minimum, mode, maximum):
+    """Inverse distribution function of the triangular distribution.
+
+    Parameters
+    ----------
+    probability : float or ndarray
+        Cumulative probability u in [0, 1] [-].
+    minimum, mode, maximum : float or ndarray
+        Lower limit a, mode c and upper limit b, a <= c <= b (any unit).
+
+    Returns
+    -------
+    float or ndarray
+        The value x with P(X <= x) = u [unit of the limits].
+
+    Notes
+    -----
+    With F_c = (c - a)/(b - a):
+
+    .. math::
+
+        x = a + \\sqrt{u (b - a)(c - a)} \\quad (u < F_c), \\qquad
+        x = b - \\sqrt{(1 - u)(b - a)(b - c)} \\quad (u \\ge F_c)
+
+    (Kotz, S. & van Dorp, J. R., *Beyond Beta*, World Scientific, 2004,
+    ch. 1). A zero-width range (a = b) returns a.
+
+    Examples
+    --------
+    >>> from gvflow.uncertainty import triangular_quantile
+    >>> float(triangular_quantile(0.5, 0.0, 1.0, 2.0))  # symmetric: the median is the mode
+    1.0
+    >>> triangular_quantile([0.0, 1.0], 0.011, 0.013, 0.016).tolist()
+    [0.011, 0.016]
+    """
+    u = finite_array(probability, "probability")
+    if np.any((u < 0) | (u > 1)):
+        raise InvalidInputError(f"probability must lie in [0, 1]; got {probability!r}")
+    a, c, b = (finite_array(v, n) for v, n in ((minimum, "minimum"), (mode, "mode"), (maximum, "maximum")))
+    if np.any((c < a) | (b < c)):
+        raise InvalidInputError(f"need minimum <= mode <= maximum; got {minimum!r}, {mode!r}, {maximum!r}")
+    width = b - a
+    with np.errstate(divide="ignore", invalid="ignore"):
+        fc = np.where(width > 0, (c - a) / np.where(width > 0, width, 1.0), 0.0)
+    low = a + np.sqrt(u * width * (c - a))
+    high = b - np.sqrt((1.0 - u) * width * (b - c))
+    out = np.where(u < fc, low, high)
+    return float(out) if out.ndim == 0 else out
+
+
+@dataclass(frozen=True)
+class Uncertain:
+    """A quantity known only within a range: its minimum, normal (most likely) and maximum value.
+
+    Parameters
+    ----------
+    minimum, normal, maximum : float
+        The range and its most likely value, minimum <= normal <= maximum,
+        in the unit of the quantity (a roughness coefficient in its law,
+        or a discharge [length³/s]).
+    distribution : {"triangular", "uniform"}
+        "triangular" (default): density rising linearly from the minimum to
+        a peak at the normal value and falling to the maximum. "uniform":
+        every value between minimum and maximum equally likely (the normal
+        value is then only a label).
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> n = gv.Uncertain(0.011, 0.013, 0.016)  # e.g. a handbook's min-normal-max Manning's n
+    >>> round(n.mean, 5)
+    0.01333
+    >>> n.quantile([0.0, 1.0]).tolist()
+    [0.011, 0.016]
+    """
+
+    minimum: float
+    normal: float
+    maximum: float
+    distribution: str = "triangular"
+
+    def __post_init__(self):
+        for name in ("minimum", "normal", "maximum"):
+            object.__setattr__(self, name, finite_float(getattr(self, name), name))
+        if not self.minimum <= self.normal <= self.maximum:
+            raise InvalidInputError(
+                f"Uncertain needs minimum <= normal <= maximum; got {self.minimum:g}, {self.normal:g}, "
+                f"{self.maximum:g}")
+        if self.distribution not in _DISTRIBUTIONS:
+            raise InvalidInputError(f"distribution must be one of {list(_DISTRIBUTIONS)}; got {self.distribution!r}")
+
+    @property
+    def mean(self) -> float:
+        """Mean of the distribution [unit of the quantity]."""
+        if self.distribution == "uniform":
+            return 0.5 * (self.minimum + self.maximum)
+        return (self.minimum + self.normal + self.maximum) / 3.0
+
+    def quantile(self, probability):
+        """Value with cumulative probability ``probability`` (inverse distribution function)."""
+        if self.distribution == "uniform":
+            u = finite_array(probability, "probability")
+            if np.any((u < 0) | (u > 1)):
+                raise InvalidInputError(f"probability must lie in [0, 1]; got {probability!r}")
+            out = self.minimum + u * (self.maximum - self.minimum)
+            return float(out) if out.ndim == 0 else out
+        return triangular_quantile(probability, self.minimum, self.normal, self.maximum)
+
+    def sample(self, size, rng=None):
+        """``size`` random values (a seeded ``numpy.random.Generator``, a seed, or None)."""
+        return self.quantile(np.random.default_rng(rng).random(size))
+
+
+def _roughness_specs(reach, roughness):
+    segs = reach.segments
+    if roughness is None:
+        return None
+    if isinstance(roughness, Uncertain):
+        laws = {s.roughness.law for s in segs}
+        if len(laws) > 1:
+            raise InvalidInputError(
+                f"the segments use different friction laws ({', '.join(sorted(laws))}): give roughness as a "
+                f"list of {len(segs)} Uncertain ranges (None keeps a segment's roughness)")
+        return [roughness] * len(segs)
+    specs = list(roughness)
+    if len(specs) != len(segs):
+        raise InvalidInputError(f"roughness must be one Uncertain or a list of {len(segs)} (one per segment, None "
+                                f"for a fixed segment); got {len(specs)}")
+    for k, s in enumerate(specs):
+        if s is not None and not isinstance(s, Uncertain):
+            raise InvalidInputError(f"roughness[{k}] must be a gv.Uncertain or None; got {s!r}")
+    return specs
+
+
+def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, seed=None, correlated: bool = False,
+                percentiles=(5.0, 50.0, 95.0), method="standard_step", n_steps: int = 100,
+                max_step: float | None = None, critical_tolerance: float = 1e-3, progress=None,
+                chunk_size: int | None = None, **options) -> MonteCarloResult:
+    """Monte Carlo over uncertain roughness and discharge, solved as one vectorised sweep.
+
+    Parameters
+    ----------
+    reach : Reach
+        The reach; what is not sampled keeps the reach's value.
+    samples : int
+        Number of scenarios drawn.
+    roughness : Uncertain or list of (Uncertain or None), optional
+        Range of each segment's roughness coefficient, in the segment's
+        law (Manning's n, Chezy's C or sand roughness ks [length]). One
+        ``Uncertain`` applies to every segment (they must share a law); in a
+        list, None keeps that segment's roughness fixed.
+    discharge : Uncertain, optional
+        Range of the discharge [length³/s].
+    seed : int, numpy.random.Generator or None
+        Seeds the random draws; the same seed gives the same samples (the
+        discharges are drawn first, then the roughness).
+    correlated : bool
+        False (default): the segments' roughness values are drawn
+        independently. True: one probability per scenario sets every
+        segment's value (e.g. the same lining throughout, its n unknown).
+    percentiles : sequence of float
+        Percentiles of the envelopes, in [0, 100].
+    method, n_steps, max_step, critical_tolerance, progress, chunk_size, **options
+        As in :func:`gvflow.batch.sweep`.
+
+    Returns
+    -------
+    MonteCarloResult
+
+    Raises
+    ------
+    InvalidInputError
+        Nothing uncertain given, a non-positive sampled value, bad
+        ``samples`` or ``percentiles``, or a single roughness range on
+        segments with different friction laws.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> reach = gv.Reach(segments=[gv.Segment(length=500.0, slope=0.001, section=gv.Rectangular(width=3.0),
+    ...                                       roughness=0.013)], discharge=5.0, downstream=gv.FixedDepth(2.0))
+    >>> mc = gv.monte_carlo(reach, 200, roughness=gv.Uncertain(0.011, 0.013, 0.016), seed=1)
+    >>> mc.stage_envelope.shape  # (percentiles, stations)
+    (3, 101)
+    >>> bool(all(mc.depth_envelope[0] <= mc.depth_envelope[2]))
+    True
+    """
+    if not isinstance(samples, (int, np.integer)) or isinstance(samples, bool) or samples < 1:
+        raise InvalidInputError(f"samples must be a positive integer; got {samples!r}")
+    pct = finite_array(percentiles, "percentiles")
+    if pct.ndim != 1 or pct.size == 0 or np.any((pct < 0) | (pct > 100)):
+        raise InvalidInputError(f"percentiles must be a non-empty list of numbers in [0, 100]; got {percentiles!r}")
+    if discharge is not None and not isinstance(discharge, Uncertain):
+        raise InvalidInputError(f"discharge must be a gv.Uncertain range; got {discharge!r}")
+    specs = _roughness_specs(reach, roughness)
+    if discharge is None and (specs is None or all(s is None for s in specs)):
+        raise InvalidInputError("nothing is uncertain: give roughness= and/or discharge= as gv.Uncertain ranges")
+    n = int(samples)
+    rng = np.random.default_rng(seed)
+    q = None
+    if discharge is not None:
+        if discharge.minimum <= 0:
+            raise InvalidInputError(f"the discharge range must be positive; got minimum {discharge.minimum:g}")
+        q = discharge.quantile(rng.random(n))
+    coef = None
+    if specs is not None and any(s is not None for s in specs):
+        k = len(specs)
+        u = np.repeat(rng.random((n, 1)), k, axis=1) if correlated else rng.random((n, k))
+        coef = np.empty((n, k))
+        for j, (s, seg) in enumerate(zip(specs, reach.segments)):
+            if s is None:
+                coef[:, j] = seg.roughness.kernel_spec()[1]
+            else:
+                if s.minimum <= 0:
+                    raise InvalidInputError(f"roughness range of segment {j} must be positive; got minimum "
+                                            f"{s.minimum:g}")
+                coef[:, j] = s.quantile(u[:, j])
+    if q is None:
+        q = np.full(n, reach.discharge)
+    result = sweep(reach, q, roughness=coef, method=method, n_steps=n_steps, max_step=max_step,
+                   critical_tolerance=critical_tolerance, progress=progress, chunk_size=chunk_size, **options)
+    return MonteCarloResult(result, pct, roughness_ranges=specs, discharge_range=discharge, correlated=correlated)
+
+
+class MonteCarloResult:
+    """Summary of a Monte Carlo run (result of :func:`monte_carlo`).
+
+    Attributes
+    ----------
+    sweep : SweepResult
+        Every scenario: ``sweep[i]`` is the Profile of sample i.
+    discharge : ndarray, shape (n,)
+        Sampled discharges [length³/s].
+    roughness : ndarray, shape (n, K)
+        Sampled roughness coefficients per segment, in each segment's law.
+    percentiles : ndarray, shape (P,)
+        Percentiles of the envelopes [%].
+    x, bed : ndarray, shape (M,)
+        Stations and bed elevation [length] (shared by all samples).
+    depth_envelope, stage_envelope : ndarray, shape (P, M)
+        Percentiles over the samples of the depth and of the water-surface
+        elevation at each station [length]. Each station's percentile is
+        taken on its own: an envelope line is not one sample's profile.
+    jump_x : ndarray, shape (n,)
+        Location of each sample's most upstream hydraulic jump, NaN where
+        the sample has none [length].
+    jump_probability : float
+        Fraction of samples with a jump in the reach [-].
+    jump_x_percentiles : ndarray, shape (P,)
+        Percentiles of the jump location over the samples that have one
+        (NaN if none does) [length].
+    """
+
+    def __init__(self, sweep_result: SweepResult, percentiles, roughness_ranges=None, discharge_range=None,
+                 correlated=False):
+        self.sweep = sweep_result
+        self.units = sweep_result.units
+        self.percentiles = np.asarray(percentiles, float)
+        self.roughness_ranges = roughness_ranges
+        self.discharge_range = discharge_range
+        self.correlated = correlated
+        self.discharge = sweep_result.discharge
+        self.roughness = sweep_result.roughness
+        self.x = sweep_result.x
+        self.bed = sweep_result.bed
+        self.depth_envelope = self.envelope("depth")
+        self.stage_envelope = self.envelope("stage")
+        self.jump_x = sweep_result.first_jump_x
+        has = np.isfinite(self.jump_x)
+        self.jump_probability = float(np.mean(has))
+        self.jump_x_percentiles = (np.percentile(self.jump_x[has], self.percentiles) if np.any(has)
+                                   else np.full(self.percentiles.shape, np.nan))
+
+    @property
+    def samples(self) -> int:
+        """Number of samples."""
+        return len(self.sweep)
+
+    def envelope(self, quantity: str = "stage", percentiles=None) -> np.ndarray:
+        """Percentiles over the samples of ``quantity`` at every station, shape (P, M).
+
+        ``quantity`` is "depth", "stage", "velocity" or "froude";
+        ``percentiles`` defaults to the run's.
+        """
+        if quantity not in ("depth", "stage", "velocity", "froude"):
+            raise InvalidInputError(f"quantity must be 'depth', 'stage', 'velocity' or 'froude'; got {quantity!r}")
+        pct = self.percentiles if percentiles is None else finite_array(percentiles, "percentiles")
+        if np.any((pct < 0) | (pct > 100)):
+            raise InvalidInputError(f"percentiles must lie in [0, 100]; got {percentiles!r}")
+        return np.percentile(getattr(self.sweep, quantity), pct, axis=0)
+
+    def jump_histogram(self, bins=20):
+        """Histogram of the jump location over the samples with a jump: (counts, bin edges [length])."""
+        has = np.isfinite(self.jump_x)
+        if not np.any(has):
+            return np.zeros(0, int), np.zeros(0)
+        return np.histogram(self.jump_x[has], bins=bins)
+
+    def plot_envelope(self, ax=None, quantity: str = "stage", jumps: bool = True):
+        """Plot the percentile envelope of ``quantity`` ("stage" or "depth") along the reach.
+
+        The band spans the lowest to the highest percentile, the line is the
+        middle one; with ``quantity="stage"`` the bed is drawn too. With
+        ``jumps`` the range of jump locations (lowest to highest percentile)
+        is shaded and each sample's jump marked on the axis. Returns the
+        matplotlib Axes.
+        """
+        if quantity not in ("stage", "depth"):
+            raise InvalidInputError(f"quantity must be 'stage' or 'depth'; got {quantity!r}")
+        if ax is None:
+            import matplotlib.pyplot as plt
+
+            _, ax = plt.subplots(figsize=(9, 4))
+        L = self.units.length
+        env = self.stage_envelope if quantity == "stage" else self.depth_envelope
+        p = self.percentiles
+        lo, hi = int(np.argmin(p)), int(np.argmax(p))
+        mid = int(np.argmin(np.abs(p - 50.0)))
+        ax.fill_between(self.x, env[lo], env[hi], color="tab:blue", alpha=0.25, lw=0,
+                        label=f"{p[lo]:g}th-{p[hi]:g}th percentile")
+        ax.plot(self.x, env[mid], color="tab:blue", lw=1.5, label=f"{p[mid]:g}th percentile")
+        if quantity == "stage":
+            ax.plot(self.x, self.bed, color="saddlebrown", lw=1.5, label="bed")
+        if jumps and np.any(np.isfinite(self.jump_x)):
+            j = self.jump_x_percentiles
+            ax.axvspan(j[lo], j[hi], color="tab:red", alpha=0.12,
+                       label=f"jump location ({self.jump_probability:.0%} of samples)")
+            ax.plot(self.jump_x[np.isfinite(self.jump_x)], np.full(np.count_nonzero(np.isfinite(self.jump_x)), 0.0),
+                    "|", color="tab:red", ms=8, alpha=0.3, transform=ax.get_xaxis_transform())
+        ax.set_xlabel(f"distance from upstream end [{L}]")
+        ax.set_ylabel(f"water-surface elevation [{L}]" if quantity == "stage" else f"depth [{L}]")
+        ax.set_title(f"{self.samples} samples")
+        ax.legend(loc="best", fontsize="small")
+        return ax
+
+    def __repr__(self):
+        u = self.units
+        p = self.percentiles
+        lo, hi = int(np.argmin(p)), int(np.argmax(p))
+        width = self.stage_envelope[hi] - self.stage_envelope[lo]
+        jump = (f"jump in {self.jump_probability:.0%} of samples, x {self.jump_x_percentiles[lo]:.2f}-"
+                f"{self.jump_x_percentiles[hi]:.2f} {u.length} ({p[lo]:g}th-{p[hi]:g}th)"
+                if self.jump_probability > 0 else "no jumps")
+        return (f"<MonteCarloResult {self.samples} samples, stage band {p[lo]:g}th-{p[hi]:g}th up to "
+                f"{np.max(width):.3f} {u.length} wide, {jump}>")
