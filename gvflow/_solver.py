@@ -161,7 +161,7 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
             failed = cols[None, start:] >= stop[:, None]
             block = np.where(failed, seg.yc[grp, None], res.depth)
             y[grp, start:] = block
-            crit[grp, start:] |= failed
+            crit[grp, start + 1:] = failed[:, 1:]  # a restart station stays critical
             again = (stop < m - 1) & can_restart[grp]
             restart_idx.append(grp[again])
             restart_j.append(stop[again])
@@ -244,7 +244,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     up = reach.upstream
     if up is not None:
         up.check_end("upstream")
-        y_up = np.asarray(up.depth_at(EndState("upstream", first, float(bed[0]), classes[:, 0])), dtype=float)
+        up_state = EndState("upstream", first, float(bed[0]), classes[:, 0])
+        y_up = np.asarray(up.depth_at(up_state), dtype=float)
         _check_inside(first, y_up, up, "upstream")
         ok = (y_up < first.yc * (1 - 1e-9)) | (np.isclose(y_up, first.yc, rtol=1e-9) & can_sup_start[0])
         sup_state = np.where(ok, y_up, np.nan)
@@ -351,6 +352,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 notes[s].append((float(x[-1]), "unused control",
                                  f"downstream control {ctrl.describe(units)} does not govern: the flow leaving "
                                  "the reach is supercritical"))
+        _add_details(notes, ctrl, end_state, depth[:, -1], float(x[-1]))
     elif reach.downstream is None:
         for s in range(n):
             if classes[s, -1] != "steep" and regime[s, -1] != REGIME_SUPER:
@@ -360,6 +362,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     if up is not None:
         for s in np.flatnonzero(sup_from_control):
             notes[s].append((0.0, "upstream control", f"{up.describe(units)} governs"))
+        _add_details(notes, up, up_state, depth[:, 0], 0.0)
 
     sol = BatchSolution(x=x, segment=seg_ix, bed=bed, depth=depth, regime=regime, segs=segs,
                         slope_class=classes, notes=notes)
@@ -377,6 +380,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                      "jump_at_junction"):
             setattr(sol, name, getattr(sol, name)[order])
     return sol
+
+
+def _add_details(notes, ctrl, state, depth, x):
+    """Append the per-scenario lines a control adds to its note (:meth:`Control.notes`)."""
+    for s, lines in enumerate(ctrl.notes(state, depth)):
+        notes[s].extend((x, "control detail", text) for text in lines)
 
 
 def _refine(jumps, marcher, seg, x, sub_y, k):

@@ -53,6 +53,38 @@ def _station_props(sol: BatchSolution, i: int, seg_ix, depth):
     return out
 
 
+def _pieces(x, y, reg, seg, yn, yc, classes):
+    """Continuous profile pieces: split at segments, jumps and regime changes, labelled by type.
+
+    A piece runs through the critical-depth stations at its ends (where it
+    starts from or runs into critical depth); stretches of uniform flow are
+    not gradually varied flow and get no piece.
+    """
+    from .profiles.classify import classify
+
+    pieces = []
+    brk = np.flatnonzero((np.diff(seg) != 0) | ((np.diff(x) == 0) & (np.diff(seg) == 0))) + 1
+    for part in np.split(np.arange(x.size), brk):
+        k = int(seg[part[0]])
+        for want in (REGIME_SUPER, REGIME_SUB):
+            sel = part[reg[part] == want]
+            if sel.size == 0:
+                continue
+            for run in np.split(sel, np.flatnonzero(np.diff(sel) > 1) + 1):
+                ys = y[run]
+                if np.isfinite(yn[k]) and np.all(np.abs(ys - yn[k]) <= UNIFORM_TOLERANCE * yn[k]):
+                    continue
+                first, last = run[0], run[-1]
+                if first > part[0] and reg[first - 1] == REGIME_CRITICAL:
+                    first -= 1
+                if last < part[-1] and reg[last + 1] == REGIME_CRITICAL:
+                    last += 1
+                label = classify(classes[k], float(np.median(ys)), float(yn[k]), float(yc[k]))
+                pieces.append(ProfilePiece(label, k, float(x[first]), float(x[last]), _REGIME_NAMES[want]))
+    pieces.sort(key=lambda p: (p.x_start, p.x_end))
+    return pieces
+
+
 class Profile:
     """Water-surface profile of a reach (immutable result of :meth:`Reach.solve`).
 
@@ -107,8 +139,6 @@ class Profile:
     @classmethod
     def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> "Profile":
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
-        from .profiles.classify import classify
-
         x = sol.x.astype(float)
         y = sol.depth[i].astype(float)
         reg = sol.regime[i].astype(int)
@@ -130,6 +160,10 @@ class Profile:
             y = np.insert(y, ins_at, ins_y)
             reg = np.insert(reg, ins_at, ins_r)
             seg = np.insert(seg, ins_at, ins_s)
+        yn = np.array([s.yn[i] for s in sol.segs])
+        yc = np.array([s.yc[i] for s in sol.segs])
+        classes = [str(c) for c in sol.slope_class[i]]
+        pieces = _pieces(x, y, reg, seg, yn, yc, classes)
         # a junction station appears twice; keep one where nothing changes across it
         dup = np.flatnonzero((np.diff(x) == 0) & (np.diff(seg) != 0))
         same = np.abs(y[dup + 1] - y[dup]) <= 1e-12 * y[dup]
@@ -155,27 +189,6 @@ class Profile:
                               kind=jump_type(max(fr, 1.0)), segment=k,
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
-        yn = np.array([s.yn[i] for s in sol.segs])
-        yc = np.array([s.yc[i] for s in sol.segs])
-        classes = [str(c) for c in sol.slope_class[i]]
-        pieces = []
-        # split at segment changes, jumps (repeated x within a segment) and regime changes
-        brk = np.flatnonzero((np.diff(seg) != 0) | ((np.diff(x) == 0) & (np.diff(seg) == 0))) + 1
-        for part in np.split(np.arange(x.size), brk):
-            k = int(seg[part[0]])
-            for want in (REGIME_SUPER, REGIME_SUB):
-                sel = part[reg[part] == want]
-                if sel.size == 0:
-                    continue
-                runs = np.split(sel, np.flatnonzero(np.diff(sel) > 1) + 1)
-                for run in runs:
-                    ys = y[run]
-                    if np.isfinite(yn[k]) and np.all(np.abs(ys - yn[k]) <= UNIFORM_TOLERANCE * yn[k]):
-                        continue
-                    label = classify(classes[k], float(np.median(ys)), float(yn[k]), float(yc[k]))
-                    pieces.append(ProfilePiece(label, k, float(x[run[0]]), float(x[run[-1]]),
-                                               _REGIME_NAMES[want]))
-        pieces.sort(key=lambda p: (p.x_start, p.x_end))
         controls = sorted((ControlNote(float(a), b, c) for a, b, c in sol.notes[i]), key=lambda c: c.x)
         return cls(reach=reach, method=method, x=x, depth=y, regime=reg, segment=seg, bed=bed, jumps=jumps,
                    pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc,

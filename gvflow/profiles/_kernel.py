@@ -300,6 +300,25 @@ def step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, 
 
 
 @njit(cache=True)
+def substeps(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol):
+    """A step of length d taken as 4, then 16, then 64 equal sub-steps; (depth, code) as :func:`step`."""
+    code = 1
+    y = y1
+    for nsub in (4, 16, 64):
+        y = y1
+        h = d / nsub
+        code = 0
+        for _ in range(nsub):
+            y, code = step(kind, p0, p1, p2, law, coef, q, s0, y, h, yc, branch, alpha, ce, avg, k, g, nu, ymax,
+                           tol, y)
+            if code != 0:
+                break
+        if code == 0:
+            return y, 0
+    return y, code
+
+
+@njit(cache=True)
 def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k, g, nu):
     """Signed distance from a station at depth y1 to where the profile reaches yc (direct step)."""
     a1, p1_, t1, m1, dp1 = geom(kind, p0, p1, p2, y1)
@@ -336,6 +355,12 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
             d = x[j] - x[j - 1]
             y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
                             k, g, nu, ymax, tol, y + slope_prev * d)
+            if code == 1:
+                # Near critical depth a long step can miss a root the profile really has (the
+                # discrete energy equation loses it before the profile does): retry with
+                # sub-steps before declaring that the profile reaches critical depth.
+                y2, code = substeps(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce,
+                                    avg, k, g, nu, ymax, tol)
             if code != 0:
                 out_n[s] = j
                 out_code[s] = code
