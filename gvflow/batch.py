@@ -46,11 +46,6 @@ __all__ = ["SweepResult", "sweep", "solve_many", "SolveManyError", "REGIME_CODES
 #: Meaning of the integer codes in :attr:`SweepResult.regime`.
 REGIME_CODES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
 
-# A junction station appears twice among the base stations; Profile keeps one
-# copy where the depth does not change across it (same rule as Profile.from_batch).
-_JUNCTION_SAME = 1e-12
-
-
 # -- progress ---------------------------------------------------------------------------------------
 
 
@@ -75,8 +70,8 @@ def progress_wanted(progress) -> bool:
     Examples
     --------
     >>> from gvflow.batch import progress_wanted
-    >>> progress_wanted(False), progress_wanted(None)  # under the test runner: off
-    (False, False)
+    >>> progress_wanted(True), progress_wanted(False)
+    (True, False)
     """
     if progress is None:
         if os.environ.get("CI", "").lower() not in ("", "0", "false", "no"):
@@ -316,8 +311,8 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
 
 
 @njit(cache=True)
-def _scenario_sequence(x, y, r, seg, j_after, j_x, j_y1, j_y2, j_seg, j_junc, same_tol):
-    """Stations of one scenario as Profile.from_batch lays them: jumps inserted, unchanged junctions merged."""
+def _scenario_sequence(x, y, r, seg, j_after, j_x, j_y1, j_y2, j_seg, j_junc):
+    """Stations of one scenario as Profile.from_batch lays them out for its pieces: the jumps inserted."""
     m = x.shape[0]
     nj = j_after.shape[0]
     total = m + 2 * nj
@@ -343,29 +338,27 @@ def _scenario_sequence(x, y, r, seg, j_after, j_x, j_y1, j_y2, j_seg, j_junc, sa
                 rs[p + 1] = 1
                 ks[p + 1] = j_seg[t]
                 p += 2
-    keep = np.ones(p, np.bool_)
-    for j in range(p - 1):
-        if xs[j + 1] == xs[j] and ks[j + 1] != ks[j] and abs(ys[j + 1] - ys[j]) <= same_tol * ys[j]:
-            keep[j + 1] = False
-    idx = np.flatnonzero(keep)
-    return xs[idx], ys[idx], rs[idx], ks[idx]
+    return xs[:p], ys[:p], rs[:p], ks[:p]
 
 
 @njit(cache=True)
-def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, same_tol, uni_tol,
+def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
             count, out_s, out_k, out_r, out_x0, out_x1, out_med):
     """Continuous profile pieces of every scenario, sorted by (x_start, x_end) within each scenario.
 
-    With ``count`` true only counts them; otherwise fills the out arrays and
-    returns the number written. Runs of one regime inside one segment between
-    jumps, skipping those at normal depth throughout (uniform flow).
+    The rules of :func:`gvflow.result._pieces` (one scenario there, all of
+    them here): runs of one regime inside one segment between jumps, skipping
+    those at normal depth throughout (uniform flow), labelled by their median
+    depth, extended through a critical-depth station at either end. With
+    ``count`` true only counts them; otherwise fills the out arrays and
+    returns the number written.
     """
     n = depth.shape[0]
     w = 0
     for s in range(n):
         a, b = jump_ptr[s], jump_ptr[s + 1]
         xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
-                                            j_y2[a:b], j_seg[a:b], j_junc[a:b], same_tol)
+                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
         p = xs.shape[0]
         w0 = w
         start = 0
@@ -392,11 +385,13 @@ def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_
                                 break
                     if not uniform:
                         if not count:
+                            first = i - 1 if i > start and rs[i - 1] == 0 else i
+                            last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
                             out_s[w] = s
                             out_k[w] = k
                             out_r[w] = want
-                            out_x0[w] = xs[i]
-                            out_x1[w] = xs[e]
+                            out_x0[w] = xs[first]
+                            out_x1[w] = xs[last]
                             out_med[w] = np.median(ys[i:e + 1])
                         w += 1
                     i = e + 1
@@ -583,7 +578,7 @@ class SweepResult:
                 np.ascontiguousarray(self.jump_downstream_depth, float),
                 np.ascontiguousarray(self.jump_segment, np.int64),
                 np.ascontiguousarray(sol.jump_at_junction, np.bool_),
-                np.ascontiguousarray(self.normal_depths, float), _JUNCTION_SAME, UNIFORM_TOLERANCE)
+                np.ascontiguousarray(self.normal_depths, float), UNIFORM_TOLERANCE)
         empty_i, empty_f = np.empty(0, np.int64), np.empty(0)
         total = _pieces(*args, True, empty_i, empty_i, empty_i, empty_f, empty_f, empty_f)
         s, k, r = (np.empty(total, np.int64) for _ in range(3))
@@ -791,16 +786,22 @@ def solve_many(reaches, executor: Executor | None = None, method="standard_step"
             for start in range(0, n, size):
                 fut = executor.submit(_solve_chunk, reaches[start:start + size], method, solve_options)
                 futures[fut] = (start, min(start + size, n))
-            for fut in as_completed(futures):
-                a, b = futures[fut]
-                try:
-                    chunk = fut.result()
-                except Exception as exc:  # the task itself failed (a worker died, a pickling error...)
-                    err = GVFlowError(f"the task solving reaches {a}-{b - 1} failed: {type(exc).__name__}: {exc}")
-                    err.__cause__ = exc
-                    chunk = [err] * (b - a)
-                results[a:b] = chunk
-                bar.update(b - a)
+            try:
+                for fut in as_completed(futures):
+                    a, b = futures[fut]
+                    try:
+                        chunk = fut.result()
+                    except Exception as exc:  # the task itself failed (a worker died, a pickling error...)
+                        err = GVFlowError(f"the task solving reaches {a}-{b - 1} failed: {type(exc).__name__}: "
+                                          f"{exc}")
+                        err.__cause__ = exc
+                        chunk = [err] * (b - a)
+                    results[a:b] = chunk
+                    bar.update(b - a)
+            except BaseException:  # interrupted: do not leave queued chunks running
+                for fut in futures:
+                    fut.cancel()
+                raise
     finally:
         bar.close()
     if errors == "raise":

@@ -87,6 +87,9 @@ VARIED = {
     "steep_to_mild_junction": (gv.Reach(segments=[seg(80.0, 0.03), seg(200.0, 0.0005, n=0.02)], discharge=6.0,
                                         downstream=gv.FixedDepth(2.2)), dict(roughness=[[0.014, 0.02],
                                                                                           [0.012, 0.03]])),
+    "near_critical_slope": (gv.Reach(segments=[seg(200.0, 0.0008), seg(150.0, 0.0032456333664650314),
+                                               seg(150.0, 0.0)], discharge=5.0, downstream=gv.CriticalFlow()),
+                            dict(discharge=[4.0, 4.9, 5.0, 5.1, 6.0])),  # M1, C1, C3 + jump, S3 + jump, H2
     "jump_at_widening": (gv.Reach(segments=[seg(80.0, 0.03, section=gv.Rectangular(width=3.0)),
                                             seg(200.0, 0.0005, n=0.02, section=gv.Rectangular(width=5.0))],
                                   discharge=6.0, downstream=gv.FixedDepth(1.2)),
