@@ -66,6 +66,18 @@ from .verify import (
 from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
 from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
 from .reach import Reach, Segment
+from . import structures
+from .structures import (
+    BackwaterExtent,
+    Culvert,
+    FreeOverfall,
+    Pool,
+    PoolDischarge,
+    StageDischargeTable,
+    Weir,
+    backwater_extent,
+    solve_discharge_from_pool,
+)
 from .result import ControlNote, Profile, ProfilePiece
 from .batch import SolveManyError, SweepResult, solve_many
 from .uncertainty import MonteCarloResult, Uncertain, monte_carlo
@@ -79,6 +91,9 @@ __all__ = [
     "Reach", "Segment", "FixedDepth", "FixedStage", "UniformFlow", "CriticalFlow", "SluiceGate",
     "Profile", "ProfilePiece", "ControlNote", "Jump",
     "belanger_ratio", "jump_energy_loss_rectangular", "jump_length", "jump_type",
+    # structures as controls
+    "structures", "Weir", "Culvert", "FreeOverfall", "StageDischargeTable", "Pool", "solve_discharge_from_pool",
+    "PoolDischarge", "backwater_extent", "BackwaterExtent",
     # reach files, tables, plots
     "read_reach", "write_reach", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach", "plot_profile",
     # units and errors

@@ -78,6 +78,30 @@ class Control(SingleValueModel):
         """One line for reports."""
         return repr(self)
 
+    def notes(self, state: EndState, depth: np.ndarray) -> list[list[str]]:
+        """Extra report lines per scenario, written after the solve beside the control's own note.
+
+        Parameters
+        ----------
+        state : EndState
+            The end the control stands at (as given to :meth:`depth_at`).
+        depth : ndarray, shape (n,)
+            Solved depth at that end, one per scenario [length]: the depth of
+            the governing profile there, which differs from :meth:`depth_at`
+            where the control did not govern (a drowned gate, a jump swept out).
+
+        Returns
+        -------
+        list of list of str
+            One list of lines per scenario; they become ``ControlNote`` entries
+            of kind ``"control detail"``. The base class adds nothing.
+        """
+        return [[] for _ in range(state.seg.n)]
+
+    def plot_mark(self, bed_elevation: float) -> tuple[str, float] | None:
+        """Label and top elevation [length] of a structure to mark on the long section, or None."""
+        return None
+
     def check_end(self, end: str) -> None:
         if end not in self.ends:
             raise ControlError(f"{type(self).__name__} can only stand at the {' or '.join(self.ends)} end of a "
@@ -241,7 +265,65 @@ class SluiceGate(Control):
                 f"SluiceGate(opening={self.opening:g}): the jet depth {self.jet_depth:.4g} is not below critical "
                 f"depth {state.seg.yc[i]:.4g} for discharge {state.seg.discharge[i]:g}, so the gate does not "
                 "release supercritical flow; the opening is too large for this discharge")
+        self.upstream_depth(state)  # raises when the gate lip is clear of the water
         return yj
+
+    def upstream_depth(self, state, tailwater=None):
+        """Depth behind the gate for each scenario's discharge [length], or None for a non-rectangular section.
+
+        :func:`gvflow.structures.gate_upstream_depth` with the channel width at
+        the reach's upstream end: free flow, or submerged against ``tailwater``
+        (depth at the gate, one per scenario) where that exceeds the jet's
+        sequent depth.
+
+        Raises
+        ------
+        ControlError
+            When the discharge is too small for the opening: the water behind
+            the gate would stand below its lip, so the gate does not control.
+        """
+        from .errors import NoSolutionError
+        from .structures.gates import gate_upstream_depth
+
+        width = rectangular_width(state.seg.section)
+        if width is None:
+            return None
+        q = state.seg.discharge
+        try:
+            y1 = gate_upstream_depth(q, self.opening, width, tailwater=tailwater, contraction=self.contraction,
+                                     units=state.units)
+        except NoSolutionError:
+            raise ControlError(
+                f"SluiceGate(opening={self.opening:g}): the opening is above the depth the discharge "
+                f"(smallest {float(np.min(q)):g}) needs behind the gate, so the gate lip is clear of the water and "
+                "does not control the flow; lower the opening") from None
+        return np.broadcast_to(np.asarray(y1, dtype=float), q.shape).copy()
+
+    def notes(self, state, depth):
+        from .structures.gates import gate_free_flow_limit
+
+        L = state.units.length
+        width = rectangular_width(state.seg.section)
+        if width is None:
+            return [["depth behind the gate not computed: the gate relations hold for rectangular channels"]
+                    for _ in range(state.seg.n)]
+        q = state.seg.discharge
+        depth = np.asarray(depth, dtype=float)
+        limit = np.atleast_1d(gate_free_flow_limit(q, self.opening, width, contraction=self.contraction,
+                                                   units=state.units))
+        drowned = depth > self.jet_depth * (1 + 1e-9)
+        y_free = self.upstream_depth(state)
+        y1 = self.upstream_depth(state, tailwater=np.where(drowned, depth, self.jet_depth))
+        out = []
+        for s in range(state.seg.n):
+            if drowned[s]:
+                out.append([f"submerged flow: the water at the gate, {depth[s]:.3f} {L}, stands above the jet's "
+                            f"sequent depth {limit[s]:.3f} {L}; depth behind the gate {y1[s]:.3f} {L} (free flow "
+                            f"would need {y_free[s]:.3f} {L})"])
+            else:
+                out.append([f"free flow: depth behind the gate {y1[s]:.3f} {L}; the jump below stays clear of the "
+                            f"gate while the tailwater there is under the jet's sequent depth {limit[s]:.3f} {L}"])
+        return out
 
     def describe(self, units):
         return (f"sluice gate, opening {self.opening:.3f} {units.length}, jet depth {self.jet_depth:.3f} "
@@ -249,6 +331,13 @@ class SluiceGate(Control):
 
     def __repr__(self):
         return f"SluiceGate(opening={self.opening:g}, contraction={self.contraction:g})"
+
+
+def rectangular_width(section) -> float | None:
+    """Width of a rectangular section (vertical walls), None for any other shape."""
+    from .sections import Rectangular, WideRectangular
+
+    return float(section.width) if isinstance(section, (Rectangular, WideRectangular)) else None
 
 
 BUILTIN_CONTROLS = (FixedDepth, FixedStage, UniformFlow, CriticalFlow, SluiceGate)

@@ -23,12 +23,14 @@ from .errors import InvalidInputError
 from .friction import AnyRoughness, as_roughness
 from .profiles import get_marcher
 from .sections import AnySection
+from .structures.controls import Culvert, FreeOverfall, Pool, StageDischargeTable, Weir
 from .units import Units, resolve_units
 
 __all__ = ["Segment", "Reach", "AnyControl"]
 
 AnyControl = Annotated[
-    Union[FixedDepth, FixedStage, UniformFlow, CriticalFlow, SluiceGate],
+    Union[FixedDepth, FixedStage, UniformFlow, CriticalFlow, SluiceGate, Weir, Culvert, FreeOverfall,
+          StageDischargeTable, Pool],
     Field(discriminator="kind"),
 ]
 
@@ -81,9 +83,11 @@ class Reach(FrozenModel):
     upstream, downstream : control, optional
         Boundary controls (:class:`FixedDepth`, :class:`FixedStage`,
         :class:`UniformFlow`, :class:`CriticalFlow`, :class:`SluiceGate`,
-        or a structure). Either may be omitted: downstream, normal depth is
-        assumed below a mild segment and critical depth below a horizontal or
-        adverse one; upstream, flow enters a steep segment at critical depth.
+        or a structure: :class:`Weir`, :class:`Culvert`, :class:`FreeOverfall`,
+        :class:`StageDischargeTable` downstream, :class:`Pool` upstream).
+        Either may be omitted: downstream, normal depth is assumed below a
+        mild segment and critical depth below a horizontal or adverse one;
+        upstream, flow enters a steep segment at critical depth.
     units : "SI", "US" or Units
     datum : float
         Bed elevation at the downstream end [length].

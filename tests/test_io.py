@@ -121,7 +121,7 @@ def test_error_names_file_and_field_path(tmp_path):
     (lambda d: d["segments"][1]["roughness"].update(n=0), "segments.1.roughness.n", "greater than 0"),
     (lambda d: d.update(discharge="lots"), "discharge", "valid number"),
     (lambda d: d["upstream"].update(opening=-0.1), "upstream.opening", "greater than 0"),
-    (lambda d: d["downstream"].update(kind="weir"), "downstream", "unknown kind 'weir'"),
+    (lambda d: d["downstream"].update(kind="lock_gate"), "downstream", "unknown kind 'lock_gate'"),
     (lambda d: d.update(units="metric"), "units", "'SI' or 'US'"),
     (lambda d: d.update(segments=[]), "segments", "at least 1"),
     (lambda d: d["segments"][0]["section"].update(shape="trapezoidal", bottom_width=4.0),

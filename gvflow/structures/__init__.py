@@ -9,6 +9,19 @@ relations. Each function states its source; discharges may be NumPy arrays.
 0.3
 """
 
+from .backwater import BackwaterExtent, backwater_extent
+from .controls import (
+    STRUCTURE_CONTROLS,
+    WEIR_FORMULAS,
+    Culvert,
+    FreeOverfall,
+    Pool,
+    PoolDischarge,
+    StageDischargeTable,
+    Weir,
+    WeirFormula,
+    solve_discharge_from_pool,
+)
 from .culverts import (
     INLET_TYPES,
     BoxBarrel,
@@ -81,4 +94,7 @@ __all__ = [
     "entrance_depth", "critical_entry_head", "pool_discharge", "PoolOutflow",
     # rating
     "RatingTable",
+    # controls of a reach
+    "Weir", "WeirFormula", "WEIR_FORMULAS", "Culvert", "FreeOverfall", "StageDischargeTable", "Pool",
+    "STRUCTURE_CONTROLS", "solve_discharge_from_pool", "PoolDischarge", "backwater_extent", "BackwaterExtent",
 ]
