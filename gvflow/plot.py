@@ -27,6 +27,7 @@ _COLOURS = {
     "critical": "tab:red",
     "jump": "tab:purple",
     "boundary": "0.55",
+    "structure": "0.20",
 }
 _TEXT_BOX = {"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.85}
 
@@ -93,6 +94,8 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
         tops.append(np.nanmax(zb + np.asarray(profile.normal_depths)[:, None]))
     if show_critical:
         tops.append(np.max(zb + np.asarray(profile.critical_depths)[:, None]))
+    marks = _structure_marks(profile)
+    tops += [mark[2] for mark in marks]
     top = float(max(tops))
     low = float(bed.min())
     span = max(top - low, 1e-6)
@@ -133,6 +136,13 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
                         arrowprops={"arrowstyle": "-", "color": _COLOURS["jump"], "linewidth": 0.8},
                         bbox=_TEXT_BOX)
 
+    for i, (label, xs, z_top, z_bed, ha) in enumerate(marks):
+        ax.plot([xs, xs], [z_bed, z_top], color=_COLOURS["structure"], linewidth=4.0, solid_capstyle="butt",
+                label="structure" if i == 0 else None, zorder=6, clip_on=False)
+        if show_labels:
+            ax.annotate(label, xy=(xs, z_top), xytext=(xs, z_top + 0.06 * span), fontsize=8, ha=ha, va="bottom",
+                        color=_COLOURS["structure"], zorder=7, bbox=_TEXT_BOX)
+
     if show_labels:
         _label_pieces(ax, profile, span)
         for k, seg in enumerate(reach.segments):
@@ -152,6 +162,16 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
     ax.set_axisbelow(True)
     ax.legend(loc="best", fontsize=8, framealpha=0.92)
     return ax
+
+
+def _structure_marks(profile):
+    """(label, x, top, bed, text alignment) of each end control that marks itself (Control.plot_mark)."""
+    marks = []
+    for ctrl, i, ha in ((profile.reach.upstream, 0, "left"), (profile.reach.downstream, -1, "right")):
+        mark = None if ctrl is None else ctrl.plot_mark(float(profile.bed[i]))
+        if mark is not None:
+            marks.append((mark[0], float(profile.x[i]), float(mark[1]), float(profile.bed[i]), ha))
+    return marks
 
 
 def _label_pieces(ax, profile, span):
