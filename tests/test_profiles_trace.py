@@ -389,3 +389,16 @@ def test_other_sections_match_quadrature(case, method):
     x_control = length if t.direction == "upstream" else 0.0
     ref = [gv.depth_at_distance(sec, q, s0, rough, y0, t.x[i] - x_control) for i in idx]
     np.testing.assert_allclose(t.depth[idx], ref, rtol=1e-4)
+
+
+def test_marcher_instance_and_options_pass_through():
+    from gvflow.profiles import StandardStep
+
+    base = gv.trace_profile(SEC, Q, MILD, N, 2.5, 1000.0, method=StandardStep(friction_average="arithmetic"))
+    same = gv.trace_profile(SEC, Q, MILD, N, 2.5, 1000.0, friction_average="arithmetic")
+    np.testing.assert_array_equal(base.depth, same.depth)
+    # an eddy loss adds head loss over the rising M1 curve: the depth upstream ends higher
+    lossy = gv.trace_profile(SEC, Q, MILD, N, 2.5, 1000.0, eddy_loss=0.3)
+    assert lossy.depth[0] > base.depth[0]
+    with pytest.raises(gv.InvalidInputError, match="direct_step"):
+        gv.trace_profile(SEC, Q, MILD, N, 2.5, 1000.0, method="runge")

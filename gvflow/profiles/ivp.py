@@ -90,7 +90,12 @@ class IVPMarcher(Marcher):
     ivp_method : str
         Integration method passed to ``solve_ivp``: "RK45", "RK23", "DOP853"
         (default: eighth order, efficient at tight tolerances), "Radau", "BDF"
-        or "LSODA".
+        or "LSODA". Where normal depth lies within a few per cent of critical
+        depth the pull toward normal depth is strong (a stiff equation); the
+        explicit methods then take steps at their stability limit, and the
+        dense output between steps can be off by up to about 1e-6 relative
+        while the step ends keep ``rtol``. "Radau" (implicit) is immune to
+        this, at about fifteen times the cost.
     rtol, atol : float
         Relative and absolute tolerances of ``solve_ivp`` (atol in the length
         unit for the depth; scaled by length/depth for the x(y) form).

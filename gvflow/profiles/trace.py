@@ -18,7 +18,7 @@ from .._validate import finite_float, positive_float
 from ..errors import ControlError, ConvergenceError, InvalidInputError, NoSolutionError
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from ..units import UnitsLike
-from .base import SUB, SUPER, SegmentBatch, get_marcher
+from .base import MARCHERS, SUB, SUPER, SegmentBatch, get_marcher
 from .classify import PROFILE_SHAPES, classify, classify_slope
 from .direct_step import _Flow, _limit_depth, trace_direct_step
 from .ivp import IVPMarcher
@@ -232,14 +232,18 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
             f"a {_regime_name(branch)} control depth ({'above' if branch == SUB else 'below'} critical depth)")
 
     name = method if isinstance(method, str) else getattr(method, "name", type(method).__name__)
-    if method == "direct_step":
+    if isinstance(method, str) and method == "direct_step":
+        sub = substeps
         s, y, stop = _trace_depth_steps(section, seg, s0, roughness, units, alpha, y0, yn, yc, ymax, branch,
-                                        length, n_steps * substeps, normal_tolerance, method_options)
+                                        length, n_steps * sub, normal_tolerance, method_options)
     else:
+        if isinstance(method, str) and method not in MARCHERS:
+            raise InvalidInputError(f"method must be one of {sorted(set(MARCHERS) | {'direct_step'})} or a "
+                                    f"Marcher subclass; got {method!r}")
         marcher = get_marcher(method, **method_options)
         sub = 1 if isinstance(marcher, IVPMarcher) else substeps
         s, y, stop = _trace_stations(seg, y0, yn, branch, length, n_steps * sub, normal_tolerance, marcher)
-    s, y = _thin(s, y, substeps if method == "direct_step" or sub > 1 else 1, stop)
+    s, y = _thin(s, y, sub)
 
     # label from a depth strictly inside the traced piece (mid first step) where there is one
     rep = 0.5 * float(y[0] + y[1]) if y.size > 1 else y0
@@ -275,7 +279,7 @@ def _message(stop, label, direction, x_stop, yn, yc, tol, ymax):
     return f"{label} profile traced {direction} reached the crown of the conduit ({ymax:.6g}) near x = {x_stop:.6g}"
 
 
-def _thin(s, y, every, stop):
+def _thin(s, y, every):
     """Keep every ``every``-th station of a fine trace, plus its last point (the stop)."""
     if every == 1 or s.size <= 2:
         return s, y
