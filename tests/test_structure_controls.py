@@ -21,6 +21,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as hst
 from scipy.integrate import quad
 from scipy.optimize import brentq
 
@@ -91,7 +93,8 @@ def test_weir_m1_matches_quadrature(weir_profile):
     yn = yn_rect(Q_W, S_W, N_W)
     errors = []
     for x in (1000.0, 3000.0, 4000.0, 5000.0, 5900.0):
-        y_ref = brentq(lambda y: distance(y, y_end, Q_W, S_W, N_W) - (L_W - x), yn * (1 + 1e-9), y_end, xtol=1e-14)
+        y_ref = brentq(lambda y, x=x: distance(y, y_end, Q_W, S_W, N_W) - (L_W - x), yn * (1 + 1e-9), y_end,
+                       xtol=1e-14)
         errors.append(abs(weir_profile.depth_at(x) - y_ref) / y_ref)
     assert max(errors) < 3e-6, errors  # standard step, 5 m stations: measured 1.2e-6 at most
 
@@ -128,6 +131,24 @@ def test_drawdown_extent_above_a_free_overfall():
     ref = distance(0.99 * yn, yc * (1 + 1e-9), q, s0, n)  # M2: x grows as the depth falls towards yc
     assert ext.depth == pytest.approx(0.99 * yn, rel=1e-6)
     assert ext.distance == pytest.approx(ref, rel=1e-3)  # measured 4e-4: the M2 is singular at yc
+
+
+@settings(max_examples=25, deadline=None)
+@given(q=hst.floats(0.5, 15.0), crest=hst.floats(0.2, 2.5), slope=hst.floats(2e-4, 2e-3))
+def test_property_weir_on_a_mild_channel(q, crest, slope):
+    yc = ((q / B) ** 2 / G) ** (1 / 3)
+    yn = yn_rect(q, slope, 0.015)
+    if yn <= 1.01 * yc:
+        return  # not a mild channel for this discharge
+    p = gv.Reach(segments=[seg(1500.0, slope)], discharge=q, downstream=gv.Weir(crest_height=crest)).solve(n_steps=60)
+    y_end = crest + rehbock_head(q, crest)
+    assert p.depth[-1] == pytest.approx(y_end, rel=1e-10)
+    dy = np.diff(p.depth)
+    if y_end > yn:  # M1: rises towards the weir, stays between normal depth and the weir depth
+        assert np.all(dy >= -1e-12) and np.all(p.depth >= yn * (1 - 1e-9))
+    else:  # M2: the weir is lower than normal depth and draws the water down
+        assert np.all(dy <= 1e-12) and np.all(p.depth <= yn * (1 + 1e-9)) and np.all(p.depth > yc)
+    assert p.depth[-1] == p.depth.max() if y_end > yn else p.depth[-1] == p.depth.min()
 
 
 def test_other_weir_formulas_set_their_heads():
@@ -463,7 +484,8 @@ def test_structures_at_the_wrong_end_or_section():
                  downstream=gv.Weir(crest_height=1.0, crest_length=4.0)).solve()
 
 
-PIPE = st.CircularBarrel(diameter=1.2, length=40.0, slope=0.01, roughness=0.012, inlet="concrete_pipe_groove_end_headwall")
+PIPE = st.CircularBarrel(diameter=1.2, length=40.0, slope=0.01, roughness=0.012,
+                         inlet="concrete_pipe_groove_end_headwall")
 CH = st.DownstreamChannel(section=gv.Trapezoidal(bottom_width=2.0, side_slope=2.0), slope=0.002,
                           roughness=gv.Manning(0.03))
 ROUND_TRIP = {

@@ -24,8 +24,9 @@ discharge a channel draws from a pool at a given level.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Annotated, Callable, ClassVar, Literal, Optional
+from typing import Annotated, ClassVar, Literal
 
 import numpy as np
 from pydantic import Field, ValidationError, model_validator
@@ -213,12 +214,12 @@ class Weir(_StructureControl):
     kind: Literal["weir"] = "weir"
     crest_height: float = Field(gt=0, allow_inf_nan=False)
     formula: str = "rehbock"
-    crest_length: Optional[float] = Field(default=None, gt=0, allow_inf_nan=False)
+    crest_length: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     end_contractions: int = Field(default=0, ge=0, le=2)
-    notch_angle: Optional[float] = Field(default=None, ge=20, le=100, allow_inf_nan=False)
-    discharge_coefficient: Optional[float] = Field(default=None, gt=0, le=1.5, allow_inf_nan=False)
-    tailwater_level: Optional[float] = Field(default=None, allow_inf_nan=False)
-    submergence_limit: Optional[float] = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
+    notch_angle: float | None = Field(default=None, ge=20, le=100, allow_inf_nan=False)
+    discharge_coefficient: float | None = Field(default=None, gt=0, le=1.5, allow_inf_nan=False)
+    tailwater_level: float | None = Field(default=None, allow_inf_nan=False)
+    submergence_limit: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
 
     @model_validator(mode="after")
     def _check_options(self):
@@ -333,7 +334,7 @@ class Weir(_StructureControl):
         for name in ("crest_length", "end_contractions", "notch_angle", "discharge_coefficient", "tailwater_level",
                      "submergence_limit"):
             value = getattr(self, name)
-            if value:
+            if value is not None and not (name == "end_contractions" and value == 0):
                 parts.append(f"{name}={value:g}")
         return f"Weir({', '.join(parts)})"
 
@@ -391,11 +392,11 @@ class Culvert(_StructureControl):
     ends: ClassVar[tuple[str, ...]] = ("downstream",)
     kind: Literal["culvert"] = "culvert"
     barrel: AnyBarrel
-    tailwater: Optional[float] = Field(default=None, ge=0, allow_inf_nan=False)
-    downstream_channel: Optional[DownstreamChannel] = None
+    tailwater: float | None = Field(default=None, ge=0, allow_inf_nan=False)
+    downstream_channel: DownstreamChannel | None = None
     tailwater_velocity: float = Field(default=0.0, ge=0, allow_inf_nan=False)
     invert_offset: float = Field(default=0.0, allow_inf_nan=False)
-    allowable_headwater: Optional[float] = Field(default=None, gt=0, allow_inf_nan=False)
+    allowable_headwater: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     exit_loss: float = Field(default=1.0, ge=0, le=1, allow_inf_nan=False)
     steps: int = Field(default=100, ge=1)
 
@@ -876,8 +877,8 @@ def solve_discharge_from_pool(reach, *, method="standard_step", n_steps: int = 1
 
     pool = reach.upstream
     if not isinstance(pool, Pool):
-        raise InvalidInputError(f"solve_discharge_from_pool needs a reach whose upstream control is gv.Pool(level=...); "
-                                f"got upstream={pool!r}")
+        raise InvalidInputError("solve_discharge_from_pool needs a reach whose upstream control is "
+                                f"gv.Pool(level=...); got upstream={pool!r}")
     if not (isinstance(rtol, float) and 4 * np.finfo(float).eps <= rtol < 1):
         raise InvalidInputError(f"rtol must be a float between 1e-15 and 1; got {rtol!r}")
     units = reach.resolved_units
@@ -919,7 +920,12 @@ def solve_discharge_from_pool(reach, *, method="standard_step", n_steps: int = 1
             raise NoSolutionError(
                 f"the pool would deliver more than {hi:.6g}, the largest discharge the reach can be solved for "
                 f"(at {hi / 0.8:.6g}: {last})")
-        f_hi = 0.0  # round-off at the largest entrance discharge: that is the root
+        if f_hi < -1e-9 * head:
+            raise ConvergenceError(
+                f"the entrance energy at the largest discharge the pool can pass ({hi:.6g}) falls {-f_hi:.3g} short "
+                "of the pool head; the reach solve is not accurate enough there: use more steps (n_steps)",
+                residual=f_hi, last=hi)
+        f_hi = 0.0  # round-off at the largest entrance discharge, which is then the root
     lo = 0.5 * hi
     for _ in range(15):
         try:
