@@ -294,7 +294,8 @@ def many_reaches(count):
         segs = [gv.Segment(length=float(rng.uniform(100.0, 400.0)), slope=float(rng.choice([0.0005, 0.001, 0.002])),
                            section=sec, roughness=float(rng.uniform(0.012, 0.03))) for _ in range(1 + i % 3)]
         yn = gv.normal_depth(sec, q, segs[-1].slope, segs[-1].roughness)
-        reaches.append(gv.Reach(segments=segs, discharge=q, downstream=gv.FixedDepth(float(yn * rng.uniform(1.0, 1.6)))))
+        tailwater = gv.FixedDepth(float(yn * rng.uniform(1.0, 1.6)))
+        reaches.append(gv.Reach(segments=segs, discharge=q, downstream=tailwater))
     return reaches
 
 

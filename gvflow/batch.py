@@ -203,13 +203,13 @@ def _merge(parts: list[BatchSolution]) -> BatchSolution:
                 merged[name].append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"],
                                                  s0.units, s0.alpha, cat["yc"], cat["yn"], s0.spec))
         elif name == "jump_scenario":
-            merged[name] = np.concatenate([v + o for v, o in zip(vals, offsets)])
+            merged[name] = np.concatenate([v + o for v, o in zip(vals, offsets, strict=True)])
         elif isinstance(vals[0], list):
             merged[name] = [item for v in vals for item in v]
         elif name.startswith("jump_"):
             merged[name] = np.concatenate(vals)
         elif name not in shared and isinstance(vals[0], np.ndarray) and vals[0].ndim \
-                and all(v.shape[0] == s for v, s in zip(vals, sizes)):
+                and all(v.shape[0] == s for v, s in zip(vals, sizes, strict=True)):
             merged[name] = np.concatenate(vals, axis=0)  # one row per scenario
         else:
             merged[name] = vals[0]  # shared by every scenario
@@ -489,7 +489,7 @@ class SweepResult:
         self.jump_count = np.bincount(self.jump_scenario, minlength=n)
         first = np.full(n, np.nan)
         # jumps are ordered by scenario then x: the first row of each scenario is its most upstream jump
-        rows = np.flatnonzero(np.r_[True, np.diff(self.jump_scenario) != 0]) if self.jump_scenario.size else np.zeros(0, int)
+        rows = np.flatnonzero(np.diff(self.jump_scenario, prepend=-1) != 0)
         first[self.jump_scenario[rows]] = self.jump_x[rows]
         self.first_jump_x = first
         self._jump_ptr = np.concatenate([[0], np.cumsum(self.jump_count)]).astype(np.int64)

@@ -234,7 +234,7 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, s
         k = len(specs)
         u = np.repeat(rng.random((n, 1)), k, axis=1) if correlated else rng.random((n, k))
         coef = np.empty((n, k))
-        for j, (s, seg) in enumerate(zip(specs, reach.segments)):
+        for j, (s, seg) in enumerate(zip(specs, reach.segments, strict=True)):
             if s is None:
                 coef[:, j] = seg.roughness.kernel_spec()[1]
             else:

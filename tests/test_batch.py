@@ -63,7 +63,7 @@ def assert_same_profile(a, b, tol=1e-12):
     assert a.profile_types == b.profile_types
     assert [p.label for p in a.pieces] == [p.label for p in b.pieces]
     assert len(a.jumps) == len(b.jumps)
-    for ja, jb in zip(a.jumps, b.jumps):
+    for ja, jb in zip(a.jumps, b.jumps, strict=True):
         for f in ("x", "upstream_depth", "downstream_depth", "froude", "energy_loss", "length"):
             assert getattr(ja, f) == pytest.approx(getattr(jb, f), rel=tol, abs=tol), f
         assert (ja.kind, ja.segment, ja.where) == (jb.kind, jb.segment, jb.where)
@@ -124,7 +124,7 @@ def test_every_scenario_is_identical_to_solving_it_alone(name):
         # the per-scenario summaries agree with the Profile's
         assert types[i] == alone.profile_types
         assert len(jumps[i]) == len(alone.jumps) == result.jump_count[i]
-        for ja, jb in zip(jumps[i], alone.jumps):
+        for ja, jb in zip(jumps[i], alone.jumps, strict=True):
             assert ja.x == pytest.approx(jb.x, rel=1e-12)
             assert ja.froude == pytest.approx(jb.froude, rel=1e-12)
             assert ja.energy_loss == pytest.approx(jb.energy_loss, rel=1e-10, abs=1e-12)
@@ -201,7 +201,7 @@ def test_jump_sequent_depths_satisfy_belanger_in_every_scenario():
     q = np.linspace(8.0, 13.0, 6)
     result = chute().sweep(discharge=q, n_steps=100)
     assert result.jump_count.tolist() == [1] * 6
-    for s, y1, y2 in zip(result.jump_scenario, result.jump_upstream_depth, result.jump_downstream_depth):
+    for s, y1, y2 in zip(result.jump_scenario, result.jump_upstream_depth, result.jump_downstream_depth, strict=True):
         assert y2 == pytest.approx(belanger(y1, q[s]), rel=1e-8)
     # the jump sits in the stilling reach (segment 2, x from 160 to 360 m)
     assert np.all((result.jump_x > 160.0) & (result.jump_x < 360.0)) and set(result.jump_segment) == {2}
@@ -322,7 +322,7 @@ def test_solve_many_in_order_with_errors_in_their_slots():
     reaches = small_reaches(12, bad={3, 8})
     out = gv.solve_many(reaches, n_steps=20)
     assert len(out) == 12
-    for i, (r, p) in enumerate(zip(reaches, out)):
+    for i, (r, p) in enumerate(zip(reaches, out, strict=True)):
         if i in (3, 8):
             assert isinstance(p, gv.ControlError) and "below critical depth" in str(p)
         else:

@@ -96,7 +96,7 @@ def test_envelope_of_uniform_flow_is_normal_depth_at_the_roughness_percentiles()
                      downstream=gv.UniformFlow())
     mc = gv.monte_carlo(reach, 101, roughness=gv.Uncertain(0.012, 0.015, 0.020), seed=11, n_steps=20)
     n_sorted = np.sort(mc.roughness[:, 0])
-    for row, k in zip(mc.depth_envelope, (5, 50, 95)):
+    for row, k in zip(mc.depth_envelope, (5, 50, 95), strict=True):
         np.testing.assert_allclose(row, yn_rect(6.0, s0, n_sorted[k]), rtol=1e-8)
     np.testing.assert_allclose(mc.stage_envelope, mc.depth_envelope + mc.bed, rtol=1e-13)
     assert mc.jump_probability == 0.0 and np.all(np.isnan(mc.jump_x_percentiles))
@@ -111,7 +111,7 @@ def test_discharge_uncertainty_envelope_against_closed_form():
                         percentiles=[0, 50, 100])
     q_sorted = np.sort(mc.discharge)
     assert q_sorted[0] >= 3.0 and q_sorted[-1] <= 9.0
-    for row, k in zip(mc.depth_envelope, (0, 50, 100)):
+    for row, k in zip(mc.depth_envelope, (0, 50, 100), strict=True):
         np.testing.assert_allclose(row, yn_rect(q_sorted[k], s0, 0.016), rtol=1e-8)
 
 
