@@ -6,6 +6,9 @@
 1.51
 """
 
+from . import structures
+from .batch import SolveManyError, SweepResult, solve_many
+from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
 from .design import BestSection, best_hydraulic_section
 from .errors import (
     ControlError,
@@ -26,7 +29,35 @@ from .friction import (
     conveyance,
     friction_slope,
 )
+from .io import demo_reach, parse_reach, reach_schema, read_reach, write_profile_csv, write_reach
+from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
+from .plot import plot_profile
+from .profiles import (
+    PROFILE_SHAPES,
+    ProfileTrace,
+    classify,
+    direct_step,
+    gvf_inverse_slope,
+    gvf_slope,
+    gvf_terms,
+    profile_type,
+    trace_profile,
+)
+from .reach import Reach, Segment
+from .result import ControlNote, Profile, ProfilePiece
 from .sections import Circular, Parabolic, Rectangular, Section, Trapezoidal, Triangular, WideRectangular
+from .structures import (
+    BackwaterExtent,
+    Culvert,
+    FreeOverfall,
+    Pool,
+    PoolDischarge,
+    StageDischargeTable,
+    Weir,
+    backwater_extent,
+    solve_discharge_from_pool,
+)
+from .uncertainty import MonteCarloResult, Uncertain, monte_carlo
 from .uniform import (
     CRITICAL_SLOPE_TOLERANCE,
     ConduitCapacity,
@@ -44,17 +75,6 @@ from .uniform import (
     uniform_velocity,
 )
 from .units import SI, US, Units
-from .profiles import (
-    PROFILE_SHAPES,
-    ProfileTrace,
-    classify,
-    direct_step,
-    gvf_inverse_slope,
-    gvf_slope,
-    gvf_terms,
-    profile_type,
-    trace_profile,
-)
 from .verify import (
     bresse_length,
     depth_at_distance,
@@ -63,26 +83,6 @@ from .verify import (
     profile_length,
     varied_flow_function,
 )
-from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
-from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
-from .reach import Reach, Segment
-from . import structures
-from .structures import (
-    BackwaterExtent,
-    Culvert,
-    FreeOverfall,
-    Pool,
-    PoolDischarge,
-    StageDischargeTable,
-    Weir,
-    backwater_extent,
-    solve_discharge_from_pool,
-)
-from .result import ControlNote, Profile, ProfilePiece
-from .batch import SolveManyError, SweepResult, solve_many
-from .uncertainty import MonteCarloResult, Uncertain, monte_carlo
-from .io import demo_reach, parse_reach, reach_schema, read_reach, write_profile_csv, write_reach
-from .plot import plot_profile
 
 __version__ = "0.1.0"
 

@@ -367,7 +367,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     sol = BatchSolution(x=x, segment=seg_ix, bed=bed, depth=depth, regime=regime, segs=segs,
                         slope_class=classes, notes=notes)
     if jumps:
-        arr = list(zip(*jumps))
+        arr = list(zip(*jumps, strict=True))
         sol.jump_scenario = np.array(arr[0], int)
         sol.jump_x = np.array(arr[1], float)
         sol.jump_y1 = np.array(arr[2], float)
@@ -398,23 +398,7 @@ def _refine(jumps, marcher, seg, x, sub_y, k):
     y_sup0 = np.array([jumps[j][2] for j in rows])
     x_lo, x_hi = x[after], x[after + 1]
     y_sub1 = sub_y[s_idx, after + 1]
-    sub = seg.take(s_idx)
-    local = np.arange(s_idx.size)
-
-    def depths(xq):
-        ys = marcher.step_many(sub, local, y_sup0, x_lo, xq, SUPER)
-        yb = marcher.step_many(sub, local, y_sub1, x_hi, xq, SUB)
-        ys = np.where(np.isfinite(ys), ys, sub.yc)
-        yb = np.where(np.isfinite(yb), yb, sub.yc)
-        return ys, yb
-
-    def fun(xq):
-        ys, yb = depths(xq)
-        return sub.specific_force(ys) - sub.specific_force(yb)
-
-    span = x_hi - x_lo
-    xj = bracketed_root(fun, x_lo, x_hi, rtol=0.0, atol=1e-10 * span + 1e-12, what="jump location")
-    ys, yb = depths(xj)
+    xj, ys, yb = marcher.locate_jumps(seg.take(s_idx), y_sup0, x_lo, y_sub1, x_hi)
     for r, j in enumerate(rows):
         s, _, _, _, kk, aft, junc = jumps[j]
         jumps[j] = (s, float(xj[r]), float(ys[r]), float(yb[r]), kk, aft, junc)

@@ -31,15 +31,15 @@ from dataclasses import fields
 from functools import cached_property
 
 import numpy as np
-from numba import njit
 
+from ._pieces import profile_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution, solve_batch
 from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .jumps import Jump, jump_length, jump_type
 from .profiles import get_marcher
 from .profiles.base import SegmentBatch
-from .result import UNIFORM_TOLERANCE, Profile
+from .result import Profile
 
 __all__ = ["SweepResult", "sweep", "solve_many", "SolveManyError", "REGIME_CODES"]
 
@@ -307,110 +307,6 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     return SweepResult(reach, sol, q, coef, method=getattr(marcher, "name", str(method)))
 
 
-# -- profile pieces of every scenario (mirrors Profile.from_batch) -----------------------------------
-
-
-@njit(cache=True)
-def _scenario_sequence(x, y, r, seg, j_after, j_x, j_y1, j_y2, j_seg, j_junc):
-    """Stations of one scenario as Profile.from_batch lays them out for its pieces: the jumps inserted."""
-    m = x.shape[0]
-    nj = j_after.shape[0]
-    total = m + 2 * nj
-    xs = np.empty(total)
-    ys = np.empty(total)
-    rs = np.empty(total, np.int64)
-    ks = np.empty(total, np.int64)
-    p = 0
-    for j in range(m):
-        xs[p] = x[j]
-        ys[p] = y[j]
-        rs[p] = r[j]
-        ks[p] = seg[j]
-        p += 1
-        for t in range(nj):
-            if j_after[t] == j and not j_junc[t]:
-                xs[p] = j_x[t]
-                ys[p] = j_y1[t]
-                rs[p] = -1
-                ks[p] = j_seg[t]
-                xs[p + 1] = j_x[t]
-                ys[p + 1] = j_y2[t]
-                rs[p + 1] = 1
-                ks[p + 1] = j_seg[t]
-                p += 2
-    return xs[:p], ys[:p], rs[:p], ks[:p]
-
-
-@njit(cache=True)
-def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
-            count, out_s, out_k, out_r, out_x0, out_x1, out_med):
-    """Continuous profile pieces of every scenario, sorted by (x_start, x_end) within each scenario.
-
-    The rules of :func:`gvflow.result._pieces` (one scenario there, all of
-    them here): runs of one regime inside one segment between jumps, skipping
-    those at normal depth throughout (uniform flow), labelled by their median
-    depth, extended through a critical-depth station at either end. With
-    ``count`` true only counts them; otherwise fills the out arrays and
-    returns the number written.
-    """
-    n = depth.shape[0]
-    w = 0
-    for s in range(n):
-        a, b = jump_ptr[s], jump_ptr[s + 1]
-        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
-                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
-        p = xs.shape[0]
-        w0 = w
-        start = 0
-        for j in range(1, p + 1):
-            if j < p and ks[j] == ks[j - 1] and xs[j] != xs[j - 1]:
-                continue
-            # part = [start, j)
-            for want in (-1, 1):
-                i = start
-                while i < j:
-                    if rs[i] != want:
-                        i += 1
-                        continue
-                    e = i
-                    while e + 1 < j and rs[e + 1] == want:
-                        e += 1
-                    k = ks[i]
-                    ynk = yn[s, k]
-                    uniform = np.isfinite(ynk)
-                    if uniform:
-                        for t in range(i, e + 1):
-                            if abs(ys[t] - ynk) > uni_tol * ynk:
-                                uniform = False
-                                break
-                    if not uniform:
-                        if not count:
-                            first = i - 1 if i > start and rs[i - 1] == 0 else i
-                            last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
-                            out_s[w] = s
-                            out_k[w] = k
-                            out_r[w] = want
-                            out_x0[w] = xs[first]
-                            out_x1[w] = xs[last]
-                            out_med[w] = np.median(ys[i:e + 1])
-                        w += 1
-                    i = e + 1
-            start = j
-        if not count:
-            # stable insertion sort of this scenario's pieces by (x_start, x_end)
-            for u in range(w0 + 1, w):
-                v = u
-                while v > w0 and (out_x0[v - 1] > out_x0[v] or (out_x0[v - 1] == out_x0[v]
-                                                                  and out_x1[v - 1] > out_x1[v])):
-                    for arr in (out_x0, out_x1, out_med):
-                        arr[v - 1], arr[v] = arr[v], arr[v - 1]
-                    out_s[v - 1], out_s[v] = out_s[v], out_s[v - 1]
-                    out_k[v - 1], out_k[v] = out_k[v], out_k[v - 1]
-                    out_r[v - 1], out_r[v] = out_r[v], out_r[v - 1]
-                    v -= 1
-    return w
-
-
 # -- the stacked result -----------------------------------------------------------------------------
 
 
@@ -568,32 +464,7 @@ class SweepResult:
     @cached_property
     def profile_types(self) -> list[list[str]]:
         """Profile labels of every scenario, upstream to downstream (as in :attr:`Profile.profile_types`)."""
-        from .profiles.classify import classify
-
-        sol = self._sol
-        args = (np.ascontiguousarray(self.x, float), np.ascontiguousarray(self.depth, float),
-                np.ascontiguousarray(sol.regime, np.int64), np.ascontiguousarray(self.segment, np.int64),
-                self._jump_ptr, np.ascontiguousarray(sol.jump_after, np.int64),
-                np.ascontiguousarray(self.jump_x, float), np.ascontiguousarray(self.jump_upstream_depth, float),
-                np.ascontiguousarray(self.jump_downstream_depth, float),
-                np.ascontiguousarray(self.jump_segment, np.int64),
-                np.ascontiguousarray(sol.jump_at_junction, np.bool_),
-                np.ascontiguousarray(self.normal_depths, float), UNIFORM_TOLERANCE)
-        empty_i, empty_f = np.empty(0, np.int64), np.empty(0)
-        total = _pieces(*args, True, empty_i, empty_i, empty_i, empty_f, empty_f, empty_f)
-        s, k, r = (np.empty(total, np.int64) for _ in range(3))
-        x0, x1, med = (np.empty(total) for _ in range(3))
-        _pieces(*args, False, s, k, r, x0, x1, med)
-        labels = np.empty(total, dtype=object)
-        cls = self.slope_classes[s, k]
-        for c in np.unique(cls):
-            sel = cls == c
-            labels[sel] = np.atleast_1d(classify(str(c), med[sel], self.normal_depths[s[sel], k[sel]],
-                                                 self.critical_depths[s[sel], k[sel]])).astype(str)
-        counts = np.bincount(s, minlength=len(self))
-        flat = labels.tolist()
-        bounds = np.concatenate([[0], np.cumsum(counts)])
-        return [flat[bounds[i]:bounds[i + 1]] for i in range(len(self))]
+        return [[p.label for p in pieces] for pieces in profile_pieces(self._sol, np.arange(len(self)))]
 
     # -- scenarios as profiles ------------------------------------------------------------------
     def scenario_reach(self, i: int):

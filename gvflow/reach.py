@@ -11,7 +11,7 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Any, Literal, Optional, Union
+from typing import Annotated, Any, Literal
 
 import numpy as np
 from pydantic import Field, field_validator, model_validator
@@ -29,8 +29,8 @@ from .units import Units, resolve_units
 __all__ = ["Segment", "Reach", "AnyControl"]
 
 AnyControl = Annotated[
-    Union[FixedDepth, FixedStage, UniformFlow, CriticalFlow, SluiceGate, Weir, Culvert, FreeOverfall,
-          StageDischargeTable, Pool],
+    FixedDepth | FixedStage | UniformFlow | CriticalFlow | SluiceGate | Weir | Culvert | FreeOverfall
+    | StageDischargeTable | Pool,
     Field(discriminator="kind"),
 ]
 
@@ -56,7 +56,7 @@ class Segment(FrozenModel):
     slope: float = Field(allow_inf_nan=False, gt=-1, lt=1)
     section: AnySection
     roughness: AnyRoughness
-    name: Optional[str] = None
+    name: str | None = None
 
     @field_validator("roughness", mode="before")
     @classmethod
@@ -98,12 +98,12 @@ class Reach(FrozenModel):
 
     segments: list[Segment] = Field(min_length=1)
     discharge: float = Field(gt=0, allow_inf_nan=False)
-    upstream: Optional[AnyControl] = None
-    downstream: Optional[AnyControl] = None
-    units: Union[Literal["SI", "US"], Units] = "SI"
+    upstream: AnyControl | None = None
+    downstream: AnyControl | None = None
+    units: Literal["SI", "US"] | Units = "SI"
     datum: float = Field(default=0.0, allow_inf_nan=False)
     alpha: float = Field(default=1.0, ge=1.0, le=2.0, allow_inf_nan=False)
-    name: Optional[str] = None
+    name: str | None = None
 
     @model_validator(mode="after")
     def _check_controls(self):

@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._pieces import ProfilePiece, profile_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, jump_length, jump_type
@@ -13,22 +14,7 @@ from .jumps import Jump, jump_length, jump_type
 __all__ = ["Profile", "ProfilePiece", "ControlNote"]
 
 _REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
-#: depths within this relative distance of normal depth all along a piece count as uniform flow
-UNIFORM_TOLERANCE = 1e-6
-
-
-@dataclass(frozen=True)
-class ProfilePiece:
-    """One continuous gradually varied flow profile on one segment."""
-
-    label: str
-    segment: int
-    x_start: float
-    x_end: float
-    regime: str
-
-    def __repr__(self):
-        return f"ProfilePiece({self.label}, segment {self.segment}, x {self.x_start:.2f}-{self.x_end:.2f})"
+_REGIME_LOOKUP = np.array([_REGIME_NAMES[REGIME_SUPER], _REGIME_NAMES[REGIME_CRITICAL], _REGIME_NAMES[REGIME_SUB]])
 
 
 @dataclass(frozen=True)
@@ -51,38 +37,6 @@ def _station_props(sol: BatchSolution, i: int, seg_ix, depth):
         seg = sol.segs[k].take(np.array([i]))
         out[:, sel] = seg.properties(depth[sel][None, :])[:, 0, :]
     return out
-
-
-def _pieces(x, y, reg, seg, yn, yc, classes):
-    """Continuous profile pieces: split at segments, jumps and regime changes, labelled by type.
-
-    A piece runs through the critical-depth stations at its ends (where it
-    starts from or runs into critical depth); stretches of uniform flow are
-    not gradually varied flow and get no piece.
-    """
-    from .profiles.classify import classify
-
-    pieces = []
-    brk = np.flatnonzero((np.diff(seg) != 0) | ((np.diff(x) == 0) & (np.diff(seg) == 0))) + 1
-    for part in np.split(np.arange(x.size), brk):
-        k = int(seg[part[0]])
-        for want in (REGIME_SUPER, REGIME_SUB):
-            sel = part[reg[part] == want]
-            if sel.size == 0:
-                continue
-            for run in np.split(sel, np.flatnonzero(np.diff(sel) > 1) + 1):
-                ys = y[run]
-                if np.isfinite(yn[k]) and np.all(np.abs(ys - yn[k]) <= UNIFORM_TOLERANCE * yn[k]):
-                    continue
-                first, last = run[0], run[-1]
-                if first > part[0] and reg[first - 1] == REGIME_CRITICAL:
-                    first -= 1
-                if last < part[-1] and reg[last + 1] == REGIME_CRITICAL:
-                    last += 1
-                label = classify(classes[k], float(np.median(ys)), float(yn[k]), float(yc[k]))
-                pieces.append(ProfilePiece(label, k, float(x[first]), float(x[last]), _REGIME_NAMES[want]))
-    pieces.sort(key=lambda p: (p.x_start, p.x_end))
-    return pieces
 
 
 class Profile:
@@ -122,7 +76,7 @@ class Profile:
         self.specific_energy = depth + self.velocity_head
         self.energy_grade = self.stage + self.velocity_head
         self.friction_slope = sf
-        self.regime = np.array([_REGIME_NAMES[int(r)] for r in regime])
+        self.regime = _REGIME_LOOKUP[np.asarray(regime, int) + 1]
         self.segment = segment
         self.jumps = jumps
         self.pieces = pieces
@@ -137,7 +91,7 @@ class Profile:
 
     # -- construction --------------------------------------------------------------------
     @classmethod
-    def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> "Profile":
+    def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> Profile:
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
         x = sol.x.astype(float)
         y = sol.depth[i].astype(float)
@@ -163,7 +117,7 @@ class Profile:
         yn = np.array([s.yn[i] for s in sol.segs])
         yc = np.array([s.yc[i] for s in sol.segs])
         classes = [str(c) for c in sol.slope_class[i]]
-        pieces = _pieces(x, y, reg, seg, yn, yc, classes)
+        pieces = profile_pieces(sol, [i])[0]
         # a junction station appears twice; keep one where nothing changes across it
         dup = np.flatnonzero((np.diff(x) == 0) & (np.diff(seg) != 0))
         same = np.abs(y[dup + 1] - y[dup]) <= 1e-12 * y[dup]

@@ -8,7 +8,7 @@ used in reports and plots. Lengths are in the system's length unit throughout.
 
 from __future__ import annotations
 
-from typing import Literal, Union
+from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
@@ -77,7 +77,7 @@ class Units(BaseModel):
 SI = Units(g=9.80665, manning_k=1.0, length="m", kinematic_viscosity=1.004e-6, name="SI")
 US = Units(g=32.174, manning_k=1.486, length="ft", kinematic_viscosity=1.081e-5, name="US")
 
-UnitsLike = Union[Literal["SI", "US"], Units]
+UnitsLike = Literal["SI", "US"] | Units
 
 
 def resolve_units(units: UnitsLike | str = "SI") -> Units:

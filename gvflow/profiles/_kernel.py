@@ -427,3 +427,77 @@ def step_many(kind, p0, p1, p2, law, coef, q, s0, y1, x1, x2, yc, branch, alpha,
                        k, g, nu, ymax, tol, y1[i])
         out[i] = y if code == 0 else math.nan
     return out
+
+
+@njit(cache=True)
+def force_or_energy(kind, p0, p1, p2, q, y, g, alpha, energy, out):
+    """Specific force (energy=False) or specific energy (energy=True) for y[s, j] at discharge q[s]."""
+    for s in range(y.shape[0]):
+        qs = q[s]
+        for j in range(y.shape[1]):
+            yj = y[s, j]
+            if not (yj > 0.0):
+                out[s, j] = math.nan
+                continue
+            a, p, t, m, dp = geom(kind, p0, p1, p2, yj)
+            if energy:
+                out[s, j] = yj + alpha * qs * qs / (2.0 * g * a * a)
+            else:
+                out[s, j] = qs * qs / (g * a) + m
+
+
+@njit(cache=True)
+def _branch_depth(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol):
+    """Depth a signed distance d from (y1) along ``branch``; critical depth where the branch ends."""
+    if d == 0.0:
+        return y1
+    y, code = step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol, y1)
+    if code == 1:
+        y, code = substeps(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax,
+                           tol)
+    return y if code == 0 else yc
+
+
+@njit(cache=True)
+def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, yc, alpha, ce, avg, k, g, nu,
+                 ymax, tol, out_x, out_y1, out_y2):
+    """Jump location between two stations, where M(supercritical) = M(subcritical), for each element.
+
+    The supercritical profile is stepped downstream from (x_lo, y_sup), the
+    subcritical one upstream from (x_hi, y_sub); the Illinois variant of
+    regula falsi finds where their specific forces balance, to 1e-10 of the
+    station spacing.
+    """
+    for i in range(q.shape[0]):
+        a, b = x_lo[i], x_hi[i]
+        xtol = 1e-10 * (b - a) + 1e-12
+        ys = y_sup[i]
+        yb = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sub[i], a - b, yc[i], 1, alpha, ce, avg, k,
+                           g, nu, ymax, tol)
+        fa = specific_force(kind, p0, p1, p2, q[i], g, ys) - specific_force(kind, p0, p1, p2, q[i], g, yb)
+        ys = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sup[i], b - a, yc[i], -1, alpha, ce, avg, k,
+                           g, nu, ymax, tol)
+        yb = y_sub[i]
+        fb = specific_force(kind, p0, p1, p2, q[i], g, ys) - specific_force(kind, p0, p1, p2, q[i], g, yb)
+        for _ in range(200):
+            if abs(b - a) <= xtol or fb == 0.0:
+                break
+            x = b - fb * (b - a) / (fb - fa)
+            if not (min(a, b) < x < max(a, b)):
+                x = 0.5 * (a + b)
+            ys = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sup[i], x - x_lo[i], yc[i], -1, alpha,
+                               ce, avg, k, g, nu, ymax, tol)
+            yb = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sub[i], x - x_hi[i], yc[i], 1, alpha,
+                               ce, avg, k, g, nu, ymax, tol)
+            fx = specific_force(kind, p0, p1, p2, q[i], g, ys) - specific_force(kind, p0, p1, p2, q[i], g, yb)
+            if (fx > 0.0) != (fb > 0.0):
+                a, fa = b, fb  # the root lies between b and x
+            else:
+                fa *= 0.5  # Illinois: the retained end's residual is halved
+            b, fb = x, fx
+        xj = a if fa == 0.0 else b
+        out_x[i] = xj
+        out_y1[i] = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sup[i], xj - x_lo[i], yc[i], -1,
+                                  alpha, ce, avg, k, g, nu, ymax, tol)
+        out_y2[i] = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sub[i], xj - x_hi[i], yc[i], 1,
+                                  alpha, ce, avg, k, g, nu, ymax, tol)

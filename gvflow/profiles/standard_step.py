@@ -95,3 +95,13 @@ class StandardStep(Marcher):
                           x1.ravel(), x2.ravel(), seg.yc[idx], int(branch), seg.alpha, self.eddy_loss,
                           K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol)
         return out.reshape(shape)
+
+    def locate_jumps(self, seg, y_sup, x_lo, y_sub, x_hi):
+        kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
+        n = seg.n
+        out_x, out_y1, out_y2 = np.empty(n), np.empty(n), np.empty(n)
+        args = [np.ascontiguousarray(np.broadcast_to(np.asarray(v, float), (n,))) for v in (y_sup, x_lo, y_sub, x_hi)]
+        K.locate_jumps(kind, p0, p1, p2, law, seg.coef, seg.discharge, seg.slope, args[0], args[1], args[2], args[3],
+                       seg.yc, seg.alpha, self.eddy_loss, K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol,
+                       out_x, out_y1, out_y2)
+        return out_x, out_y1, out_y2

@@ -1,0 +1,169 @@
+"""Continuous profile pieces and their labels (private), for one profile or a whole sweep.
+
+A piece is a run of one regime (subcritical or supercritical) inside one
+segment between jumps; a piece runs through the critical-depth stations at
+its ends (where it starts from or runs into critical depth). Stretches at
+normal depth throughout are uniform flow, not gradually varied flow, and get
+no piece. Each piece is labelled (M1 ... A3) from its median depth.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from numba import njit
+
+__all__ = ["ProfilePiece", "profile_pieces", "UNIFORM_TOLERANCE"]
+
+#: depths within this relative distance of normal depth all along a piece count as uniform flow
+UNIFORM_TOLERANCE = 1e-6
+_REGIME_NAMES = {-1: "supercritical", 1: "subcritical"}
+
+
+@dataclass(frozen=True)
+class ProfilePiece:
+    """One continuous gradually varied flow profile on one segment."""
+
+    label: str
+    segment: int
+    x_start: float
+    x_end: float
+    regime: str
+
+    def __repr__(self):
+        return f"ProfilePiece({self.label}, segment {self.segment}, x {self.x_start:.2f}-{self.x_end:.2f})"
+
+
+@njit(cache=True)
+def _scenario_sequence(x, y, r, seg, j_after, j_x, j_y1, j_y2, j_seg, j_junc):
+    """Stations of one scenario as Profile.from_batch lays them out for its pieces: the jumps inserted."""
+    m = x.shape[0]
+    nj = j_after.shape[0]
+    total = m + 2 * nj
+    xs = np.empty(total)
+    ys = np.empty(total)
+    rs = np.empty(total, np.int64)
+    ks = np.empty(total, np.int64)
+    p = 0
+    for j in range(m):
+        xs[p] = x[j]
+        ys[p] = y[j]
+        rs[p] = r[j]
+        ks[p] = seg[j]
+        p += 1
+        for t in range(nj):
+            if j_after[t] == j and not j_junc[t]:
+                xs[p] = j_x[t]
+                ys[p] = j_y1[t]
+                rs[p] = -1
+                ks[p] = j_seg[t]
+                xs[p + 1] = j_x[t]
+                ys[p + 1] = j_y2[t]
+                rs[p + 1] = 1
+                ks[p + 1] = j_seg[t]
+                p += 2
+    return xs[:p], ys[:p], rs[:p], ks[:p]
+
+
+@njit(cache=True)
+def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
+            count, out_s, out_k, out_r, out_x0, out_x1, out_med):
+    """Continuous profile pieces of every scenario, sorted by (x_start, x_end) within each scenario.
+
+    Runs of one regime inside one segment between jumps, skipping
+    those at normal depth throughout (uniform flow), labelled by their median
+    depth, extended through a critical-depth station at either end. With
+    ``count`` true only counts them; otherwise fills the out arrays and
+    returns the number written.
+    """
+    n = depth.shape[0]
+    w = 0
+    for s in range(n):
+        a, b = jump_ptr[s], jump_ptr[s + 1]
+        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
+                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
+        p = xs.shape[0]
+        w0 = w
+        start = 0
+        for j in range(1, p + 1):
+            if j < p and ks[j] == ks[j - 1] and xs[j] != xs[j - 1]:
+                continue
+            # part = [start, j)
+            for want in (-1, 1):
+                i = start
+                while i < j:
+                    if rs[i] != want:
+                        i += 1
+                        continue
+                    e = i
+                    while e + 1 < j and rs[e + 1] == want:
+                        e += 1
+                    k = ks[i]
+                    ynk = yn[s, k]
+                    uniform = np.isfinite(ynk)
+                    if uniform:
+                        for t in range(i, e + 1):
+                            if abs(ys[t] - ynk) > uni_tol * ynk:
+                                uniform = False
+                                break
+                    if not uniform:
+                        if not count:
+                            first = i - 1 if i > start and rs[i - 1] == 0 else i
+                            last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
+                            out_s[w] = s
+                            out_k[w] = k
+                            out_r[w] = want
+                            out_x0[w] = xs[first]
+                            out_x1[w] = xs[last]
+                            out_med[w] = np.median(ys[i:e + 1])
+                        w += 1
+                    i = e + 1
+            start = j
+        if not count:
+            # stable insertion sort of this scenario's pieces by (x_start, x_end)
+            for u in range(w0 + 1, w):
+                v = u
+                while v > w0 and (out_x0[v - 1] > out_x0[v] or (out_x0[v - 1] == out_x0[v]
+                                                                  and out_x1[v - 1] > out_x1[v])):
+                    for arr in (out_x0, out_x1, out_med):
+                        arr[v - 1], arr[v] = arr[v], arr[v - 1]
+                    out_s[v - 1], out_s[v] = out_s[v], out_s[v - 1]
+                    out_k[v - 1], out_k[v] = out_k[v], out_k[v - 1]
+                    out_r[v - 1], out_r[v] = out_r[v], out_r[v - 1]
+                    v -= 1
+    return w
+
+
+def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
+    """The labelled pieces of each scenario in ``scenarios`` of a batch solution."""
+    from .profiles.classify import classify
+
+    sc = np.atleast_1d(np.asarray(scenarios, dtype=np.int64))
+    js = sol.jump_scenario
+    lo, hi = np.searchsorted(js, sc, "left"), np.searchsorted(js, sc, "right")
+    rows = np.concatenate([np.arange(a, b) for a, b in zip(lo, hi, strict=True)]).astype(np.int64) \
+        if sc.size else np.zeros(0, np.int64)
+    ptr = np.concatenate([[0], np.cumsum(hi - lo)]).astype(np.int64)
+    yn = np.stack([s.yn for s in sol.segs], axis=1)[sc]
+    yc = np.stack([s.yc for s in sol.segs], axis=1)[sc]
+    args = (np.ascontiguousarray(sol.x, float), np.ascontiguousarray(sol.depth[sc], float),
+            np.ascontiguousarray(sol.regime[sc], np.int64), np.ascontiguousarray(sol.segment, np.int64), ptr,
+            np.ascontiguousarray(sol.jump_after[rows], np.int64), np.ascontiguousarray(sol.jump_x[rows], float),
+            np.ascontiguousarray(sol.jump_y1[rows], float), np.ascontiguousarray(sol.jump_y2[rows], float),
+            np.ascontiguousarray(sol.jump_segment[rows], np.int64),
+            np.ascontiguousarray(sol.jump_at_junction[rows], np.bool_), np.ascontiguousarray(yn), UNIFORM_TOLERANCE)
+    empty_i, empty_f = np.empty(0, np.int64), np.empty(0)
+    total = _pieces(*args, True, empty_i, empty_i, empty_i, empty_f, empty_f, empty_f)
+    s, k, r = (np.empty(total, np.int64) for _ in range(3))
+    x0, x1, med = (np.empty(total) for _ in range(3))
+    _pieces(*args, False, s, k, r, x0, x1, med)
+    labels = np.empty(total, dtype=object)
+    cls = sol.slope_class[sc][s, k] if total else np.empty(0, dtype=object)
+    for c in np.unique(cls):
+        sel = cls == c
+        labels[sel] = np.atleast_1d(classify(str(c), med[sel], yn[s[sel], k[sel]], yc[s[sel], k[sel]])).astype(str)
+    out = [[] for _ in range(sc.size)]
+    for j in range(total):
+        out[s[j]].append(ProfilePiece(str(labels[j]), int(k[j]), float(x0[j]), float(x1[j]), _REGIME_NAMES[int(r[j])]))
+    return out
