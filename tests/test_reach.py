@@ -344,7 +344,8 @@ AGREEMENT_REACHES = {
     "horizontal overfall": gv.Reach(segments=[seg(150.0, 0.0)], discharge=Q, downstream=gv.CriticalFlow()),
     "gate, M3 and jump": gv.Reach(segments=[seg(300.0, 0.001)], discharge=Q, upstream=gv.SluiceGate(opening=0.25),
                                   downstream=gv.FixedDepth(1.3)),
-    "choke": gv.Reach(segments=[seg(300.0, 0.001, gv.Rectangular(width=6.0)), seg(30.0, 0.001, gv.Rectangular(width=1.2)),
+    "choke": gv.Reach(segments=[seg(300.0, 0.001, gv.Rectangular(width=6.0)),
+                                seg(30.0, 0.001, gv.Rectangular(width=1.2)),
                                 seg(300.0, 0.001, gv.Rectangular(width=6.0))], discharge=Q),
 }
 
