@@ -228,7 +228,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         sub_c[:, i0:i0 + m] = c[:, ::-1]
         if k > 0:
             y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
-            c_start = flag | sub_c[:, i0]
+            # critical on the upstream side too where the section is the same, or where it has no subcritical root
+            c_start = flag | (sub_c[:, i0] & (segs[k].spec == segs[k - 1].spec))
     sub_M = np.empty((n, M))
     for k in range(nseg):
         i0, m = bounds[k]
@@ -327,14 +328,16 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             changed = seg.spec != nseg1.spec
             for s in np.flatnonzero(crit_up | crit_dn):
                 if crit_up[s] and changed and classes[s, k] != "steep":
-                    text = (f"choke: critical depth at the end of segment {k}, where segment {k + 1}'s section "
+                    text = (f"critical depth at the end of segment {k}, where segment {k + 1}'s section "
                             "needs more specific energy than the approaching flow carries; the water upstream "
                             f"rises to {depth[s, i0]:.3f} {units.length} at x = {x[i0]:.2f}")
                     notes[s].append((float(x[j0]), "choke", text))
                 else:
-                    notes[s].append((float(x[j0]), "critical control",
-                                     "critical depth where the bed steepens (the flow passes from subcritical "
-                                     "to supercritical)"))
+                    text = "critical depth where the bed steepens (the flow passes from subcritical to supercritical)"
+                    if changed and np.isfinite(seg.yn[s]) and depth[s, i_end] > seg.yn[s] * (1 + 1e-3):
+                        text += (f"; the entrance section holds the water upstream at {depth[s, i_end]:.3f} "
+                                 f"{units.length}, above its normal depth {seg.yn[s]:.3f} {units.length}")
+                    notes[s].append((float(x[j0]), "critical control", text))
         elif act.size:
             for r in np.flatnonzero(gov_sup_end):
                 s = act[r]
