@@ -29,6 +29,7 @@ from .controls import EndState
 from .errors import ControlError, ConvergenceError, NoSolutionError
 from .profiles._kernel import SUB, SUPER
 from .profiles.base import SegmentBatch
+from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
 _M_TOL = 1e-12  # relative tolerance when comparing specific forces
@@ -116,7 +117,12 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
             lo = sub.yc
             hi = np.maximum(target, sub.yc * 1.001)
             if seg_to.section.closed:
-                hi = np.minimum(hi, seg_to.section.max_depth)
+                top = seg_to.section.max_depth
+                hi = np.minimum(hi, top)
+                if np.any(fun(hi) < 0):
+                    raise NoSolutionError(
+                        f"the water entering {seg_to.section!r} from the segment below would stand above its crown: "
+                        "the conduit flows full there; pressure flow is outside gvflow's free-surface model")
             out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
         else:
             lo = sub.yc * 1e-3
@@ -175,7 +181,7 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
 
 
 def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
-                critical_tolerance: float = 1e-3) -> BatchSolution:
+                critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> BatchSolution:
     """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None)."""
     units = reach.resolved_units
     segments = reach.segments
@@ -218,8 +224,14 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 f"{last.yc[i]:.4g} (discharge {q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
                 "subcritical, so its downstream control must be at or above critical depth. For a free "
                 "overfall or a drop use gv.CriticalFlow()")
+    if np.any(~np.isfinite(y_down)):
+        i = int(np.flatnonzero(~np.isfinite(y_down))[0])
+        raise NoSolutionError(
+            f"no downstream depth for discharge {q[i]:g}: {last.section!r} cannot carry it in uniform flow at slope "
+            f"{last.slope:g} (see gv.conduit_capacity); give the reach a downstream control or a larger section")
     y_start = np.where(governs_down, y_down, last.yc)
-    c_start = ~governs_down
+    # a control at critical depth (a brink) makes the end station critical
+    c_start = ~governs_down | (np.abs(y_down - last.yc) <= 1e-12 * last.yc)
     for k in range(nseg - 1, -1, -1):
         i0, m = bounds[k]
         xs = x[i0:i0 + m][::-1]
@@ -402,6 +414,11 @@ def _refine(jumps, marcher, seg, x, sub_y, k):
     x_lo, x_hi = x[after], x[after + 1]
     y_sub1 = sub_y[s_idx, after + 1]
     xj, ys, yb = marcher.locate_jumps(seg.take(s_idx), y_sup0, x_lo, y_sub1, x_hi)
+    bad = ~np.isfinite(xj)
+    if np.any(bad):
+        r = int(np.flatnonzero(bad)[0])
+        raise ConvergenceError(f"the jump between x = {x_lo[r]:.3f} and {x_hi[r]:.3f} could not be located to "
+                               "tolerance; try more steps (n_steps)", iterations=200)
     for r, j in enumerate(rows):
         s, _, _, _, kk, aft, junc = jumps[j]
         jumps[j] = (s, float(xj[r]), float(ys[r]), float(yb[r]), kk, aft, junc)

@@ -40,6 +40,7 @@ from .jumps import Jump, jump_length, jump_type
 from .profiles import get_marcher
 from .profiles.base import SegmentBatch
 from .result import Profile
+from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 __all__ = ["SweepResult", "sweep", "solve_many", "SolveManyError", "REGIME_CODES"]
 
@@ -166,6 +167,9 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale):
     if not given:
         raise InvalidInputError("nothing to sweep: give discharge=, roughness= or roughness_scale= as an array")
     sizes = {k: (v.shape[0] if v.ndim else 1) for k, v in given.items()}
+    empty = [k for k, size in sizes.items() if size == 0]
+    if empty:
+        raise InvalidInputError(f"{empty[0]} must hold at least one value to sweep; got an empty array")
     n = max(sizes.values())
     bad = {k: s for k, s in sizes.items() if s not in (1, n)}
     if bad:
@@ -217,7 +221,7 @@ def _merge(parts: list[BatchSolution]) -> BatchSolution:
 
 
 def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
-          n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = 1e-3,
+          n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE,
           progress=None, chunk_size: int | None = None, **options) -> SweepResult:
     """Solve one reach for many scenarios of discharge and roughness at once.
 

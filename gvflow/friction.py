@@ -169,7 +169,8 @@ def colebrook_friction_factor(reynolds, relative_roughness, *, tol: float = 1e-1
 
     Solves 1/sqrt(f) = -2 log10(eps/3.7 + 2.51/(Re sqrt(f))) by Newton's method
     on x = 1/sqrt(f), starting from the Swamee-Jain explicit estimate. Below
-    Re = 2000 the laminar value f = 64/Re is returned.
+    Re = 2000 the laminar value f = 64/Re is returned (the pipe's; open
+    channels run about 50 % higher, so laminar results are approximate).
 
     Parameters
     ----------

@@ -24,6 +24,7 @@ from .friction import AnyRoughness, as_roughness
 from .profiles import get_marcher
 from .sections import AnySection
 from .structures.controls import Culvert, FreeOverfall, Pool, StageDischargeTable, Weir
+from .uniform import CRITICAL_SLOPE_TOLERANCE
 from .units import Units, resolve_units
 
 __all__ = ["Segment", "Reach", "AnyControl"]
@@ -146,7 +147,7 @@ class Reach(FrozenModel):
 
     # -- solving ------------------------------------------------------------------------
     def solve(self, method="standard_step", *, n_steps: int = 100, max_step: float | None = None,
-              critical_tolerance: float = 1e-3, **options):
+              critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, **options):
         """Solve the mixed-regime water-surface profile.
 
         Parameters
@@ -175,7 +176,7 @@ class Reach(FrozenModel):
         return Profile.from_batch(self, sol, 0, method=getattr(marcher, "name", str(method)))
 
     def sweep(self, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
-              n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = 1e-3,
+              n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE,
               progress=None, chunk_size: int | None = None, **options):
         """Solve this reach for many discharges and roughness values at once.
 

@@ -49,6 +49,8 @@ class Profile:
     energy grade line), ``friction_slope``, ``regime`` ("subcritical",
     "critical", "supercritical") and ``segment`` (index). At a hydraulic jump
     two stations share one x: the supercritical then the subcritical depth.
+    ``froude`` is V / sqrt(g A/T); with an energy coefficient alpha ≠ 1 the
+    flow is critical where alpha Fr² = 1, which ``regime`` reflects.
 
     Other members: ``jumps`` (list of :class:`~gvflow.jumps.Jump`),
     ``profile_types`` (labels of the profile pieces, upstream to downstream),
@@ -237,5 +239,5 @@ class Profile:
     def __repr__(self):
         jumps = ", ".join(f"x={j.x:.2f}" for j in self.jumps) or "none"
         return (f"<Profile Q={self.discharge:g} {self.units.discharge}, {self.x.size} stations over "
-                f"{self.x[-1]:g} {self.units.length}, types {self.profile_types}, jumps: {jumps}, "
-                f"depth {self.depth.min():.3f}-{self.depth.max():.3f} {self.units.length}>")
+                f"{self.x[-1]:g} {self.units.length}, types {self.profile_types}, jumps: {jumps}; "
+                f"depth range {self.depth.min():.3f}-{self.depth.max():.3f} {self.units.length}>")

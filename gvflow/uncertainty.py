@@ -19,6 +19,7 @@ import numpy as np
 from ._validate import finite_array, finite_float
 from .batch import SweepResult, sweep
 from .errors import InvalidInputError
+from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 __all__ = ["Uncertain", "monte_carlo", "MonteCarloResult", "triangular_quantile"]
 
@@ -161,7 +162,7 @@ def _roughness_specs(reach, roughness):
 
 def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, seed=None, correlated: bool = False,
                 percentiles=(5.0, 50.0, 95.0), method="standard_step", n_steps: int = 100,
-                max_step: float | None = None, critical_tolerance: float = 1e-3, progress=None,
+                max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, progress=None,
                 chunk_size: int | None = None, **options) -> MonteCarloResult:
     """Monte Carlo over uncertain roughness and discharge, solved as one vectorised sweep.
 

@@ -401,3 +401,9 @@ def test_solve_many_of_nothing_is_empty():
     assert gv.solve_many([]) == []
     with ThreadPoolExecutor(1) as ex:
         assert gv.solve_many([], ex) == []
+
+
+def test_empty_sweep_is_an_input_error():
+    reach = gv.demo_reach()
+    with pytest.raises(gv.InvalidInputError, match="at least one value"):
+        reach.sweep(discharge=np.array([]))

@@ -366,3 +366,19 @@ def test_standard_step_and_ivp_agree(name):
         near |= np.abs(x - j.x) <= 0.01 * reach.length
     da, db = a.depth_at(x[~near]), b.depth_at(x[~near])
     assert np.max(np.abs(da / db - 1)) <= 5e-3
+
+
+def test_conduit_over_capacity_without_a_downstream_control_is_an_error():
+    pipe = gv.Circular(diameter=1.0)
+    reach = gv.Reach(segments=[gv.Segment(length=100.0, slope=0.001, section=pipe, roughness=0.013)], discharge=5.0)
+    for method in ("standard_step", "ivp"):
+        with pytest.raises(gv.NoSolutionError, match="cannot carry it in uniform flow"):
+            reach.solve(method=method)
+
+
+def test_brink_station_is_critical_with_an_energy_coefficient():
+    """With alpha = 1.3 critical depth satisfies alpha Fr² = 1 (Chow 1959, eq. 4-5), so Fr there is 1/sqrt(1.3)."""
+    reach = gv.Reach(segments=[seg(100.0, 0.001)], discharge=Q, downstream=gv.CriticalFlow(), alpha=1.3)
+    p = reach.solve()
+    assert p.regime[-1] == "critical"
+    assert p.froude[-1] == pytest.approx(1 / math.sqrt(1.3), rel=1e-9)

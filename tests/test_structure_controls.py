@@ -347,6 +347,7 @@ def test_pool_into_steep_trapezoid_with_entrance_loss():
     a = (b + z * yc) * yc
     assert out.entrance == "critical"
     assert yc + (1 + ke) * q * q / (2 * G * a * a) == pytest.approx(head, rel=1e-10)
+    # consistency with gvflow.structures' own pool relations (not validation: the check above is)
     ref = st.pool_discharge(head, sec, 0.03, 0.014, entrance_loss=ke)
     assert ref.control == "critical" and q == pytest.approx(ref.discharge, rel=1e-10)
     assert st.critical_entry_head(q, sec, entrance_loss=ke) == pytest.approx(head, rel=1e-10)

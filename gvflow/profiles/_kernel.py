@@ -58,7 +58,11 @@ def geom(kind, p0, p1, p2, y):
 
 @njit(cache=True)
 def colebrook(re, eps):
-    """Darcy friction factor from Colebrook-White (laminar 64/Re below Re = 2000)."""
+    """Darcy friction factor from Colebrook-White (64/Re below Re = 2000).
+
+    The laminar value is the pipe's; open channels run about 50 % higher (96/Re for
+    a wide channel), so results in the laminar range are approximate.
+    """
     if re < 2000.0:
         return 64.0 / max(re, 1e-300)
     a = eps / 3.7
@@ -466,7 +470,7 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
     The supercritical profile is stepped downstream from (x_lo, y_sup), the
     subcritical one upstream from (x_hi, y_sub); the Illinois variant of
     regula falsi finds where their specific forces balance, to 1e-10 of the
-    station spacing.
+    station spacing. An element that does not converge gets x = NaN.
     """
     for i in range(q.shape[0]):
         a, b = x_lo[i], x_hi[i]
@@ -479,8 +483,18 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
                            g, nu, ymax, tol)
         yb = y_sub[i]
         fb = specific_force(kind, p0, p1, p2, q[i], g, ys) - specific_force(kind, p0, p1, p2, q[i], g, yb)
+        if fa <= 0.0 or fb >= 0.0:
+            # the forces already balance at an end (within round-off of the governance test)
+            out_x[i] = a if fa <= 0.0 else b
+            out_y1[i] = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sup[i], out_x[i] - x_lo[i], yc[i],
+                                      -1, alpha, ce, avg, k, g, nu, ymax, tol)
+            out_y2[i] = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sub[i], out_x[i] - x_hi[i], yc[i],
+                                      1, alpha, ce, avg, k, g, nu, ymax, tol)
+            continue
+        converged = False
         for _ in range(200):
             if abs(b - a) <= xtol or fb == 0.0:
+                converged = True
                 break
             x = b - fb * (b - a) / (fb - fa)
             if not (min(a, b) < x < max(a, b)):
@@ -495,7 +509,10 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
             else:
                 fa *= 0.5  # Illinois: the retained end's residual is halved
             b, fb = x, fx
-        xj = a if fa == 0.0 else b
+        if not converged:
+            out_x[i] = out_y1[i] = out_y2[i] = math.nan
+            continue
+        xj = b
         out_x[i] = xj
         out_y1[i] = _branch_depth(kind, p0, p1, p2, law, coef[i], q[i], s0, y_sup[i], xj - x_lo[i], yc[i], -1,
                                   alpha, ce, avg, k, g, nu, ymax, tol)

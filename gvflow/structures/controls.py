@@ -34,6 +34,7 @@ from pydantic import Field, ValidationError, model_validator
 from .._validate import invalid_input_from
 from ..controls import Control, EndState, rectangular_width
 from ..errors import ControlError, GVFlowError, InvalidInputError
+from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from .culverts import AnyBarrel, DownstreamChannel, culvert_headwater
 from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE
 from .rating import RatingTable
@@ -814,7 +815,8 @@ def _largest_entrance_discharge(section, head, coef, g):
 
 
 def solve_discharge_from_pool(reach, *, method="standard_step", n_steps: int = 100, max_step: float | None = None,
-                              critical_tolerance: float = 1e-3, rtol: float = 1e-10, **options) -> PoolDischarge:
+                              critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, rtol: float = 1e-10,
+                              **options) -> PoolDischarge:
     """Discharge a reach draws from the pool at its upstream end.
 
     The reach's upstream control must be a :class:`Pool`; its ``discharge``
