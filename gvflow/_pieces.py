@@ -153,6 +153,10 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
             np.ascontiguousarray(sol.jump_y1[rows], float), np.ascontiguousarray(sol.jump_y2[rows], float),
             np.ascontiguousarray(sol.jump_segment[rows], np.int64),
             np.ascontiguousarray(sol.jump_at_junction[rows], np.bool_), np.ascontiguousarray(yn), UNIFORM_TOLERANCE)
+    # a closed conduit that cannot carry the discharge in uniform flow is classed mild with no normal
+    # depth: its profiles tend to the crown, which stands in for normal depth when labelling them
+    crown = np.array([s.section.max_depth for s in sol.segs])
+    yn_label = np.where(np.isnan(yn) & (sol.slope_class[sc] == "mild"), crown[None, :], yn)
     empty_i, empty_f = np.empty(0, np.int64), np.empty(0)
     total = _pieces(*args, True, empty_i, empty_i, empty_i, empty_f, empty_f, empty_f)
     s, k, r = (np.empty(total, np.int64) for _ in range(3))
@@ -162,7 +166,8 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     cls = sol.slope_class[sc][s, k] if total else np.empty(0, dtype=object)
     for c in np.unique(cls):
         sel = cls == c
-        labels[sel] = np.atleast_1d(classify(str(c), med[sel], yn[s[sel], k[sel]], yc[s[sel], k[sel]])).astype(str)
+        labels[sel] = np.atleast_1d(classify(str(c), med[sel], yn_label[s[sel], k[sel]],
+                                             yc[s[sel], k[sel]])).astype(str)
     out = [[] for _ in range(sc.size)]
     for j in range(total):
         out[s[j]].append(ProfilePiece(str(labels[j]), int(k[j]), float(x0[j]), float(x1[j]), _REGIME_NAMES[int(r[j])]))

@@ -162,8 +162,9 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
             if np.any(res.code == 3):
                 r = int(np.flatnonzero(res.code == 3)[0])
                 raise ConvergenceError(
-                    f"the standard-step iteration did not converge near x = {x_order[min(stop[r], m - 1)]:.2f}; "
-                    "try more steps (n_steps) or a looser tolerance")
+                    f"the {getattr(marcher, 'name', 'profile')} marcher could not meet its tolerance near x = "
+                    f"{x_order[min(stop[r], m - 1)]:.2f}; try more steps (n_steps), a looser tolerance or the other "
+                    "method")
             failed = cols[None, start:] >= stop[:, None]
             block = np.where(failed, seg.yc[grp, None], res.depth)
             y[grp, start:] = block
@@ -302,8 +303,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                                          "the tailwater drowns the jump against the upstream control: "
                                          "submerged outflow at x = 0"))
                         continue
-                    if carried[s]:
+                    if carried[s] and regime[s, i0 - 1] != REGIME_CRITICAL:
                         jumps.append((s, x[i0], depth[s, i0 - 1], sub_y[s, i0], k, i0 - 1, True))
+                    # (from critical depth at the junction straight into subcritical flow: an expansion
+                    # whose energy difference is lost, not a jump)
                     continue
                 jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
             # refine the jumps inside this segment, all scenarios at once
@@ -339,17 +342,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             nxt = np.where(crit_dn, nseg1.yc, nxt)
             changed = seg.spec != nseg1.spec
             for s in np.flatnonzero(crit_up | crit_dn):
-                if crit_up[s] and changed and classes[s, k] != "steep":
-                    text = (f"critical depth at the end of segment {k}, where segment {k + 1}'s section "
-                            "needs more specific energy than the approaching flow carries; the water upstream "
-                            f"rises to {depth[s, i0]:.3f} {units.length} at x = {x[i0]:.2f}")
-                    notes[s].append((float(x[j0]), "choke", text))
+                if crit_up[s] and changed:
+                    text = (f"critical depth at the end of segment {k}, where the flow passes into the larger "
+                            f"section of segment {k + 1}")
                 else:
                     text = "critical depth where the bed steepens (the flow passes from subcritical to supercritical)"
-                    if changed and np.isfinite(seg.yn[s]) and depth[s, i_end] > seg.yn[s] * (1 + 1e-3):
-                        text += (f"; the entrance section holds the water upstream at {depth[s, i_end]:.3f} "
-                                 f"{units.length}, above its normal depth {seg.yn[s]:.3f} {units.length}")
-                    notes[s].append((float(x[j0]), "critical control", text))
+                notes[s].append((float(x[j0]), "critical control", text))
         elif act.size:
             for r in np.flatnonzero(gov_sup_end):
                 s = act[r]
@@ -359,6 +357,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                                      "the supercritical flow leaves the reach and the jump forms downstream of it"))
         sup_state = nxt
 
+    _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
     if ctrl is not None:
         for s in range(n):
             if governs_down[s] and regime[s, -1] != REGIME_SUPER:
@@ -401,6 +400,24 @@ def _add_details(notes, ctrl, state, depth, x):
     """Append the per-scenario lines a control adds to its note (:meth:`Control.notes`)."""
     for s, lines in enumerate(ctrl.notes(state, depth)):
         notes[s].extend((x, "control detail", text) for text in lines)
+
+
+def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
+    """Note each contraction whose critical section holds the subcritical water upstream above normal depth."""
+    for k in range(len(segs) - 1):
+        if segs[k].spec == segs[k + 1].spec:
+            continue
+        i_end = bounds[k][0] + bounds[k][1] - 1
+        j0, m1 = bounds[k + 1]
+        yn = segs[k].yn
+        raised = (regime[:, i_end] == REGIME_SUB) & np.isfinite(yn) & (depth[:, i_end] > yn * (1 + 1e-3))
+        raised &= np.isin(classes[:, k], ("mild", "critical"))
+        raised &= (regime[:, j0:j0 + m1] == REGIME_CRITICAL).any(axis=1)
+        for s in np.flatnonzero(raised):
+            notes[s].append((float(x[i_end]), "choke",
+                             f"the section of segment {k + 1} passes the flow only through critical depth, which "
+                             f"holds the water upstream at {depth[s, i_end]:.3f} {units.length}, above segment {k}'s "
+                             f"normal depth {yn[s]:.3f} {units.length}"))
 
 
 def _refine(jumps, marcher, seg, x, sub_y, k):

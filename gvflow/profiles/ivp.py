@@ -155,9 +155,13 @@ class IVPMarcher(Marcher):
                 if math.isfinite(prob.yn) and min(y, target) <= prob.yn <= max(y, target):
                     # the profile tends to normal depth inside the band and never reaches
                     # critical depth: x(y) would diverge there, y(x) is regular
-                    in_band = False
                     normal_ahead = True
-                    continue
+                    if abs(y - yc) > 1e-9 * yc:
+                        in_band = False
+                        continue
+                    # but dy/dx is infinite at critical depth itself: leave it by x(y) first,
+                    # halfway toward normal depth
+                    target = 0.5 * (y + prob.yn)
 
                 def hit_end(yy, xx, _e=x_end):
                     return xx[0] - _e

@@ -1,0 +1,56 @@
+"""Property tests of the reach solver over random chains of segments (hypothesis).
+
+Whatever the chain, a solve either raises one of gvflow's ValueError subclasses or returns a profile
+that satisfies its own equations: positive finite depths, x never decreasing, subcritical stations at or
+above critical depth and supercritical ones at or below it, and equal specific force on both sides of
+every jump inside a segment (the momentum balance, Chow 1959, *Open-Channel Hydraulics*, eq. 3-20).
+"""
+
+import numpy as np
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+import gvflow as gv
+
+slopes = st.one_of(st.floats(1e-4, 2e-3), st.floats(5e-3, 0.05), st.just(0.0), st.floats(-2e-3, -1e-4))
+sections = st.one_of(
+    st.builds(lambda b: gv.Rectangular(width=b), st.floats(1.0, 6.0)),
+    st.builds(lambda b, z: gv.Trapezoidal(bottom_width=b, side_slope=z), st.floats(1.0, 5.0), st.floats(0.5, 2.5)),
+    st.builds(lambda d: gv.Circular(diameter=d), st.floats(1.5, 4.0)),
+    st.builds(lambda t: gv.Parabolic(top_width=t, reference_depth=1.0), st.floats(2.0, 8.0)),
+)
+roughness = st.one_of(st.floats(0.011, 0.03), st.builds(lambda c: gv.Chezy(c), st.floats(30.0, 70.0)),
+                      st.builds(lambda ks: gv.DarcyWeisbach(ks), st.floats(1e-4, 0.05)))
+segments = st.builds(lambda L, s, sec, n: gv.Segment(length=L, slope=s, section=sec, roughness=n),
+                     st.floats(20.0, 400.0), slopes, sections, roughness)
+
+
+@settings(max_examples=80, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(segs=st.lists(segments, min_size=1, max_size=3), q=st.floats(0.5, 15.0),
+       down=st.sampled_from(["none", "critical", "high", "normal"]), gate=st.booleans(),
+       method=st.sampled_from(["standard_step", "ivp"]))
+def test_any_chain_solves_consistently_or_says_why(segs, q, down, gate, method):
+    last = segs[-1]
+    yc_last = gv.critical_depth(last.section, q)
+    high = min(2.5 * yc_last, 0.95 * last.section.max_depth)
+    downstream = {"none": None, "critical": gv.CriticalFlow(), "high": gv.FixedDepth(high),
+                  "normal": gv.UniformFlow()}[down]
+    upstream = gv.SluiceGate(opening=0.5 * gv.critical_depth(segs[0].section, q)) if gate else None
+    reach = gv.Reach(segments=segs, discharge=q, upstream=upstream, downstream=downstream)
+    try:
+        p = reach.solve(method=method, n_steps=40)
+    except gv.GVFlowError:
+        return  # an explained refusal (e.g. uniform flow asked for on an adverse bed)
+    assert np.all(np.isfinite(p.depth)) and np.all(p.depth > 0)
+    assert p.x[0] == 0 and np.all(np.diff(p.x) >= 0) and abs(p.x[-1] - reach.length) < 1e-9
+    yc = p.critical_depths[p.segment]
+    sub, sup = p.regime == "subcritical", p.regime == "supercritical"
+    assert np.all(p.depth[sub] >= yc[sub] * (1 - 1e-9))
+    assert np.all(p.depth[sup] <= yc[sup] * (1 + 1e-9))
+    for jump in p.jumps:
+        assert jump.upstream_depth < jump.downstream_depth
+        if jump.where == "in segment":
+            sec = reach.segments[jump.segment].section
+            m1 = gv.specific_force(sec, q, jump.upstream_depth)
+            m2 = gv.specific_force(sec, q, jump.downstream_depth)
+            assert abs(m1 - m2) <= 1e-6 * m2
