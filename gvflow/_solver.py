@@ -56,6 +56,29 @@ class BatchSolution:
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
     notes: list = field(default_factory=list)  # per scenario: list of (x, kind, text)
 
+    _PER_SCENARIO = ("depth", "regime", "slope_class")
+    _JUMPS = ("jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after", "jump_at_junction")
+
+    @classmethod
+    def concatenate(cls, parts: list[BatchSolution]) -> BatchSolution:
+        """One solution from solutions of consecutive blocks of scenarios of the same reach and stations."""
+        if len(parts) == 1:
+            return parts[0]
+        first = parts[0]
+        sizes = [p.depth.shape[0] for p in parts]
+        offsets = np.concatenate([[0], np.cumsum(sizes)[:-1]])
+        segs = []
+        for k, s0 in enumerate(first.segs):
+            cat = {a: np.concatenate([getattr(p.segs[k], a) for p in parts]) for a in ("coef", "discharge", "yc", "yn")}
+            segs.append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"], s0.units, s0.alpha,
+                                     cat["yc"], cat["yn"], s0.spec))
+        out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
+                  notes=[note for p in parts for note in p.notes],
+                  jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
+                  **{f: np.concatenate([getattr(p, f) for p in parts], axis=0) for f in cls._PER_SCENARIO},
+                  **{f: np.concatenate([getattr(p, f) for p in parts]) for f in cls._JUMPS})
+        return out
+
 
 def station_layout(reach, n_steps: int, max_step: float | None):
     """Base stations: every segment gets its own stations, junctions appear twice."""

@@ -27,7 +27,6 @@ import pickle
 import sys
 import warnings
 from concurrent.futures import Executor, as_completed
-from dataclasses import fields
 from functools import cached_property
 
 import numpy as np
@@ -38,7 +37,6 @@ from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .jumps import Jump, jump_length, jump_type
 from .profiles import get_marcher
-from .profiles.base import SegmentBatch
 from .result import Profile
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
@@ -187,39 +185,6 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale):
     return np.ascontiguousarray(q), None if coef is None else np.ascontiguousarray(coef)
 
 
-def _merge(parts: list[BatchSolution]) -> BatchSolution:
-    """One BatchSolution from the solutions of consecutive blocks of scenarios (same reach and stations)."""
-    if len(parts) == 1:
-        return parts[0]
-    first = parts[0]
-    sizes = [p.depth.shape[0] for p in parts]
-    offsets = np.concatenate([[0], np.cumsum(sizes)[:-1]])
-    shared = ("x", "segment", "bed")
-    merged = {}
-    for f in fields(BatchSolution):
-        name = f.name
-        vals = [getattr(p, name) for p in parts]
-        if name == "segs":
-            merged[name] = []
-            for k, s0 in enumerate(first.segs):
-                cat = {a: np.concatenate([getattr(p.segs[k], a) for p in parts])
-                       for a in ("coef", "discharge", "yc", "yn")}
-                merged[name].append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"],
-                                                 s0.units, s0.alpha, cat["yc"], cat["yn"], s0.spec))
-        elif name == "jump_scenario":
-            merged[name] = np.concatenate([v + o for v, o in zip(vals, offsets, strict=True)])
-        elif isinstance(vals[0], list):
-            merged[name] = [item for v in vals for item in v]
-        elif name.startswith("jump_"):
-            merged[name] = np.concatenate(vals)
-        elif name not in shared and isinstance(vals[0], np.ndarray) and vals[0].ndim \
-                and all(v.shape[0] == s for v, s in zip(vals, sizes, strict=True)):
-            merged[name] = np.concatenate(vals, axis=0)  # one row per scenario
-        else:
-            merged[name] = vals[0]  # shared by every scenario
-    return BatchSolution(**merged)
-
-
 def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
           n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE,
           progress=None, chunk_size: int | None = None, **options) -> SweepResult:
@@ -305,7 +270,7 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
             bar.update(sl.stop - sl.start)
     finally:
         bar.close()
-    sol = _merge(parts)
+    sol = BatchSolution.concatenate(parts)
     if coef is None:
         coef = np.stack([s.coef for s in sol.segs], axis=1)
     return SweepResult(reach, sol, q, coef, method=getattr(marcher, "name", str(method)))
