@@ -123,14 +123,17 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
     """
     if seg_from.spec == seg_to.spec:
         return y.copy(), np.zeros(y.shape, bool)
-    e = seg_from.specific_energy(y)
-    yc = seg_to.yc
-    ec = seg_to.specific_energy(yc)
-    ok = e > ec
+    return _depth_with_energy(seg_to, seg_from.specific_energy(y), branch)
+
+
+def _depth_with_energy(seg: SegmentBatch, e, branch):
+    """Depth on ``branch`` whose specific energy in ``seg`` is ``e``; critical depth (flagged) where none is."""
+    yc = seg.yc
+    ok = e > seg.specific_energy(yc)
     out = yc.copy()
     if np.any(ok):
         idx = np.flatnonzero(ok)
-        sub = seg_to.take(idx)
+        sub = seg.take(idx)
         target = e[idx]
 
         def fun(z):
@@ -139,12 +142,12 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
         if branch == SUB:
             lo = sub.yc
             hi = np.maximum(target, sub.yc * 1.001)
-            if seg_to.section.closed:
-                top = seg_to.section.max_depth
+            if seg.section.closed:
+                top = seg.section.max_depth
                 hi = np.minimum(hi, top)
                 if np.any(fun(hi) < 0):
                     raise NoSolutionError(
-                        f"the water entering {seg_to.section!r} from the segment below would stand above its crown: "
+                        f"the water entering {seg.section!r} from the segment below would stand above its crown: "
                         "the conduit flows full there; pressure flow is outside gvflow's free-surface model")
             out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
         else:
@@ -156,6 +159,44 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
                 lo = np.where(need, lo * 0.5, lo)
             out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="depth across a junction")
     return out, ~ok
+
+
+def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):
+    """Depth upstream of a gate between two segments, free or submerged by the water below it.
+
+    Energy is conserved from the upstream pool to the vena contracta, where the
+    jet (depth ``jet``, area A_j) runs under water standing at depth y_v; the
+    momentum balance from there to the subcritical depth ``tail`` downstream
+    gives y_v: A ȳ(y_v) + Q²/(g A_j) = M(tail). The gate flows free while the
+    tailwater's specific force does not exceed the jet's (y_v = jet); then the
+    jump stands clear of the gate (Henderson 1966, *Open Channel Flow*, §6.5;
+    from memory). Returns (upstream depth, submerged mask).
+    """
+    g, q = seg_dn.units.g, seg_dn.discharge
+    a_j = seg_dn.properties(jet)[0]
+    m_tail = np.where(np.isfinite(tail), seg_dn.specific_force(np.where(np.isfinite(tail), tail, jet)), -np.inf)
+    submerged = m_tail > seg_dn.specific_force(jet) * (1 + _M_TOL)
+    y_v = jet.copy()
+    if np.any(submerged):
+        idx = np.flatnonzero(submerged)
+        sub = seg_dn.take(idx)
+        target = m_tail[idx] - q[idx] ** 2 / (g * a_j[idx])
+
+        def fun(z):
+            return sub.properties(z)[3] - target
+
+        y_v[idx] = bracketed_root(fun, jet[idx], tail[idx], rtol=1e-13, what="water level at a submerged gate")
+    e = y_v + seg_dn.alpha * q * q / (2.0 * g * a_j * a_j)
+    y_up, none = _depth_with_energy(seg_up, e, SUB)
+    if np.any(none):
+        i = int(np.flatnonzero(none)[0])
+        raise ControlError(f"{gate!r} between segments does not hold the water back at discharge {q[i]:g}: the jet "
+                           "carries less energy than critical flow upstream needs; the opening is too large")
+    if np.any(y_up <= gate.opening):
+        i = int(np.flatnonzero(y_up <= gate.opening)[0])
+        raise ControlError(f"{gate!r}: the water upstream ({y_up[i]:.4g}) would stand below the gate lip; the "
+                           "opening is too large for this discharge")
+    return y_up, submerged
 
 
 def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
@@ -253,6 +294,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         raise NoSolutionError(
             f"no downstream depth for discharge {q[i]:g}: {last.section!r} cannot carry it in uniform flow at slope "
             f"{last.slope:g} (see gv.conduit_capacity); give the reach a downstream control or a larger section")
+    gate_jet, gate_submerged = {}, {}  # per segment with a gate at its head
     y_start = np.where(governs_down, y_down, last.yc)
     # a control at critical depth (a brink) makes the end station critical
     c_start = ~governs_down | (np.abs(y_down - last.yc) <= 1e-12 * last.yc)
@@ -262,7 +304,14 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         y, c = _march_with_fallback(marcher, segs[k], xs, y_start, c_start, SUB, can_sub_restart[k])
         sub_y[:, i0:i0 + m] = y[:, ::-1]
         sub_c[:, i0:i0 + m] = c[:, ::-1]
-        if k > 0:
+        if k > 0 and segments[k].gate is not None:
+            gate = segments[k].gate
+            jet = np.asarray(gate.depth_at(EndState("upstream", segs[k], float(bed[i0]), classes[:, k])), float)
+            gate_jet[k] = jet
+            tail = np.where(sub_c[:, i0], np.nan, sub_y[:, i0])  # no subcritical water below: free flow
+            y_start, gate_submerged[k] = _through_gate(gate, segs[k - 1], segs[k], jet, tail)
+            c_start = np.zeros(n, bool)
+        elif k > 0:
             y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
             # critical on the upstream side too where the section is the same, or where it has no subcritical root
             c_start = flag | (sub_c[:, i0] & (segs[k].spec == segs[k - 1].spec))
@@ -326,6 +375,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                                          "the tailwater drowns the jump against the upstream control: "
                                          "submerged outflow at x = 0"))
                         continue
+                    if k in gate_jet:
+                        continue  # a submerged gate: noted with the gate below
                     if carried[s] and regime[s, i0 - 1] != REGIME_CRITICAL:
                         jumps.append((s, x[i0], depth[s, i0 - 1], sub_y[s, i0], k, i0 - 1, True))
                     # (from critical depth at the junction straight into subcritical flow: an expansion
@@ -363,6 +414,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 nxt[idx] = yt
                 carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
             nxt = np.where(crit_dn, nseg1.yc, nxt)
+            if k + 1 in gate_jet:  # the gate releases its jet whatever arrives from upstream
+                nxt = gate_jet[k + 1].copy()
+                carried = np.zeros(n, bool)
+                crit_up[:] = crit_dn[:] = False
             changed = seg.spec != nseg1.spec
             for s in np.flatnonzero(crit_up | crit_dn):
                 if crit_up[s] and changed:
@@ -381,6 +436,14 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         sup_state = nxt
 
     _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
+    for k, jet in gate_jet.items():
+        i0 = bounds[k][0]
+        gate = segments[k].gate
+        for s in range(n):
+            how = ("submerged by the water below it" if gate_submerged[k][s]
+                   else f"free flow, jet {jet[s]:.3f} {units.length} deep")
+            notes[s].append((float(x[i0]), "gate", f"{gate.describe(units)} at the head of segment {k}: {how}; "
+                             f"the water upstream stands {depth[s, i0 - 1]:.3f} {units.length} deep"))
     if ctrl is not None:
         for s in range(n):
             if governs_down[s] and regime[s, -1] != REGIME_SUPER:

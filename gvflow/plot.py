@@ -165,12 +165,23 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
 
 
 def _structure_marks(profile):
-    """(label, x, top, bed, text alignment) of each end control that marks itself (Control.plot_mark)."""
+    """(label, x, top, bottom, text alignment) of each structure to draw as a bar.
+
+    End controls mark themselves (Control.plot_mark) from the bed up; a gate
+    between segments is drawn from its lip up to above the water it holds.
+    """
     marks = []
     for ctrl, i, ha in ((profile.reach.upstream, 0, "left"), (profile.reach.downstream, -1, "right")):
         mark = None if ctrl is None else ctrl.plot_mark(float(profile.bed[i]))
         if mark is not None:
             marks.append((mark[0], float(profile.x[i]), float(mark[1]), float(profile.bed[i]), ha))
+    xb = profile.reach.boundaries
+    for k, seg in enumerate(profile.reach.segments):
+        if seg.gate is not None:
+            at = np.isclose(profile.x, xb[k])
+            z_bed = float(profile.bed[at][0])
+            held = float(np.max(profile.stage[at]))
+            marks.append(("gate", float(xb[k]), held + 0.15 * (held - z_bed), z_bed + seg.gate.opening, "center"))
     return marks
 
 

@@ -19,7 +19,7 @@ from pydantic import Field, field_validator, model_validator
 from ._models import FrozenModel
 from ._validate import positive_float
 from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
-from .errors import InvalidInputError
+from .errors import ControlError, InvalidInputError
 from .friction import AnyRoughness, as_roughness
 from .profiles import get_marcher
 from .sections import AnySection
@@ -51,6 +51,12 @@ class Segment(FrozenModel):
         Boundary resistance; a float is Manning's n.
     name : str, optional
         A label for reports.
+    gate : SluiceGate, optional
+        A sluice gate at the head of this segment, between it and the segment
+        above (not on the first segment: use ``Reach(upstream=...)`` there).
+        It holds the water upstream at the depth its discharge needs and
+        releases a jet below it; the water below may drown it (submerged
+        flow), which the result reports.
     """
 
     length: float = Field(gt=0, allow_inf_nan=False)
@@ -58,6 +64,7 @@ class Segment(FrozenModel):
     section: AnySection
     roughness: AnyRoughness
     name: str | None = None
+    gate: SluiceGate | None = None
 
     @field_validator("roughness", mode="before")
     @classmethod
@@ -68,8 +75,9 @@ class Segment(FrozenModel):
 
     def __repr__(self):
         label = f"{self.name!r}, " if self.name else ""
+        gate = f", gate={self.gate!r}" if self.gate is not None else ""
         return (f"Segment({label}length={self.length:g}, slope={self.slope:g}, section={self.section!r}, "
-                f"roughness={self.roughness!r})")
+                f"roughness={self.roughness!r}{gate})")
 
 
 class Reach(FrozenModel):
@@ -108,6 +116,9 @@ class Reach(FrozenModel):
 
     @model_validator(mode="after")
     def _check_controls(self):
+        if self.segments[0].gate is not None:
+            raise ControlError("a gate at the head of the first segment is the reach's upstream control: "
+                               "give it as Reach(upstream=gv.SluiceGate(...))")
         for end in ("upstream", "downstream"):
             ctrl = getattr(self, end)
             if ctrl is not None:

@@ -382,3 +382,60 @@ def test_brink_station_is_critical_with_an_energy_coefficient():
     p = reach.solve()
     assert p.regime[-1] == "critical"
     assert p.froude[-1] == pytest.approx(1 / math.sqrt(1.3), rel=1e-9)
+
+
+# --------------------------------------------------------------------------------------------
+# a sluice gate between two segments
+# --------------------------------------------------------------------------------------------
+
+
+def gated(tailwater, opening=0.3):
+    below = gv.Segment(length=300.0, slope=0.001, section=RECT, roughness=N, gate=gv.SluiceGate(opening=opening))
+    return gv.Reach(segments=[seg(300.0, 0.001), below], discharge=Q, downstream=gv.FixedDepth(tailwater))
+
+
+def test_gate_between_segments_in_free_flow():
+    """Upstream depth by energy to the vena contracta; jump below it where M3 meets the M1 (Henderson 1966,
+    *Open Channel Flow*, §6.5, from memory; quadrature and Belanger as in the tests above)."""
+    q, jet = Q / B, 0.61 * 0.3
+    e_jet = jet + q * q / (2 * G * jet * jet)
+    y1 = brentq(lambda y: y + q * q / (2 * G * y * y) - e_jet, yc_rect(), 20.0, xtol=1e-14)
+    p = gated(1.4).solve()
+    at_gate = p.depth[np.isclose(p.x, 300.0)]
+    assert at_gate[0] == pytest.approx(y1, rel=1e-10) and at_gate[1] == pytest.approx(jet, rel=1e-12)
+    assert p.profile_types == ["M1", "M3", "M1"]
+    x_ref, _, _ = gate_jump_reference(0.001, 300.0, jet, 1.4)
+    assert len(p.jumps) == 1 and abs(p.jumps[0].x - (300.0 + x_ref)) <= 0.01 * 300.0
+    assert any(c.kind == "gate" and "free flow" in c.text for c in p.controls)
+
+
+def test_gate_between_segments_drowned_by_high_tailwater():
+    """Submerged gate, rectangle: energy from upstream to the vena contracta, momentum from there to the
+    tailwater (Henderson 1966, §6.5, from memory), with the tailwater depth at the gate by quadrature."""
+    q, jet, tw = Q / B, 0.61 * 0.3, 2.6
+    y3 = brentq(lambda y: distance(tw, y, 0.001) + 300.0, yn_rect(0.001) * 1.0001, tw)
+    y_v = brentq(lambda y: y * y / 2 + q * q / (G * jet) - (y3 * y3 / 2 + q * q / (G * y3)), jet, y3, xtol=1e-14)
+    e = y_v + q * q / (2 * G * jet * jet)
+    y1 = brentq(lambda y: y + q * q / (2 * G * y * y) - e, yc_rect(), 30.0, xtol=1e-14)
+    p = gated(tw).solve(n_steps=400)
+    at_gate = p.depth[np.isclose(p.x, 300.0)]
+    assert at_gate[1] == pytest.approx(y3, rel=1e-4)
+    assert at_gate[0] == pytest.approx(y1, rel=1e-4)
+    assert p.jumps == [] and np.all(p.regime == "subcritical")
+    assert any(c.kind == "gate" and "submerged" in c.text for c in p.controls)
+
+
+def test_gate_between_segments_round_trips_and_agrees_with_ivp():
+    reach = gated(1.1)
+    again = gv.Reach.model_validate_json(reach.model_dump_json())
+    assert again == reach and np.array_equal(again.solve().depth, reach.solve().depth)
+    a, b = reach.solve(), reach.solve(method="ivp")
+    assert a.profile_types == b.profile_types and abs(a.jumps[0].x - b.jumps[0].x) <= 0.01 * reach.length
+
+
+def test_gate_errors():
+    with pytest.raises(ValueError, match="upstream control"):
+        gv.Reach(segments=[gv.Segment(length=100.0, slope=0.001, section=RECT, roughness=N,
+                                      gate=gv.SluiceGate(opening=0.3))], discharge=Q)
+    with pytest.raises(gv.ControlError, match="opening"):
+        gated(1.1, opening=1.05).solve()
