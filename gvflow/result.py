@@ -30,12 +30,14 @@ class ControlNote:
 
 
 def _station_props(sol: BatchSolution, i: int, seg_ix, depth):
-    """A, P, T, A·ȳ, Sf at each station of scenario i."""
+    """A, P, T, A·ȳ, Sf at each station of scenario i (stations ordered by segment)."""
     out = np.empty((5, depth.size))
-    for k in np.unique(seg_ix):
-        sel = seg_ix == k
-        seg = sol.segs[k].take(np.array([i]))
-        out[:, sel] = seg.properties(depth[sel][None, :])[:, 0, :]
+    one = np.array([i])
+    ends = np.searchsorted(seg_ix, np.arange(len(sol.segs) + 1))
+    for k, seg in enumerate(sol.segs):
+        a, b = ends[k], ends[k + 1]
+        if b > a:
+            out[:, a:b] = seg.take(one).properties(depth[None, a:b])[:, 0, :]
     return out
 
 

@@ -100,16 +100,15 @@ class SegmentBatch:
     def properties(self, depth):
         """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe."""
         d = np.asarray(depth, dtype=float)
-        shape = np.broadcast_shapes(d.shape, (self.n,) + (1,) * (d.ndim - 1)) if d.ndim else (self.n,)
-        yy = np.broadcast_to(d, shape)
-        expand = (-1,) + (1,) * (len(shape) - 1)
-        q = np.broadcast_to(self.discharge.reshape(expand), shape).ravel()
-        c = np.broadcast_to(self.coef.reshape(expand), shape).ravel()
-        out = np.empty((5, q.size))
+        shape = d.shape if d.ndim else (self.n,)
+        rows = np.ascontiguousarray(np.broadcast_to(d, shape).reshape(self.n, -1))
+        m = rows.shape[1]
+        q = np.repeat(self.discharge, m) if m > 1 else self.discharge
+        c = np.repeat(self.coef, m) if m > 1 else self.coef
+        out = np.empty((5, rows.size))
         kind, p0, p1, p2 = self.spec
         u = self.units
-        K.properties(kind, p0, p1, p2, self.law, np.ascontiguousarray(c), np.ascontiguousarray(q),
-                     np.ascontiguousarray(yy.ravel()), u.manning_k, u.g, u.kinematic_viscosity, out)
+        K.properties(kind, p0, p1, p2, self.law, c, q, rows.ravel(), u.manning_k, u.g, u.kinematic_viscosity, out)
         return out.reshape((5,) + shape)
 
     def _force_or_energy(self, depth, energy: bool):
