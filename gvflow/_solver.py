@@ -96,6 +96,7 @@ def station_layout(reach, n_steps: int, max_step: float | None):
 
 
 def _classes(seg: SegmentBatch, tol: float) -> np.ndarray:
+    """Slope class of every scenario: the rule of :func:`gvflow.profiles.classify_slope`, over arrays."""
     if seg.slope == 0:
         return np.full(seg.n, "horizontal", dtype=object)
     if seg.slope < 0:
