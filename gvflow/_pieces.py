@@ -14,6 +14,8 @@ from dataclasses import dataclass
 import numpy as np
 from numba import njit
 
+from .profiles.classify import _zone_labels
+
 __all__ = ["ProfilePiece", "profile_pieces", "UNIFORM_TOLERANCE"]
 
 #: depths within this relative distance of normal depth all along a piece count as uniform flow
@@ -137,8 +139,6 @@ def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_
 
 def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     """The labelled pieces of each scenario in ``scenarios`` of a batch solution."""
-    from .profiles.classify import classify
-
     sc = np.atleast_1d(np.asarray(scenarios, dtype=np.int64))
     js = sol.jump_scenario
     lo, hi = np.searchsorted(js, sc, "left"), np.searchsorted(js, sc, "right")
@@ -166,8 +166,7 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     cls = sol.slope_class[sc][s, k] if total else np.empty(0, dtype=object)
     for c in np.unique(cls):
         sel = cls == c
-        labels[sel] = np.atleast_1d(classify(str(c), med[sel], yn_label[s[sel], k[sel]],
-                                             yc[s[sel], k[sel]])).astype(str)
+        labels[sel] = _zone_labels(str(c), med[sel], yn_label[s[sel], k[sel]], yc[s[sel], k[sel]])
     out = [[] for _ in range(sc.size)]
     for j in range(total):
         out[s[j]].append(ProfilePiece(str(labels[j]), int(k[j]), float(x0[j]), float(x1[j]), _REGIME_NAMES[int(r[j])]))

@@ -81,18 +81,21 @@ class BatchSolution:
 
 
 def station_layout(reach, n_steps: int, max_step: float | None):
-    """Base stations: every segment gets its own stations, junctions appear twice."""
-    xs, seg_ix, bounds = [], [], []
-    start = 0.0
-    for k, s in enumerate(reach.segments):
+    """Base stations: every segment gets its own stations, junctions appear twice.
+
+    Returns (x, segment index of each station, [(first index, count)] per segment).
+    """
+    xs, bounds = [], []
+    start, i0 = 0.0, 0
+    for s in reach.segments:
         n = n_steps if max_step is None else max(n_steps, int(np.ceil(s.length / max_step)))
-        x = start + np.linspace(0.0, s.length, n + 1)
+        x = np.arange(n + 1) * (s.length / n) + start  # evenly spaced, as np.linspace(start, start + length)
         x[-1] = start + s.length
-        bounds.append((len(np.concatenate(xs)) if xs else 0, n + 1))
         xs.append(x)
-        seg_ix.append(np.full(n + 1, k))
+        bounds.append((i0, n + 1))
+        i0 += n + 1
         start += s.length
-    return np.concatenate(xs), np.concatenate(seg_ix), bounds
+    return np.concatenate(xs), np.repeat(np.arange(len(bounds)), [m for _, m in bounds]), bounds
 
 
 def _classes(seg: SegmentBatch, tol: float) -> np.ndarray:
@@ -200,38 +203,52 @@ def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):
     return y_up, submerged
 
 
+def _check_stop_codes(marcher, seg, code, stop, grp, x_order):
+    """Raise for the scenarios whose march stopped at a conduit's crown (code 2) or without convergence (3)."""
+    m = x_order.shape[0]
+    full = code == 2
+    if np.any(full):
+        r = int(np.flatnonzero(full)[0])
+        raise NoSolutionError(
+            f"the water surface reaches the crown of {seg.section!r} near x = "
+            f"{x_order[min(stop[r], m - 1)]:.2f} (discharge {seg.discharge[grp[r]]:g}): the conduit flows "
+            "full there; pressure flow is outside gvflow's free-surface model. Use a larger conduit or "
+            "a lower downstream level")
+    if np.any(code == 3):
+        r = int(np.flatnonzero(code == 3)[0])
+        raise ConvergenceError(
+            f"the {getattr(marcher, 'name', 'profile')} marcher could not meet its tolerance near x = "
+            f"{x_order[min(stop[r], m - 1)]:.2f}; try more steps (n_steps), a looser tolerance or the other "
+            "method")
+
+
 def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
     """March a branch; where it fails fill critical depth, restarting where the slope allows."""
     n, m = seg.n, x_order.shape[0]
-    y = np.full((n, m), np.nan)
     crit = np.zeros((n, m), bool)
     crit[:, 0] = crit0
+    y_start = np.asarray(y0, dtype=float)
+    res = marcher.march(seg, x_order, y_start, branch)
+    if res.code.any():
+        _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order)
+    if res.n_valid.min() == m:  # every scenario reached the end of the segment
+        return res.depth, crit
+    y = np.full((n, m), np.nan)
     cols = np.arange(m)
     idx = np.arange(n)
     j0 = np.zeros(n, int)
-    y_start = np.asarray(y0, dtype=float)
     while idx.size:
         restart_idx, restart_j = [], []
         for start in np.unique(j0):
             grp = idx[j0 == start]
-            res = marcher.march(seg.take(grp), x_order[start:], y_start[grp], branch)
+            if res is None:
+                res = marcher.march(seg.take(grp), x_order[start:], y_start[grp], branch)
+                if res.code.any():
+                    _check_stop_codes(marcher, seg, res.code, start + res.n_valid, grp, x_order)
             stop = start + res.n_valid  # first station the branch could not reach
-            full = res.code == 2
-            if np.any(full):
-                r = int(np.flatnonzero(full)[0])
-                raise NoSolutionError(
-                    f"the water surface reaches the crown of {seg.section!r} near x = "
-                    f"{x_order[min(stop[r], m - 1)]:.2f} (discharge {seg.discharge[grp[r]]:g}): the conduit flows "
-                    "full there; pressure flow is outside gvflow's free-surface model. Use a larger conduit or "
-                    "a lower downstream level")
-            if np.any(res.code == 3):
-                r = int(np.flatnonzero(res.code == 3)[0])
-                raise ConvergenceError(
-                    f"the {getattr(marcher, 'name', 'profile')} marcher could not meet its tolerance near x = "
-                    f"{x_order[min(stop[r], m - 1)]:.2f}; try more steps (n_steps), a looser tolerance or the other "
-                    "method")
             failed = cols[None, start:] >= stop[:, None]
             block = np.where(failed, seg.yc[grp, None], res.depth)
+            res = None
             y[grp, start:] = block
             crit[grp, start + 1:] = failed[:, 1:]  # a restart station stays critical
             again = (stop < m - 1) & can_restart[grp]

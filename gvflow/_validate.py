@@ -15,6 +15,12 @@ def positive_array(value, name: str, *, allow_zero: bool = False) -> np.ndarray:
         arr = np.asarray(value, dtype=float)
     except (TypeError, ValueError):
         raise InvalidInputError(f"{name} must be a number or an array of numbers; got {value!r}") from None
+    if arr.ndim == 0:
+        v = float(arr)
+        if math.isfinite(v) and (v >= 0 if allow_zero else v > 0):
+            return arr
+    elif ((arr >= 0) if allow_zero else (arr > 0)).all() and np.isfinite(arr).all():
+        return arr
     bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
     if np.any(bad):
         first = float(arr[bad].flat[0]) if arr.ndim else float(arr)

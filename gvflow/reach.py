@@ -150,11 +150,17 @@ class Reach(FrozenModel):
         """Bed elevation at x [length], from the datum at the downstream end and the slopes."""
         x = np.asarray(x, dtype=float)
         k = self.segment_at(x) if segment is None else np.asarray(segment)
-        xb = self.boundaries
-        slopes = np.array([s.slope for s in self.segments])
-        lengths = np.diff(xb)
-        z_end = self.datum + np.concatenate([np.cumsum((slopes * lengths)[::-1])[::-1][1:], [0.0]])
-        return z_end[k] + slopes[k] * (xb[k + 1] - x)
+        slopes = [s.slope for s in self.segments]
+        x_end, z_end = [], []
+        xb, drop = 0.0, 0.0
+        for s in self.segments:
+            xb += s.length
+            x_end.append(xb)
+        for s in reversed(self.segments):  # bed elevation at each segment's downstream end
+            z_end.append(self.datum + drop)
+            drop += s.slope * s.length
+        z_end.reverse()
+        return np.array(z_end)[k] + np.array(slopes)[k] * (np.array(x_end)[k] - x)
 
     # -- solving ------------------------------------------------------------------------
     def solve(self, method="standard_step", *, n_steps: int = 100, max_step: float | None = None,

@@ -6,10 +6,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._pieces import ProfilePiece, profile_pieces
+from ._pieces import ProfilePiece, _scenario_sequence, profile_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, jump_length, jump_type
+from .profiles import _kernel as K
 
 __all__ = ["Profile", "ProfilePiece", "ControlNote"]
 
@@ -30,14 +31,15 @@ class ControlNote:
 
 
 def _station_props(sol: BatchSolution, i: int, seg_ix, depth):
-    """A, P, T, A·ȳ, Sf at each station of scenario i (stations ordered by segment)."""
+    """(A, P, T, A·ȳ, Sf) at each station of scenario i (segment index ``seg_ix``, depth ``depth``)."""
+    segs = sol.segs
     out = np.empty((5, depth.size))
-    one = np.array([i])
-    ends = np.searchsorted(seg_ix, np.arange(len(sol.segs) + 1))
-    for k, seg in enumerate(sol.segs):
-        a, b = ends[k], ends[k + 1]
-        if b > a:
-            out[:, a:b] = seg.take(one).properties(depth[None, a:b])[:, 0, :]
+    u = segs[0].units
+    K.station_properties(np.array([sg.spec[0] for sg in segs]),
+                         *(np.array([sg.spec[j] for sg in segs], float) for j in (1, 2, 3)),
+                         np.array([sg.law for sg in segs]), np.array([sg.coef[i] for sg in segs]),
+                         np.ascontiguousarray(seg_ix, np.int64), float(segs[0].discharge[i]),
+                         np.ascontiguousarray(depth, float), u.manning_k, u.g, u.kinematic_viscosity, out)
     return out
 
 
@@ -97,36 +99,19 @@ class Profile:
     @classmethod
     def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> Profile:
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
-        x = sol.x.astype(float)
-        y = sol.depth[i].astype(float)
-        reg = sol.regime[i].astype(int)
-        seg = sol.segment.astype(int)
         rows = np.flatnonzero(sol.jump_scenario == i)
-        # insert the two sequent depths of every jump inside a segment
-        ins_at, ins_x, ins_y, ins_r, ins_s = [], [], [], [], []
-        for j in rows:
-            if sol.jump_at_junction[j]:
-                continue
-            a = int(sol.jump_after[j])
-            ins_at += [a + 1, a + 1]
-            ins_x += [sol.jump_x[j]] * 2
-            ins_y += [sol.jump_y1[j], sol.jump_y2[j]]
-            ins_r += [REGIME_SUPER, REGIME_SUB]
-            ins_s += [int(sol.jump_segment[j])] * 2
-        if ins_at:
-            x = np.insert(x, ins_at, ins_x)
-            y = np.insert(y, ins_at, ins_y)
-            reg = np.insert(reg, ins_at, ins_r)
-            seg = np.insert(seg, ins_at, ins_s)
+        # the two sequent depths of every jump inside a segment stand at the jump's x
+        x, y, reg, seg = _scenario_sequence(sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment,
+                                            sol.jump_after[rows], sol.jump_x[rows], sol.jump_y1[rows],
+                                            sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows])
         yn = np.array([s.yn[i] for s in sol.segs])
         yc = np.array([s.yc[i] for s in sol.segs])
         classes = [str(c) for c in sol.slope_class[i]]
         pieces = profile_pieces(sol, [i])[0]
         # a junction station appears twice; keep one where nothing changes across it
-        dup = np.flatnonzero((np.diff(x) == 0) & (np.diff(seg) != 0))
-        same = np.abs(y[dup + 1] - y[dup]) <= 1e-12 * y[dup]
-        drop = dup[same] + 1
-        x, y, reg, seg = (np.delete(v, drop) for v in (x, y, reg, seg))
+        keep = np.ones(x.size, bool)
+        keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1]))
+        x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
         bed = reach.bed_elevation(x, seg)
         props = _station_props(sol, i, seg, y)
 
@@ -136,12 +121,11 @@ class Profile:
         for j in rows:
             k = int(sol.jump_segment[j])
             k1 = k - 1 if sol.jump_at_junction[j] else k
-            s1 = sol.segs[k1].take(np.array([i]))
-            s2 = sol.segs[k].take(np.array([i]))
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
-            a1, _, t1, _, _ = s1.properties(np.array([y1]))[:, 0]
+            (a1, a2), _, (t1, _), _, _ = _station_props(sol, i, np.array([k1, k]), np.array([y1, y2]))
             fr = q / a1 * np.sqrt(t1 / (g * a1))
-            loss = float(s1.specific_energy(np.array([y1]))[0] - s2.specific_energy(np.array([y2]))[0])
+            hv1, hv2 = (reach.alpha * q * q / (2.0 * g * a * a) for a in (a1, a2))
+            loss = float(y1 + hv1 - (y2 + hv2))
             jumps.append(Jump(x=float(sol.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=float(fr),
                               energy_loss=loss, length=float(jump_length(y1, y2, max(fr, 1.0))),
                               kind=jump_type(max(fr, 1.0)), segment=k,

@@ -193,7 +193,6 @@ def classify(slope_class: str, depth, normal_depth, critical_depth):
         raise InvalidInputError(f"slope_class must be one of {list(SLOPE_CLASSES)}; got {slope_class!r}")
     y = positive_array(depth, "depth")
     yc = positive_array(critical_depth, "critical_depth")
-    letter = _LETTER[slope_class]
     if slope_class in ("mild", "steep"):
         yn = positive_array(normal_depth, "normal_depth")
         if slope_class == "mild" and np.any(yn <= yc):
@@ -202,14 +201,21 @@ def classify(slope_class: str, depth, normal_depth, critical_depth):
         if slope_class == "steep" and np.any(yn >= yc):
             raise InvalidInputError("a steep slope needs normal_depth < critical_depth; "
                                     f"got {normal_depth!r} and {critical_depth!r}")
-        hi, lo = np.maximum(yn, yc), np.minimum(yn, yc)
-        zone = np.where(y > hi, 1, np.where(y < lo, 3, 2))
-    elif slope_class == "critical":
-        zone = np.where(y >= yc, 1, 3)
-    else:
-        zone = np.where(y >= yc, 2, 3)
-    labels = np.char.add(letter, zone.astype(str))
+    labels = _zone_labels(slope_class, y, yn if slope_class in ("mild", "steep") else yc, yc)
     return str(labels) if labels.ndim == 0 else labels
+
+
+def _zone_labels(slope_class: str, y: np.ndarray, yn: np.ndarray, yc: np.ndarray) -> np.ndarray:
+    """:func:`classify` for checked float arrays (private: the solvers call it on their own depths)."""
+    letter = _LETTER[slope_class]
+    if slope_class in ("mild", "steep"):
+        hi, lo = np.maximum(yn, yc), np.minimum(yn, yc)
+        zone = np.where(y > hi, 0, np.where(y < lo, 2, 1))
+    elif slope_class == "critical":
+        zone = np.where(y >= yc, 0, 2)
+    else:
+        zone = np.where(y >= yc, 1, 2)
+    return np.array([letter + "1", letter + "2", letter + "3"])[zone]
 
 
 def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike = "SI",

@@ -65,7 +65,9 @@ class StandardStep(Marcher):
         kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         x = np.ascontiguousarray(x, dtype=float)
         n, m = seg.n, x.shape[0]
-        y0 = np.ascontiguousarray(np.broadcast_to(np.asarray(y0, dtype=float), (n,)))
+        y0 = np.asarray(y0, dtype=float)
+        if y0.shape != (n,) or not y0.flags.c_contiguous:
+            y0 = np.ascontiguousarray(np.broadcast_to(y0, (n,)))
         out_y = np.empty((n, m))
         out_n = np.empty(n, dtype=np.int64)
         out_xc = np.empty(n)
