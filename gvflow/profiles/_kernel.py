@@ -255,7 +255,10 @@ def step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, 
                     break
             elif not (0.0 < yn < yc):
                 break
-            if abs(yn - y) <= tol * y:
+            dy = abs(yn - y)
+            # Newton converges quadratically here: after a correction below 1e-3 sqrt(tol) y the next
+            # one would be of order (dy / y)^2 y <= 1e-6 tol y, so yn already meets the tolerance
+            if dy <= tol * y or dy <= 1e-3 * math.sqrt(tol) * y:
                 return yn, 0
             y = yn
     # Safe path: bracket on the branch, then safeguarded Newton.
@@ -351,6 +354,7 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
     for s in range(ns):
         y = y0[s]
         slope_prev = 0.0
+        curv = 0.0
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
@@ -358,7 +362,7 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
         for j in range(1, m):
             d = x[j] - x[j - 1]
             y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
-                            k, g, nu, ymax, tol, y + slope_prev * d)
+                            k, g, nu, ymax, tol, y + (slope_prev + curv * d) * d)
             if code == 1:
                 # Near critical depth a long step can miss a root the profile really has (the
                 # discrete energy equation loses it before the profile does): retry with
@@ -377,7 +381,9 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
                     out_y[s, jj] = math.nan
                 break
             out_y[s, j] = y2
-            slope_prev = (y2 - y) / d
+            slope_new = (y2 - y) / d
+            curv = (slope_new - slope_prev) / d if j > 1 else 0.0
+            slope_prev = slope_new
             y = y2
 
 
