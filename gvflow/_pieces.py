@@ -137,36 +137,53 @@ def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_
     return w
 
 
+@njit(cache=True)
+def _all_pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol):
+    """:func:`_pieces` counted, allocated and filled in one call: (scenario, segment, regime, x0, x1, median)."""
+    e_i, e_f = np.empty(0, np.int64), np.empty(0)
+    total = _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
+                    True, e_i, e_i, e_i, e_f, e_f, e_f)
+    s, k, r = np.empty(total, np.int64), np.empty(total, np.int64), np.empty(total, np.int64)
+    x0, x1, med = np.empty(total), np.empty(total), np.empty(total)
+    _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
+            False, s, k, r, x0, x1, med)
+    return s, k, r, x0, x1, med
+
+
 def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     """The labelled pieces of each scenario in ``scenarios`` of a batch solution."""
     sc = np.atleast_1d(np.asarray(scenarios, dtype=np.int64))
     js = sol.jump_scenario
     lo, hi = np.searchsorted(js, sc, "left"), np.searchsorted(js, sc, "right")
-    rows = np.concatenate([np.arange(a, b) for a, b in zip(lo, hi, strict=True)]).astype(np.int64) \
-        if sc.size else np.zeros(0, np.int64)
-    ptr = np.concatenate([[0], np.cumsum(hi - lo)]).astype(np.int64)
-    yn = np.stack([s.yn for s in sol.segs], axis=1)[sc]
-    yc = np.stack([s.yc for s in sol.segs], axis=1)[sc]
-    args = (np.ascontiguousarray(sol.x, float), np.ascontiguousarray(sol.depth[sc], float),
-            np.ascontiguousarray(sol.regime[sc], np.int64), np.ascontiguousarray(sol.segment, np.int64), ptr,
-            np.ascontiguousarray(sol.jump_after[rows], np.int64), np.ascontiguousarray(sol.jump_x[rows], float),
-            np.ascontiguousarray(sol.jump_y1[rows], float), np.ascontiguousarray(sol.jump_y2[rows], float),
-            np.ascontiguousarray(sol.jump_segment[rows], np.int64),
-            np.ascontiguousarray(sol.jump_at_junction[rows], np.bool_), np.ascontiguousarray(yn), UNIFORM_TOLERANCE)
+    if sc.size == 1:
+        rows = np.arange(lo[0], hi[0])
+    else:
+        rows = np.concatenate([np.arange(a, b) for a, b in zip(lo, hi, strict=True)]).astype(np.int64) \
+            if sc.size else np.zeros(0, np.int64)
+    ptr = np.zeros(sc.size + 1, np.int64)
+    np.cumsum(hi - lo, out=ptr[1:])
+    nseg = len(sol.segs)
+    yn, yc = np.empty((sc.size, nseg)), np.empty((sc.size, nseg))
+    for k, sg in enumerate(sol.segs):
+        yn[:, k], yc[:, k] = sg.yn[sc], sg.yc[sc]
+    s, k, r, x0, x1, med = _all_pieces(
+        sol.x, np.ascontiguousarray(sol.depth[sc], float), np.ascontiguousarray(sol.regime[sc], np.int64),
+        np.ascontiguousarray(sol.segment, np.int64), ptr, sol.jump_after[rows], sol.jump_x[rows],
+        sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows], yn,
+        UNIFORM_TOLERANCE)
+    total = s.size
     # a closed conduit that cannot carry the discharge in uniform flow is classed mild with no normal
     # depth: its profiles tend to the crown, which stands in for normal depth when labelling them
-    crown = np.array([s.section.max_depth for s in sol.segs])
-    yn_label = np.where(np.isnan(yn) & (sol.slope_class[sc] == "mild"), crown[None, :], yn)
-    empty_i, empty_f = np.empty(0, np.int64), np.empty(0)
-    total = _pieces(*args, True, empty_i, empty_i, empty_i, empty_f, empty_f, empty_f)
-    s, k, r = (np.empty(total, np.int64) for _ in range(3))
-    x0, x1, med = (np.empty(total) for _ in range(3))
-    _pieces(*args, False, s, k, r, x0, x1, med)
+    ynk, yck = yn[s, k], yc[s, k]
+    cls = sol.slope_class[sc[s], k] if total else np.empty(0, dtype=object)
+    no_yn = np.isnan(ynk)
+    if no_yn.any():
+        crown = np.array([sg.section.max_depth for sg in sol.segs])
+        ynk = np.where(no_yn & (cls == "mild"), crown[k], ynk)
     labels = np.empty(total, dtype=object)
-    cls = sol.slope_class[sc][s, k] if total else np.empty(0, dtype=object)
-    for c in np.unique(cls):
+    for c in set(cls.tolist()):
         sel = cls == c
-        labels[sel] = _zone_labels(str(c), med[sel], yn_label[s[sel], k[sel]], yc[s[sel], k[sel]])
+        labels[sel] = _zone_labels(c, med[sel], ynk[sel], yck[sel])
     out = [[] for _ in range(sc.size)]
     for j in range(total):
         out[s[j]].append(ProfilePiece(str(labels[j]), int(k[j]), float(x0[j]), float(x1[j]), _REGIME_NAMES[int(r[j])]))

@@ -98,6 +98,11 @@ def station_layout(reach, n_steps: int, max_step: float | None):
     return np.concatenate(xs), np.repeat(np.arange(len(bounds)), [m for _, m in bounds]), bounds
 
 
+def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
+    """``seg.take(idx)`` for sorted distinct scenario indices ``idx``; ``seg`` itself when they are all of them."""
+    return seg if idx.size == seg.n else seg.take(idx)
+
+
 def _classes(seg: SegmentBatch, tol: float) -> np.ndarray:
     """Slope class of every scenario: the rule of :func:`gvflow.profiles.classify_slope`, over arrays."""
     if seg.slope == 0:
@@ -137,7 +142,7 @@ def _depth_with_energy(seg: SegmentBatch, e, branch):
     out = yc.copy()
     if np.any(ok):
         idx = np.flatnonzero(ok)
-        sub = seg.take(idx)
+        sub = _subset(seg, idx)
         target = e[idx]
 
         def fun(z):
@@ -183,7 +188,7 @@ def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):
     y_v = jet.copy()
     if np.any(submerged):
         idx = np.flatnonzero(submerged)
-        sub = seg_dn.take(idx)
+        sub = _subset(seg_dn, idx)
         target = m_tail[idx] - q[idx] ** 2 / (g * a_j[idx])
 
         def fun(z):
@@ -229,7 +234,7 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
     crit[:, 0] = crit0
     y_start = np.asarray(y0, dtype=float)
     res = marcher.march(seg, x_order, y_start, branch)
-    if res.code.any():
+    if res.code.max() >= 2:
         _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order)
     if res.n_valid.min() == m:  # every scenario reached the end of the segment
         return res.depth, crit
@@ -239,11 +244,11 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
     j0 = np.zeros(n, int)
     while idx.size:
         restart_idx, restart_j = [], []
-        for start in np.unique(j0):
+        for start in np.unique(j0) if res is None else (0,):
             grp = idx[j0 == start]
             if res is None:
                 res = marcher.march(seg.take(grp), x_order[start:], y_start[grp], branch)
-                if res.code.any():
+                if res.code.max() >= 2:
                     _check_stop_codes(marcher, seg, res.code, start + res.n_valid, grp, x_order)
             stop = start + res.n_valid  # first station the branch could not reach
             failed = cols[None, start:] >= stop[:, None]
@@ -275,7 +280,9 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     for k, s in enumerate(segments):
         c = None if coef is None else coef[:, k]
         segs.append(SegmentBatch.build(s.section, s.slope, s.roughness, q, units, reach.alpha, coef=c))
-    classes = np.stack([_classes(sg, critical_tolerance) for sg in segs], axis=1)
+    classes = np.empty((n, nseg), dtype=object)
+    for k, sg in enumerate(segs):
+        classes[:, k] = _classes(sg, critical_tolerance)
     sf_c = [sg.friction_slope(sg.yc) for sg in segs]
     can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
     can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
@@ -299,7 +306,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         _check_inside(last, y_down, ctrl, "downstream")
         governs_down = y_down >= last.yc * (1 - 1e-12)
-        must_be_sub = np.isin(classes[:, -1], ("mild", "horizontal", "adverse")) & ~governs_down
+        must_be_sub = (classes[:, -1] != "steep") & (classes[:, -1] != "critical") & ~governs_down
         if np.any(must_be_sub):
             i = int(np.flatnonzero(must_be_sub)[0])
             raise ControlError(
@@ -370,9 +377,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         if act.size:
             xs = x[i0:i0 + m]
             from_critical = np.abs(sup_state[act] - seg.yc[act]) <= 1e-12 * seg.yc[act]
-            ysup, csup = _march_with_fallback(marcher, seg.take(act), xs, sup_state[act], from_critical, SUPER,
+            seg_act = _subset(seg, act)
+            ysup, csup = _march_with_fallback(marcher, seg_act, xs, sup_state[act], from_critical, SUPER,
                                               can_sup_start[k][act])
-            msup = seg.take(act).specific_force(ysup)
+            msup = seg_act.specific_force(ysup)
             msub = sub_M[act, i0:i0 + m]
             sup_wins = msup >= msub * (1 - _M_TOL)
             lose = ~sup_wins
@@ -414,7 +422,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         if k + 1 < nseg:
             if act.size and np.any(gov_sup_end):
                 idx = act[gov_sup_end]
-                yt, flag = _transfer(seg.take(idx), segs[k + 1].take(idx), y_end[gov_sup_end], SUPER)
+                yt, flag = _transfer(_subset(seg, idx), _subset(segs[k + 1], idx), y_end[gov_sup_end], SUPER)
                 nxt[idx] = yt
                 carried[idx] = True
             j0 = bounds[k + 1][0]
@@ -428,7 +436,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             crit_dn = sub_end & ~crit_up & sub_c[:, j0] & can_sup_start[k + 1]
             if np.any(crit_up):
                 idx = np.flatnonzero(crit_up)
-                yt, _ = _transfer(seg.take(idx), nseg1.take(idx), seg.yc[idx], SUPER)
+                yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER)
                 nxt[idx] = yt
                 carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
             nxt = np.where(crit_dn, nseg1.yc, nxt)

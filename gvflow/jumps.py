@@ -71,8 +71,12 @@ def jump_length(upstream_depth, downstream_depth, froude):
     positive_array(upstream_depth, "upstream_depth")
     y2 = positive_array(downstream_depth, "downstream_depth")
     f = positive_array(froude, "froude")
-    ratio = np.interp(f, [1.0, 1.7, 3.0, 4.5, 13.0], [3.0, 4.0, 5.0, 6.1, 6.1])
-    return scalar_or_array(ratio * y2)
+    return scalar_or_array(_length_ratio(f) * y2)
+
+
+def _length_ratio(froude):
+    """L / y2 of :func:`jump_length` at upstream Froude number ``froude`` (checked by the caller)."""
+    return np.interp(froude, [1.0, 1.7, 3.0, 4.5, 13.0], [3.0, 4.0, 5.0, 6.1, 6.1])
 
 
 def jump_type(froude):

@@ -9,7 +9,7 @@ import numpy as np
 from ._pieces import ProfilePiece, _scenario_sequence, profile_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
-from .jumps import Jump, jump_length, jump_type
+from .jumps import Jump, _length_ratio, jump_type
 from .profiles import _kernel as K
 
 __all__ = ["Profile", "ProfilePiece", "ControlNote"]
@@ -113,22 +113,25 @@ class Profile:
         keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1]))
         x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
         bed = reach.bed_elevation(x, seg)
-        props = _station_props(sol, i, seg, y)
+        # properties at the stations and at both ends of every jump, in one pass
+        k2 = sol.jump_segment[rows]
+        k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
+        props = _station_props(sol, i, np.concatenate([seg, k1, k2]),
+                               np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]))
+        a_j, t_j = props[0, x.size:], props[2, x.size:]
+        props = props[:, :x.size]
 
         q = reach.discharge
         g = reach.resolved_units.g
         jumps = []
-        for j in rows:
-            k = int(sol.jump_segment[j])
-            k1 = k - 1 if sol.jump_at_junction[j] else k
+        for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
-            (a1, a2), _, (t1, _), _, _ = _station_props(sol, i, np.array([k1, k]), np.array([y1, y2]))
-            fr = q / a1 * np.sqrt(t1 / (g * a1))
+            a1, a2, t1 = a_j[r], a_j[r + rows.size], t_j[r]
+            fr = float(q / a1 * np.sqrt(t1 / (g * a1)))
             hv1, hv2 = (reach.alpha * q * q / (2.0 * g * a * a) for a in (a1, a2))
-            loss = float(y1 + hv1 - (y2 + hv2))
-            jumps.append(Jump(x=float(sol.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=float(fr),
-                              energy_loss=loss, length=float(jump_length(y1, y2, max(fr, 1.0))),
-                              kind=jump_type(max(fr, 1.0)), segment=k,
+            jumps.append(Jump(x=float(sol.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=fr,
+                              energy_loss=float(y1 + hv1 - (y2 + hv2)), length=float(_length_ratio(max(fr, 1.0)) * y2),
+                              kind=jump_type(max(fr, 1.0)), segment=int(k2[r]),
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
         controls = sorted((ControlNote(float(a), b, c) for a, b, c in sol.notes[i]), key=lambda c: c.x)

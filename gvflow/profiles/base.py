@@ -101,7 +101,7 @@ class SegmentBatch:
         """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe."""
         d = np.asarray(depth, dtype=float)
         shape = d.shape if d.ndim else (self.n,)
-        rows = np.ascontiguousarray(np.broadcast_to(d, shape).reshape(self.n, -1))
+        rows = np.ascontiguousarray((d if d.ndim else np.full(shape, float(d))).reshape(self.n, -1))
         m = rows.shape[1]
         q = np.repeat(self.discharge, m) if m > 1 else self.discharge
         c = np.repeat(self.coef, m) if m > 1 else self.coef

@@ -31,6 +31,14 @@ from .base import Marcher, MarchResult, SegmentBatch, register_marcher
 __all__ = ["StandardStep"]
 
 
+def _per_scenario(value, n: int) -> np.ndarray:
+    """``value`` (a scalar or one value per scenario) as a contiguous float array of shape (n,)."""
+    arr = np.asarray(value, dtype=float)
+    if arr.shape != (n,) or not arr.flags.c_contiguous:
+        arr = np.ascontiguousarray(np.broadcast_to(arr, (n,)))
+    return arr
+
+
 @register_marcher
 class StandardStep(Marcher):
     """Standard-step marcher.
@@ -65,9 +73,7 @@ class StandardStep(Marcher):
         kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         x = np.ascontiguousarray(x, dtype=float)
         n, m = seg.n, x.shape[0]
-        y0 = np.asarray(y0, dtype=float)
-        if y0.shape != (n,) or not y0.flags.c_contiguous:
-            y0 = np.ascontiguousarray(np.broadcast_to(y0, (n,)))
+        y0 = _per_scenario(y0, n)
         out_y = np.empty((n, m))
         out_n = np.empty(n, dtype=np.int64)
         out_xc = np.empty(n)
@@ -102,7 +108,7 @@ class StandardStep(Marcher):
         kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         n = seg.n
         out_x, out_y1, out_y2 = np.empty(n), np.empty(n), np.empty(n)
-        args = [np.ascontiguousarray(np.broadcast_to(np.asarray(v, float), (n,))) for v in (y_sup, x_lo, y_sub, x_hi)]
+        args = [_per_scenario(v, n) for v in (y_sup, x_lo, y_sub, x_hi)]
         K.locate_jumps(kind, p0, p1, p2, law, seg.coef, seg.discharge, seg.slope, args[0], args[1], args[2], args[3],
                        seg.yc, seg.alpha, self.eddy_loss, K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol,
                        out_x, out_y1, out_y2)
