@@ -180,10 +180,7 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     if no_yn.any():
         crown = np.array([sg.section.max_depth for sg in sol.segs])
         ynk = np.where(no_yn & (cls == "mild"), crown[k], ynk)
-    labels = np.empty(total, dtype=object)
-    for c in set(cls.tolist()):
-        sel = cls == c
-        labels[sel] = _zone_labels(c, med[sel], ynk[sel], yck[sel])
+    labels = _zone_labels(cls, med, ynk, yck)
     out = [[] for _ in range(sc.size)]
     for j in range(total):
         out[s[j]].append(ProfilePiece(str(labels[j]), int(k[j]), float(x0[j]), float(x1[j]), _REGIME_NAMES[int(r[j])]))

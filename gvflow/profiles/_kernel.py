@@ -353,8 +353,6 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
     m = x.shape[0]
     for s in range(ns):
         y = y0[s]
-        slope_prev = 0.0
-        curv = 0.0
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
@@ -362,7 +360,7 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
         for j in range(1, m):
             d = x[j] - x[j - 1]
             y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
-                            k, g, nu, ymax, tol, y + (slope_prev + curv * d) * d)
+                            k, g, nu, ymax, tol, extrapolate(x, out_y[s], j))
             if code == 1:
                 # Near critical depth a long step can miss a root the profile really has (the
                 # discrete energy equation loses it before the profile does): retry with
@@ -381,10 +379,19 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
                     out_y[s, jj] = math.nan
                 break
             out_y[s, j] = y2
-            slope_new = (y2 - y) / d
-            curv = (slope_new - slope_prev) / d if j > 1 else 0.0
-            slope_prev = slope_new
             y = y2
+
+
+@njit(cache=True)
+def extrapolate(x, y, j):
+    """First guess of y[j] from the depths before it: cubic through the last four on evenly spaced stations
+    (the march's usual layout), linear otherwise."""
+    d = x[j] - x[j - 1]
+    if j >= 4 and abs(x[j - 3] - x[j - 4] - d) <= 1e-9 * abs(d) and abs(x[j - 1] - x[j - 2] - d) <= 1e-9 * abs(d):
+        return 4.0 * y[j - 1] - 6.0 * y[j - 2] + 4.0 * y[j - 3] - y[j - 4]
+    if j >= 2:
+        return y[j - 1] + (y[j - 1] - y[j - 2]) * d / (x[j - 1] - x[j - 2])
+    return y[j - 1]
 
 
 @njit(cache=True)

@@ -205,17 +205,18 @@ def classify(slope_class: str, depth, normal_depth, critical_depth):
     return str(labels) if labels.ndim == 0 else labels
 
 
-def _zone_labels(slope_class: str, y: np.ndarray, yn: np.ndarray, yc: np.ndarray) -> np.ndarray:
-    """:func:`classify` for checked float arrays (private: the solvers call it on their own depths)."""
-    letter = _LETTER[slope_class]
-    if slope_class in ("mild", "steep"):
-        hi, lo = np.maximum(yn, yc), np.minimum(yn, yc)
-        zone = np.where(y > hi, 0, np.where(y < lo, 2, 1))
-    elif slope_class == "critical":
-        zone = np.where(y >= yc, 0, 2)
-    else:
-        zone = np.where(y >= yc, 1, 2)
-    return np.array([letter + "1", letter + "2", letter + "3"])[zone]
+_CLASS_CODE = {c: i for i, c in enumerate(SLOPE_CLASSES)}
+_ZONE_LABELS = np.array([_LETTER[c] + z for c in SLOPE_CLASSES for z in "123"])
+
+
+def _zone_labels(slope_class, y: np.ndarray, yn: np.ndarray, yc: np.ndarray) -> np.ndarray:
+    """:func:`classify` for checked float arrays, ``slope_class`` one name or one per depth (private: the
+    solvers call it on their own depths)."""
+    code = (_CLASS_CODE[slope_class] if isinstance(slope_class, str)
+            else np.array([_CLASS_CODE[c] for c in np.asarray(slope_class).tolist()], dtype=np.int64))
+    two = np.where(y > np.maximum(yn, yc), 0, np.where(y < np.minimum(yn, yc), 2, 1))  # mild, steep
+    one = np.where(y >= yc, np.where(code == 2, 0, 1), 2)  # critical: C1 C3; horizontal, adverse: H2 H3, A2 A3
+    return _ZONE_LABELS[3 * code + np.where(code <= 1, two, one)]
 
 
 def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike = "SI",
