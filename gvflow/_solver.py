@@ -232,39 +232,36 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
     n, m = seg.n, x_order.shape[0]
     crit = np.zeros((n, m), bool)
     crit[:, 0] = crit0
-    y_start = np.asarray(y0, dtype=float)
-    res = marcher.march(seg, x_order, y_start, branch)
+    res = marcher.march(seg, x_order, np.asarray(y0, dtype=float), branch)
     if res.code.max() >= 2:
         _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order)
-    if res.n_valid.min() == m:  # every scenario reached the end of the segment
+    stop = res.n_valid  # first station each scenario's branch could not reach
+    if stop.min() == m:  # every scenario reached the end of the segment
         return res.depth, crit
-    y = np.full((n, m), np.nan)
     cols = np.arange(m)
-    idx = np.arange(n)
-    j0 = np.zeros(n, int)
+    failed = cols[None, :] >= stop[:, None]
+    y = np.where(failed, seg.yc[:, None], res.depth)
+    crit[:, 1:] = failed[:, 1:]
+    again = (stop < m - 1) & can_restart
+    # restart from critical depth where the slope lets the branch leave it again
+    idx, j0 = np.flatnonzero(again), stop[again]
     while idx.size:
         restart_idx, restart_j = [], []
-        for start in np.unique(j0) if res is None else (0,):
+        for start in np.unique(j0):
             grp = idx[j0 == start]
-            if res is None:
-                res = marcher.march(seg.take(grp), x_order[start:], y_start[grp], branch)
-                if res.code.max() >= 2:
-                    _check_stop_codes(marcher, seg, res.code, start + res.n_valid, grp, x_order)
-            stop = start + res.n_valid  # first station the branch could not reach
+            res = marcher.march(seg.take(grp), x_order[start:], seg.yc[grp], branch)
+            stop = start + res.n_valid
+            if res.code.max() >= 2:
+                _check_stop_codes(marcher, seg, res.code, stop, grp, x_order)
             failed = cols[None, start:] >= stop[:, None]
-            block = np.where(failed, seg.yc[grp, None], res.depth)
-            res = None
-            y[grp, start:] = block
+            y[grp, start:] = np.where(failed, seg.yc[grp, None], res.depth)
             crit[grp, start + 1:] = failed[:, 1:]  # a restart station stays critical
             again = (stop < m - 1) & can_restart[grp]
             restart_idx.append(grp[again])
             restart_j.append(stop[again])
-        idx = np.concatenate(restart_idx) if restart_idx else np.zeros(0, int)
-        j0 = np.concatenate(restart_j) if restart_j else np.zeros(0, int)
+        idx, j0 = np.concatenate(restart_idx), np.concatenate(restart_j)
         order = np.argsort(idx)
         idx, j0 = idx[order], j0[order]
-        y_start = np.full(n, np.nan)
-        y_start[idx] = seg.yc[idx]
     return y, crit
 
 
