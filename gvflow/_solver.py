@@ -83,19 +83,21 @@ class BatchSolution:
 def station_layout(reach, n_steps: int, max_step: float | None):
     """Base stations: every segment gets its own stations, junctions appear twice.
 
-    Returns (x, segment index of each station, [(first index, count)] per segment).
+    Returns (x, segment index of each station, bed elevation, [(first index, count)] per segment).
     """
-    xs, bounds = [], []
+    xs, beds, bounds = [], [], []
     start, i0 = 0.0, 0
-    for s in reach.segments:
+    for s, x_end, z_end in zip(reach.segments, *reach._segment_ends(), strict=True):
         n = n_steps if max_step is None else max(n_steps, int(np.ceil(s.length / max_step)))
         x = np.arange(n + 1) * (s.length / n) + start  # evenly spaced, as np.linspace(start, start + length)
         x[-1] = start + s.length
         xs.append(x)
+        beds.append(z_end + s.slope * (x_end - x))  # as Reach.bed_elevation
         bounds.append((i0, n + 1))
         i0 += n + 1
         start += s.length
-    return np.concatenate(xs), np.repeat(np.arange(len(bounds)), [m for _, m in bounds]), bounds
+    seg_ix = np.repeat(np.arange(len(bounds)), [m for _, m in bounds])
+    return np.concatenate(xs), seg_ix, np.concatenate(beds), bounds
 
 
 def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
@@ -284,8 +286,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
     can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
 
-    x, seg_ix, bounds = station_layout(reach, n_steps, max_step)
-    bed = reach.bed_elevation(x, seg_ix)
+    x, seg_ix, bed, bounds = station_layout(reach, n_steps, max_step)
     M = x.size
     notes = [[] for _ in range(n)]
 

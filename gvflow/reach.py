@@ -150,17 +150,22 @@ class Reach(FrozenModel):
         """Bed elevation at x [length], from the datum at the downstream end and the slopes."""
         x = np.asarray(x, dtype=float)
         k = self.segment_at(x) if segment is None else np.asarray(segment)
-        slopes = [s.slope for s in self.segments]
+        x_end, z_end = self._segment_ends()
+        return np.array(z_end)[k] + np.array([s.slope for s in self.segments])[k] * (np.array(x_end)[k] - x)
+
+    def _segment_ends(self) -> tuple[list[float], list[float]]:
+        """x and bed elevation of each segment's downstream end; the bed at x in segment k is
+        z_end[k] + S0_k (x_end[k] - x)."""
         x_end, z_end = [], []
         xb, drop = 0.0, 0.0
         for s in self.segments:
             xb += s.length
             x_end.append(xb)
-        for s in reversed(self.segments):  # bed elevation at each segment's downstream end
+        for s in reversed(self.segments):
             z_end.append(self.datum + drop)
             drop += s.slope * s.length
         z_end.reverse()
-        return np.array(z_end)[k] + np.array(slopes)[k] * (np.array(x_end)[k] - x)
+        return x_end, z_end
 
     # -- solving ------------------------------------------------------------------------
     def solve(self, method="standard_step", *, n_steps: int = 100, max_step: float | None = None,

@@ -30,16 +30,17 @@ class ControlNote:
         return f"ControlNote(x={self.x:.2f}, {self.kind}: {self.text})"
 
 
-def _station_props(sol: BatchSolution, i: int, seg_ix, depth):
-    """(A, P, T, A·ȳ, Sf) at each station of scenario i (segment index ``seg_ix``, depth ``depth``)."""
+def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
+    """(A, T, Sf, V, Fr, alpha V²/2g) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
     segs = sol.segs
-    out = np.empty((5, depth.size))
+    out = np.empty((6, depth.size))
     u = segs[0].units
-    K.station_properties(np.array([sg.spec[0] for sg in segs]),
+    K.station_quantities(np.array([sg.spec[0] for sg in segs]),
                          *(np.array([sg.spec[j] for sg in segs], float) for j in (1, 2, 3)),
                          np.array([sg.law for sg in segs]), np.array([sg.coef[i] for sg in segs]),
                          np.ascontiguousarray(seg_ix, np.int64), float(segs[0].discharge[i]),
-                         np.ascontiguousarray(depth, float), u.manning_k, u.g, u.kinematic_viscosity, out)
+                         np.ascontiguousarray(depth, float), segs[0].alpha, u.manning_k, u.g, u.kinematic_viscosity,
+                         out)
     return out
 
 
@@ -66,21 +67,20 @@ class Profile:
     def __init__(self, *, reach, method, x, depth, regime, segment, bed, jumps, pieces, controls,
                  normal_depths, critical_depths, slope_classes, props):
         units = reach.resolved_units
-        a, _, t, _, sf = props
-        q = reach.discharge
+        _, _, sf, v, fr, hv = props
         self.reach = reach
         self.method = method
         self.units = units
-        self.discharge = q
+        self.discharge = reach.discharge
         self.x = x
         self.depth = depth
         self.bed = bed
         self.stage = bed + depth
-        self.velocity = q / a
-        self.froude = self.velocity * np.sqrt(t / (units.g * a))
-        self.velocity_head = reach.alpha * self.velocity ** 2 / (2.0 * units.g)
-        self.specific_energy = depth + self.velocity_head
-        self.energy_grade = self.stage + self.velocity_head
+        self.velocity = v
+        self.froude = fr
+        self.velocity_head = hv
+        self.specific_energy = depth + hv
+        self.energy_grade = self.stage + hv
         self.friction_slope = sf
         self.regime = _REGIME_LOOKUP[np.asarray(regime, int) + 1]
         self.segment = segment
@@ -116,22 +116,18 @@ class Profile:
         # properties at the stations and at both ends of every jump, in one pass
         k2 = sol.jump_segment[rows]
         k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
-        props = _station_props(sol, i, np.concatenate([seg, k1, k2]),
-                               np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]))
-        a_j, t_j = props[0, x.size:], props[2, x.size:]
+        props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
+                                    np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]))
+        fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         props = props[:, :x.size]
-
-        q = reach.discharge
-        g = reach.resolved_units.g
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
-            a1, a2, t1 = a_j[r], a_j[r + rows.size], t_j[r]
-            fr = float(q / a1 * np.sqrt(t1 / (g * a1)))
-            hv1, hv2 = (reach.alpha * q * q / (2.0 * g * a * a) for a in (a1, a2))
+            fr = float(fr_j[r])
             jumps.append(Jump(x=float(sol.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=fr,
-                              energy_loss=float(y1 + hv1 - (y2 + hv2)), length=float(_length_ratio(max(fr, 1.0)) * y2),
-                              kind=jump_type(max(fr, 1.0)), segment=int(k2[r]),
+                              energy_loss=float(y1 + hv_j[r] - (y2 + hv_j[r + rows.size])),
+                              length=float(_length_ratio(max(fr, 1.0)) * y2), kind=jump_type(max(fr, 1.0)),
+                              segment=int(k2[r]),
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
         controls = sorted((ControlNote(float(a), b, c) for a, b, c in sol.notes[i]), key=lambda c: c.x)

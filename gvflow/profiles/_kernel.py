@@ -447,22 +447,24 @@ def step_many(kind, p0, p1, p2, law, coef, q, s0, y1, x1, x2, yc, branch, alpha,
 
 
 @njit(cache=True)
-def station_properties(kinds, p0s, p1s, p2s, laws, coefs, seg, q, y, k, g, nu, out):
-    """Fill out[:, i] with (A, P, T, A*ybar, Sf) at y[i] in segment seg[i] (shape and law per segment), one
-    discharge q; NaN where y[i] is not positive."""
+def station_quantities(kinds, p0s, p1s, p2s, laws, coefs, seg, q, y, alpha, k, g, nu, out):
+    """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g) at depth y[i] in segment seg[i] (shape and law
+    per segment) for one discharge q; NaN where y[i] is not positive."""
     for i in range(y.shape[0]):
         yi = y[i]
         if not (yi > 0.0):
-            for j in range(5):
+            for j in range(6):
                 out[j, i] = math.nan
             continue
         s = seg[i]
         a, p, t, m, dp = geom(kinds[s], p0s[s], p1s[s], p2s[s], yi)
+        v = q / a
         out[0, i] = a
-        out[1, i] = p
-        out[2, i] = t
-        out[3, i] = m
-        out[4, i] = fslope(laws[s], coefs[s], k, g, nu, q, a, p)
+        out[1, i] = t
+        out[2, i] = fslope(laws[s], coefs[s], k, g, nu, q, a, p)
+        out[3, i] = v
+        out[4, i] = v * math.sqrt(t / (g * a))
+        out[5, i] = alpha * v * v / (2.0 * g)
 
 
 @njit(cache=True)
