@@ -35,6 +35,7 @@ from ._pieces import profile_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution, solve_batch
 from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
+from .friction import check_manning_n
 from .jumps import Jump, jump_length, jump_type
 from .profiles import get_marcher
 from .result import Profile
@@ -182,6 +183,10 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale):
     elif "roughness_scale" in given:
         f = np.broadcast_to(given["roughness_scale"], (n,)).astype(float)
         coef = np.stack([_scaled_coefficients(s.roughness, f) for s in segs], axis=1)
+    if coef is not None:
+        for k, s in enumerate(segs):
+            if s.roughness.law == "manning":
+                check_manning_n(coef[:, k], f"Manning's n of segment {k}")
     return np.ascontiguousarray(q), None if coef is None else np.ascontiguousarray(coef)
 
 

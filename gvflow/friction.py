@@ -41,6 +41,10 @@ __all__ = [
     "CompositeMethod",
 ]
 
+#: smallest Manning's n accepted: about a hundredth of the smoothest real surfaces (glass, about 0.009;
+#: Chow 1959, *Open-Channel Hydraulics*, table 5-6, from memory)
+MANNING_N_MIN = 1e-4
+
 KIND_MANNING = 0
 KIND_CHEZY = 1
 KIND_DARCY = 2
@@ -81,7 +85,7 @@ class Manning(_Roughness):
     """
 
     law: Literal["manning"] = "manning"
-    n: Annotated[float, Field(gt=0, allow_inf_nan=False)]
+    n: Annotated[float, Field(ge=MANNING_N_MIN, allow_inf_nan=False)]
 
     def kernel_spec(self):
         return (KIND_MANNING, self.n)
@@ -149,6 +153,16 @@ class DarcyWeisbach(_Roughness):
 AnyRoughness = Annotated[Manning | Chezy | DarcyWeisbach, Field(discriminator="law")]
 
 
+def check_manning_n(n, name: str = "roughness (Manning's n)") -> None:
+    """Raise for values of Manning's n below :data:`MANNING_N_MIN` (no real surface is that smooth, and the
+    conveyance 1/n would overflow long before n reaches zero)."""
+    low = np.asarray(n, dtype=float) < MANNING_N_MIN
+    if np.any(low):
+        v = float(np.asarray(n, dtype=float)[low].flat[0]) if low.ndim else float(n)
+        raise InvalidInputError(f"{name} = {v:.6g} is below {MANNING_N_MIN:g}: far smoother than any real surface "
+                                "(smooth glass and plastic are about 0.009); check the value")
+
+
 def as_roughness(roughness) -> Manning | Chezy | DarcyWeisbach:
     """Accept a float (read as Manning's n) or a roughness object."""
     if isinstance(roughness, (Manning, Chezy, DarcyWeisbach)):
@@ -157,6 +171,7 @@ def as_roughness(roughness) -> Manning | Chezy | DarcyWeisbach:
         v = float(roughness)
         if not math.isfinite(v) or v <= 0:
             raise InvalidInputError(f"roughness (Manning's n) must be finite and positive; got {roughness!r}")
+        check_manning_n(v)
         return Manning(v)
     raise InvalidInputError(
         "roughness must be a float (Manning's n), gv.Manning(n), gv.Chezy(C) or "

@@ -254,6 +254,8 @@ def test_container_protocol_and_repr():
     (dict(roughness=[0.01], roughness_scale=[1.0]), "not both"),
     (dict(roughness=np.full((2, 2), 0.013)), r"shape \(n,\) or \(n, 3\)"),
     (dict(roughness_scale=[0.0]), "roughness_scale must be finite and positive"),
+    (dict(roughness=[0.013, 1e-300]), "Manning's n of segment 0 = 1e-300 is below 0.0001"),
+    (dict(roughness_scale=[1.0, 1e-9]), "Manning's n of segment 0 = 1.4e-11 is below"),
     (dict(discharge=[5.0], n_steps=1), "n_steps"),
     (dict(discharge=[5.0], method="nope"), "method must be one of"),
     (dict(discharge=[5.0], chunk_size=0), "chunk_size"),

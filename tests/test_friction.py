@@ -294,3 +294,14 @@ def test_composite_registry_lists_methods_with_sources():
         assert callable(entry.function), name
         assert "Chow 1959" in entry.source, name
     assert gv.COMPOSITE_ROUGHNESS_METHODS["lotter"].needs_hydraulic_radii
+
+
+@pytest.mark.parametrize("n", [1e-308, 1e-6, 9.9e-5])
+def test_implausibly_small_manning_n_is_refused(n):
+    # below 1e-4 no surface is real (glass is about 0.009; Chow 1959, table 5-6, from memory) and the
+    # conveyance 1/n overflows as n approaches the smallest floats: refuse with a clear error, not inf or NaN
+    with pytest.raises(gv.InvalidInputError, match="below 0.0001"):
+        gv.normal_depth(gv.Rectangular(width=2.0), 1.0, 1.0, n)
+    with pytest.raises(gv.InvalidInputError, match="greater than or equal to 0.0001"):
+        gv.Manning(n)
+    assert gv.normal_depth(gv.Rectangular(width=2.0), 1.0, 1.0, 1e-4) > 0

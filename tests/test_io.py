@@ -118,7 +118,7 @@ def test_error_names_file_and_field_path(tmp_path):
     (lambda d: d["segments"][2].update(lenght=3.0), "segments.2.lenght", "not a field"),
     (lambda d: d["segments"][0]["section"].update(shape="oval"), "segments.0.section", "unknown shape 'oval'"),
     (lambda d: d["segments"][0]["roughness"].pop("law"), "segments.0.roughness", "'law'"),
-    (lambda d: d["segments"][1]["roughness"].update(n=0), "segments.1.roughness.n", "greater than 0"),
+    (lambda d: d["segments"][1]["roughness"].update(n=0), "segments.1.roughness.n", "greater than or equal to 0.0001"),
     (lambda d: d.update(discharge="lots"), "discharge", "valid number"),
     (lambda d: d["upstream"].update(opening=-0.1), "upstream.opening", "greater than 0"),
     (lambda d: d["downstream"].update(kind="lock_gate"), "downstream", "unknown kind 'lock_gate'"),
