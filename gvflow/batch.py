@@ -520,12 +520,17 @@ def _portable(exc: BaseException) -> Exception:
         return GVFlowError(f"{type(exc).__name__}: {exc}")
 
 
-def _solve_chunk(reaches, method, options):
-    """Solve a list of reaches in one task; each slot holds the Profile or the exception raised."""
+def _solve_chunk(reaches, method, options, compact=False):
+    """Solve a list of reaches in one task; each slot holds the Profile or the exception raised.
+
+    With ``compact`` a Profile travels as its state without the reach (the caller has the reaches):
+    a fraction of the pickling work, which the receiving process does alone.
+    """
     out = []
     for r in reaches:
         try:
-            out.append(r.solve(method=method, **options))
+            p = r.solve(method=method, **options)
+            out.append(p._state() if compact else p)
         except Exception as exc:
             out.append(_portable(exc))
     return out
@@ -629,7 +634,7 @@ def solve_many(reaches, executor: Executor | None = None, method="standard_step"
             size = int(chunk_size) if chunk_size else max(1, math.ceil(n / (4 * _workers(executor))))
             futures = {}
             for start in range(0, n, size):
-                fut = executor.submit(_solve_chunk, reaches[start:start + size], method, solve_options)
+                fut = executor.submit(_solve_chunk, reaches[start:start + size], method, solve_options, True)
                 futures[fut] = (start, min(start + size, n))
             try:
                 for fut in as_completed(futures):
@@ -641,7 +646,8 @@ def solve_many(reaches, executor: Executor | None = None, method="standard_step"
                                           f"{exc}")
                         err.__cause__ = exc
                         chunk = [err] * (b - a)
-                    results[a:b] = chunk
+                    results[a:b] = [Profile(reach=r, **c) if isinstance(c, dict) else c
+                                    for r, c in zip(reaches[a:b], chunk, strict=True)]
                     bar.update(b - a)
             except BaseException:  # interrupted: do not leave queued chunks running
                 for fut in futures:

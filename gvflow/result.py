@@ -15,6 +15,7 @@ from .profiles import _kernel as K
 __all__ = ["Profile", "ProfilePiece", "ControlNote"]
 
 _REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
+_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head")
 _REGIME_LOOKUP = np.array([_REGIME_NAMES[REGIME_SUPER], _REGIME_NAMES[REGIME_CRITICAL], _REGIME_NAMES[REGIME_SUB]])
 
 
@@ -64,25 +65,20 @@ class Profile:
     ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
     """
 
-    def __init__(self, *, reach, method, x, depth, regime, segment, bed, jumps, pieces, controls,
-                 normal_depths, critical_depths, slope_classes, props):
-        units = reach.resolved_units
-        _, _, sf, v, fr, hv = props
+    def __init__(self, *, reach, method, stations, regime, segment, jumps, pieces, controls, normal_depths,
+                 critical_depths, slope_classes):
         self.reach = reach
         self.method = method
-        self.units = units
+        self.units = reach.resolved_units
         self.discharge = reach.discharge
-        self.x = x
-        self.depth = depth
-        self.bed = bed
-        self.stage = bed + depth
-        self.velocity = v
-        self.froude = fr
-        self.velocity_head = hv
-        self.specific_energy = depth + hv
-        self.energy_grade = self.stage + hv
-        self.friction_slope = sf
-        self.regime = _REGIME_LOOKUP[np.asarray(regime, int) + 1]
+        self._stations = stations  # rows: _STATION_ROWS
+        for name, row in zip(_STATION_ROWS, stations, strict=True):
+            setattr(self, name, row)
+        self.stage = self.bed + self.depth
+        self.specific_energy = self.depth + self.velocity_head
+        self.energy_grade = self.stage + self.velocity_head
+        self._regime_code = np.asarray(regime, np.int8)
+        self.regime = _REGIME_LOOKUP[self._regime_code + 1]
         self.segment = segment
         self.jumps = jumps
         self.pieces = pieces
@@ -91,9 +87,21 @@ class Profile:
         self.normal_depths = normal_depths
         self.critical_depths = critical_depths
         self.slope_classes = slope_classes
-        for name in ("x", "depth", "bed", "stage", "velocity", "froude", "velocity_head", "specific_energy",
-                     "energy_grade", "friction_slope", "regime", "segment"):
+        for name in _STATION_ROWS + ("stage", "specific_energy", "energy_grade", "regime", "segment"):
             getattr(self, name).setflags(write=False)
+
+    def _state(self) -> dict:
+        """What makes this profile besides its reach: compact (one station array, regime codes), for pickling
+        and for sending results between processes (:func:`gvflow.solve_many` re-attaches the reach)."""
+        return dict(method=self.method, stations=self._stations, regime=self._regime_code, segment=self.segment,
+                    jumps=self.jumps, pieces=self.pieces, controls=self.controls, normal_depths=self.normal_depths,
+                    critical_depths=self.critical_depths, slope_classes=self.slope_classes)
+
+    def __getstate__(self):
+        return {"reach": self.reach, **self._state()}
+
+    def __setstate__(self, state):
+        self.__init__(**state)
 
     # -- construction --------------------------------------------------------------------
     @classmethod
@@ -119,7 +127,9 @@ class Profile:
         props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
                                     np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]))
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
-        props = props[:, :x.size]
+        stations = np.empty((len(_STATION_ROWS), x.size))
+        stations[0], stations[1], stations[2] = x, y, bed
+        stations[3:] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
@@ -131,9 +141,8 @@ class Profile:
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
         controls = sorted((ControlNote(float(a), b, c) for a, b, c in sol.notes[i]), key=lambda c: c.x)
-        return cls(reach=reach, method=method, x=x, depth=y, regime=reg, segment=seg, bed=bed, jumps=jumps,
-                   pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc,
-                   slope_classes=classes, props=props)
+        return cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
+                   pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes)
 
     # -- queries -------------------------------------------------------------------------
     def depth_at(self, x):
