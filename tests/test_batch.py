@@ -375,6 +375,17 @@ def test_solve_many_process_pool_matches_in_process():
         assert_same_profile(there[i], here[i], tol=0)
 
 
+def test_profile_pickles_whole_and_read_only():
+    profile = chute().solve(n_steps=40)
+    back = pickle.loads(pickle.dumps(profile))
+    assert_same_profile(back, profile, tol=0)
+    assert back.reach == profile.reach and back.method == profile.method
+    for name in ("x", "depth", "bed", "stage", "energy_grade", "velocity_head", "regime", "segment"):
+        np.testing.assert_array_equal(getattr(back, name), getattr(profile, name))
+        assert not getattr(back, name).flags.writeable
+    assert back.summary() == profile.summary()
+
+
 def test_solve_many_on_a_local_dask_cluster():
     distributed = pytest.importorskip("distributed")
     reaches = small_reaches(16, bad={2})
