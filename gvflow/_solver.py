@@ -229,16 +229,27 @@ def _check_stop_codes(marcher, seg, code, stop, grp, x_order):
             "method")
 
 
-def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
-    """March a branch; where it fails fill critical depth, restarting where the slope allows."""
+def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, rival=None):
+    """March a branch; where it fails fill critical depth, restarting where the slope allows.
+
+    ``rival`` (n, m): specific force of the competing profile at each station; a
+    scenario whose branch falls below it there may stop (depths NaN beyond).
+    """
     n, m = seg.n, x_order.shape[0]
     crit = np.zeros((n, m), bool)
     crit[:, 0] = crit0
-    res = marcher.march(seg, x_order, np.asarray(y0, dtype=float), branch)
+
+    def march(sub, start, y_start, rows):
+        if rival is None:
+            return marcher.march(sub, x_order[start:], y_start, branch)
+        return marcher.march_until(sub, x_order[start:], y_start, branch, rival[rows, start:], _M_TOL)
+
+    res = march(seg, 0, np.asarray(y0, dtype=float), slice(None))
     if res.code.max() >= 2:
         _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order)
-    stop = res.n_valid  # first station each scenario's branch could not reach
-    if stop.min() == m:  # every scenario reached the end of the segment
+    # first station each scenario's branch could not reach (an overtaken one needs no more)
+    stop = np.where(res.code == 4, m, res.n_valid)
+    if stop.min() == m:  # every scenario reached the end of the segment or was overtaken
         return res.depth, crit
     cols = np.arange(m)
     failed = cols[None, :] >= stop[:, None]
@@ -251,10 +262,11 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart):
         restart_idx, restart_j = [], []
         for start in np.unique(j0):
             grp = idx[j0 == start]
-            res = marcher.march(seg.take(grp), x_order[start:], seg.yc[grp], branch)
+            res = march(seg.take(grp), start, seg.yc[grp], grp)
             stop = start + res.n_valid
             if res.code.max() >= 2:
                 _check_stop_codes(marcher, seg, res.code, stop, grp, x_order)
+            stop[res.code == 4] = m
             failed = cols[None, start:] >= stop[:, None]
             y[grp, start:] = np.where(failed, seg.yc[grp, None], res.depth)
             crit[grp, start + 1:] = failed[:, 1:]  # a restart station stays critical
@@ -338,10 +350,6 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
             # critical on the upstream side too where the section is the same, or where it has no subcritical root
             c_start = flag | (sub_c[:, i0] & (segs[k].spec == segs[k - 1].spec))
-    sub_M = np.empty((n, M))
-    for k in range(nseg):
-        i0, m = bounds[k]
-        sub_M[:, i0:i0 + m] = segs[k].specific_force(sub_y[:, i0:i0 + m])
 
     # ---------------- supercritical pass and governance ------------------------------------
     depth = sub_y.copy()
@@ -376,10 +384,11 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             xs = x[i0:i0 + m]
             from_critical = np.abs(sup_state[act] - seg.yc[act]) <= 1e-12 * seg.yc[act]
             seg_act = _subset(seg, act)
+            msub = seg_act.specific_force(sub_y[act, i0:i0 + m])
+            # (the supercritical march may stop where the subcritical profile overtakes it: NaN beyond)
             ysup, csup = _march_with_fallback(marcher, seg_act, xs, sup_state[act], from_critical, SUPER,
-                                              can_sup_start[k][act])
+                                              can_sup_start[k][act], rival=msub)
             msup = seg_act.specific_force(ysup)
-            msub = sub_M[act, i0:i0 + m]
             sup_wins = msup >= msub * (1 - _M_TOL)
             lose = ~sup_wins
             first_loss = np.where(lose.any(axis=1), lose.argmax(axis=1), m)

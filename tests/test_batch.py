@@ -23,6 +23,8 @@ import gvflow as gv
 from gvflow._solver import solve_batch
 from gvflow.batch import REGIME_CODES, progress_wanted
 from gvflow.profiles import get_marcher
+from gvflow.profiles.base import Marcher
+from gvflow.profiles.standard_step import StandardStep
 
 G = 9.80665
 B = 4.0
@@ -103,6 +105,49 @@ VARIED = {
                                                  roughness=gv.DarcyWeisbach(0.0015))],
                             discharge=0.8, downstream=gv.FixedDepth(1.0)), dict(roughness=[0.0005, 0.003])),
 }
+
+
+class FullMarch(StandardStep):
+    """The standard step without the early stop: marches every supercritical profile to the segment end."""
+
+    name = "standard_step_full"
+
+    def march_until(self, seg, x, y0, branch, force, rtol):
+        return Marcher.march_until(self, seg, x, y0, branch, force, rtol)
+
+
+def test_march_until_stops_where_the_rival_overtakes():
+    # the M3 below the chute, against the M1 from the tailwater: the march stops at the first station where
+    # the M1 carries the larger specific force, and agrees with the full march up to there
+    marcher = get_marcher("standard_step")
+    sol = solve_batch(chute(), marcher, np.array([10.0]), None, 60)
+    seg, on = sol.segs[2], sol.segment == 2
+    x, toe = sol.x[on], sol.depth[0, np.flatnonzero(sol.segment == 1)[-1]]
+    rival = seg.specific_force(sol.depth[:, on])  # the subcritical profile governs below the jump
+    full = marcher.march(seg, x, np.array([toe]), -1)
+    cut = marcher.march_until(seg, x, np.array([toe]), -1, rival, 1e-12)
+    stop = int(cut.n_valid[0])
+    assert cut.code[0] == 4 and 1 < stop < full.n_valid[0]
+    np.testing.assert_array_equal(cut.depth[0, :stop], full.depth[0, :stop])
+    assert np.all(np.isnan(cut.depth[0, stop:]))
+    m_sup = seg.specific_force(full.depth[:, :stop])[0]
+    assert np.all(m_sup[:-1] >= rival[0, :stop - 1] * (1 - 1e-12)) and m_sup[-1] < rival[0, stop - 1]
+    with pytest.raises(gv.InvalidInputError, match="force must have shape"):
+        marcher.march_until(seg, x, np.array([toe]), -1, rival[:, :-1], 1e-12)
+
+
+@pytest.mark.parametrize("name", sorted(VARIED))
+def test_stopping_overtaken_profiles_changes_nothing(name):
+    # the supercritical march stops where the subcritical profile overtakes it; marching on to the segment
+    # end (the base contract's behaviour) must give the very same profiles, jumps and notes
+    reach, kw = VARIED[name]
+    early, full = reach.sweep(**kw, n_steps=60), reach.sweep(**kw, n_steps=60, method=FullMarch)
+    np.testing.assert_array_equal(early.depth, full.depth)
+    np.testing.assert_array_equal(early.regime, full.regime)
+    assert early.profile_types == full.profile_types
+    assert [[j.x for j in js] for js in early.jumps] == [[j.x for j in js] for js in full.jumps]
+    for i in range(len(early)):
+        assert early[i].controls == full[i].controls
 
 
 @pytest.mark.parametrize("name", sorted(VARIED))

@@ -341,22 +341,32 @@ def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k,
 
 @njit(cache=True)
 def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol,
-          out_y, out_n, out_xc, out_code):
+          until_force, force_tol, out_y, out_n, out_xc, out_code):
     """Standard-step march of every scenario over the stations ``x`` (in marching order).
 
     ``coef``, ``q``, ``y0`` and ``yc`` hold one value per scenario. Writes the
     depths into ``out_y[s, :]``; ``out_n[s]`` is the number of stations solved
     on the branch; where a scenario stopped early, ``out_xc[s]`` is where it
     reached critical depth and ``out_code[s]`` the step code that stopped it.
+    With a non-empty ``until_force`` (shape (n, m)) a scenario also stops, code
+    4, at the first station where its specific force falls below
+    ``until_force[s, j] * (1 - force_tol)``: that station is the last solved.
     """
     ns = q.shape[0]
     m = x.shape[0]
+    watch = until_force.shape[0] > 0
     for s in range(ns):
         y = y0[s]
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
         out_code[s] = 0
+        if watch and specific_force(kind, p0, p1, p2, q[s], g, y) < until_force[s, 0] * (1.0 - force_tol):
+            out_n[s] = 1
+            out_code[s] = 4
+            for jj in range(1, m):
+                out_y[s, jj] = math.nan
+            continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
             y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
@@ -380,6 +390,12 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
                 break
             out_y[s, j] = y2
             y = y2
+            if watch and specific_force(kind, p0, p1, p2, q[s], g, y) < until_force[s, j] * (1.0 - force_tol):
+                out_n[s] = j + 1
+                out_code[s] = 4
+                for jj in range(j + 1, m):
+                    out_y[s, jj] = math.nan
+                break
 
 
 @njit(cache=True)

@@ -30,7 +30,8 @@ SUB = K.SUB
 SUPER = K.SUPER
 
 #: stop codes of a march, per scenario
-STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no convergence"}
+STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no convergence",
+              4: "overtaken by the competing profile"}
 
 
 @dataclass(frozen=True, eq=False)
@@ -169,6 +170,16 @@ class Marcher:
     def march(self, seg: SegmentBatch, x: np.ndarray, y0: np.ndarray, branch: int) -> MarchResult:
         """Trace every scenario of ``seg`` from depth ``y0`` over stations ``x`` (marching order)."""
         raise NotImplementedError  # pragma: no cover
+
+    def march_until(self, seg: SegmentBatch, x: np.ndarray, y0: np.ndarray, branch: int, force: np.ndarray,
+                    rtol: float) -> MarchResult:
+        """:meth:`march`, allowed to stop a scenario (code 4) at the first station j where its specific force
+        falls below ``force[s, j] * (1 - rtol)``: there the profile is overtaken by a competing one (a jump
+        stands before it) and the stations beyond do not matter. That station is the last solved.
+
+        The base implementation marches the whole segment, which is always correct; compiled marchers stop.
+        """
+        return self.march(seg, x, y0, branch)
 
     def step_to(self, seg: SegmentBatch, index: int, y1: float, x1: float, x2: float, branch: int) -> float:
         """Depth at x2 of the profile through (x1, y1) for scenario ``index`` (NaN if none)."""

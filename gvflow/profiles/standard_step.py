@@ -31,6 +31,9 @@ from .base import Marcher, MarchResult, SegmentBatch, register_marcher
 __all__ = ["StandardStep"]
 
 
+_NO_FORCE = np.empty((0, 0))  # march_until without a competing profile
+
+
 def _per_scenario(value, n: int) -> np.ndarray:
     """``value`` (a scalar or one value per scenario) as a contiguous float array of shape (n,)."""
     arr = np.asarray(value, dtype=float)
@@ -70,17 +73,26 @@ class StandardStep(Marcher):
         return kind, p0, p1, p2, seg.law, u.manning_k, u.g, u.kinematic_viscosity, seg.section.max_depth
 
     def march(self, seg, x, y0, branch):
+        return self._march(seg, x, y0, branch, _NO_FORCE, 0.0)
+
+    def march_until(self, seg, x, y0, branch, force, rtol):
+        return self._march(seg, x, y0, branch, force, rtol)
+
+    def _march(self, seg, x, y0, branch, force, rtol):
         kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         x = np.ascontiguousarray(x, dtype=float)
         n, m = seg.n, x.shape[0]
         y0 = _per_scenario(y0, n)
+        force = np.ascontiguousarray(force, dtype=float)
+        if force.size and force.shape != (n, m):
+            raise InvalidInputError(f"force must have shape {(n, m)} (scenarios, stations); got {force.shape}")
         out_y = np.empty((n, m))
         out_n = np.empty(n, dtype=np.int64)
         out_xc = np.empty(n)
         out_code = np.empty(n, dtype=np.int64)
         K.march(kind, p0, p1, p2, law, seg.coef, seg.discharge, seg.slope, x, y0, seg.yc, int(branch),
                 seg.alpha, self.eddy_loss, K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol,
-                out_y, out_n, out_xc, out_code)
+                force, float(rtol), out_y, out_n, out_xc, out_code)
         return MarchResult(out_y, out_n, out_xc, out_code)
 
     def step_to(self, seg, index, y1, x1, x2, branch):
