@@ -25,10 +25,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ._roots import bracketed_root
+from ._validate import positive_array
 from .controls import EndState
 from .errors import ControlError, ConvergenceError, NoSolutionError
 from .profiles._kernel import SUB, SUPER
 from .profiles.base import SegmentBatch
+from .profiles.classify import SLOPE_CLASSES
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
@@ -105,17 +107,19 @@ def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
     return seg if idx.size == seg.n else seg.take(idx)
 
 
-def _classes(seg: SegmentBatch, tol: float) -> np.ndarray:
-    """Slope class of every scenario: the rule of :func:`gvflow.profiles.classify_slope`, over arrays."""
-    if seg.slope == 0:
-        return np.full(seg.n, "horizontal", dtype=object)
-    if seg.slope < 0:
-        return np.full(seg.n, "adverse", dtype=object)
+_SLOPE_CLASS_NAMES = np.array(SLOPE_CLASSES, dtype=object)  # mild, steep, critical, horizontal, adverse
+
+
+def _class_codes(seg: SegmentBatch, tol: float) -> np.ndarray:
+    """Slope class of every scenario as an index into ``_SLOPE_CLASS_NAMES``: the rule of
+    :func:`gvflow.profiles.classify_slope`, over arrays."""
+    if seg.slope <= 0:
+        return np.full(seg.n, 3 if seg.slope == 0 else 4)
     yn, yc = seg.yn, seg.yc
-    out = np.where(yn > yc, "mild", "steep").astype(object)
-    out[np.abs(yn - yc) <= tol * yc] = "critical"
-    out[~np.isfinite(yn)] = "mild"  # a surcharging conduit: friction exceeds the slope at every depth
-    return out
+    code = (yn <= yc).astype(int)  # 0 mild, 1 steep
+    code[np.abs(yn - yc) <= tol * yc] = 2
+    code[~np.isfinite(yn)] = 0  # a surcharging conduit: friction exceeds the slope at every depth: mild
+    return code
 
 
 def _check_inside(seg, y, ctrl, end):
@@ -285,15 +289,13 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     units = reach.resolved_units
     segments = reach.segments
     nseg = len(segments)
-    q = np.atleast_1d(np.asarray(discharge, dtype=float))
+    q = np.array(positive_array(discharge, "discharge"), dtype=float, ndmin=1).ravel()
     n = q.size
-    segs = []
-    for k, s in enumerate(segments):
-        c = None if coef is None else coef[:, k]
-        segs.append(SegmentBatch.build(s.section, s.slope, s.roughness, q, units, reach.alpha, coef=c))
-    classes = np.empty((n, nseg), dtype=object)
-    for k, sg in enumerate(segs):
-        classes[:, k] = _classes(sg, critical_tolerance)
+    if coef is not None:
+        coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
+    segs = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
+                                  None if coef is None else coef[:, k].copy()) for k, s in enumerate(segments)]
+    classes = _SLOPE_CLASS_NAMES[np.stack([_class_codes(sg, critical_tolerance) for sg in segs], axis=1)]
     sf_c = [sg.friction_slope(sg.yc) for sg in segs]
     can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
     can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]

@@ -74,12 +74,17 @@ class SegmentBatch:
     @classmethod
     def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
         """Build a batch; ``coef`` (array) overrides the roughness coefficient per scenario."""
-        u = resolve_units(units)
-        rough = as_roughness(roughness)
-        law, c0 = rough.kernel_spec()
         q = np.atleast_1d(positive_array(discharge, "discharge")).astype(float).ravel()
-        c = np.full(q.shape, c0) if coef is None else np.broadcast_to(
-            positive_array(coef, "roughness"), q.shape).astype(float).copy()
+        if coef is not None:
+            coef = np.broadcast_to(positive_array(coef, "roughness"), q.shape).astype(float)
+        return cls._checked(section, slope, roughness, q, resolve_units(units), alpha, coef)
+
+    @classmethod
+    def _checked(cls, section, slope, roughness, q, u, alpha, coef):
+        """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
+        or a float array of q's shape it may keep."""
+        law, c0 = as_roughness(roughness).kernel_spec()
+        c = np.full(q.shape, c0) if coef is None else coef
         spec = section.kernel_spec()
         kind, p0, p1, p2 = spec
         ymax = section.max_depth
