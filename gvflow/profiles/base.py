@@ -5,7 +5,9 @@ subcritical branch upstream from a downstream control, or the supercritical
 branch downstream from an upstream control) along one prismatic segment,
 for a batch of scenarios at once. The base class keeps the books; a
 subclass implements :meth:`Marcher.march` (fixed stations) and
-:meth:`Marcher.step_to` (one partial step, used to refine jump locations).
+:meth:`Marcher.step_to` (one partial step, used to refine jump locations);
+it may also override :meth:`Marcher.march_until` to stop a supercritical
+profile where the solver's competing subcritical profile overtakes it.
 Subclasses register under a name in :data:`MARCHERS`, which is what
 ``method="standard_step"`` and ``method="ivp"`` look up; a user may also pass
 a subclass itself.
