@@ -71,7 +71,8 @@ class Profile:
         self.method = method
         self.units = reach.resolved_units
         self.discharge = reach.discharge
-        self._stations = stations  # rows: _STATION_ROWS
+        self._stations = stations  # rows: _STATION_ROWS, read-only views of it
+        stations.setflags(write=False)
         for name, row in zip(_STATION_ROWS, stations, strict=True):
             setattr(self, name, row)
         self.stage = self.bed + self.depth
@@ -87,7 +88,7 @@ class Profile:
         self.normal_depths = normal_depths
         self.critical_depths = critical_depths
         self.slope_classes = slope_classes
-        for name in _STATION_ROWS + ("stage", "specific_energy", "energy_grade", "regime", "segment"):
+        for name in ("stage", "specific_energy", "energy_grade", "regime", "segment"):
             getattr(self, name).setflags(write=False)
 
     def _state(self) -> dict:
