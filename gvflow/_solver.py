@@ -23,6 +23,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from numba import njit
 
 from ._roots import bracketed_root
 from ._validate import positive_array
@@ -283,6 +284,23 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
     return y, crit
 
 
+@njit(cache=True)
+def _govern(m_sup, m_sub, y_sup, crit_sup, depth, regime, tol, first_loss):
+    """Step 3 of the method on one segment: the supercritical profile governs from the segment's head up
+    to the first station where its specific force falls below the subcritical one's (relative ``tol``).
+    Writes its depths and regimes over ``depth`` and ``regime`` there; ``first_loss[s]`` is that station
+    (m where it governs the whole segment)."""
+    n, m = m_sup.shape
+    for s in range(n):
+        first_loss[s] = m
+        for j in range(m):
+            if not m_sup[s, j] >= m_sub[s, j] * (1.0 - tol):
+                first_loss[s] = j
+                break
+            depth[s, j] = y_sup[s, j]
+            regime[s, j] = REGIME_CRITICAL if crit_sup[s, j] else REGIME_SUPER
+
+
 def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
                 critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> BatchSolution:
     """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None)."""
@@ -391,14 +409,13 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             ysup, csup = _march_with_fallback(marcher, seg_act, xs, sup_state[act], from_critical, SUPER,
                                               can_sup_start[k][act], rival=msub)
             msup = seg_act.specific_force(ysup)
-            sup_wins = msup >= msub * (1 - _M_TOL)
-            lose = ~sup_wins
-            first_loss = np.where(lose.any(axis=1), lose.argmax(axis=1), m)
-            take = np.arange(m)[None, :] < first_loss[:, None]
-            blk = depth[act, i0:i0 + m]
-            depth[act, i0:i0 + m] = np.where(take, ysup, blk)
-            regime[act, i0:i0 + m] = np.where(take, np.where(csup, REGIME_CRITICAL, REGIME_SUPER),
-                                              regime[act, i0:i0 + m])
+            first_loss = np.empty(act.size, np.int64)
+            if act.size == n:  # write in place
+                _govern(msup, msub, ysup, csup, depth[:, i0:i0 + m], regime[:, i0:i0 + m], _M_TOL, first_loss)
+            else:
+                blk_y, blk_r = depth[act, i0:i0 + m], regime[act, i0:i0 + m]
+                _govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
+                depth[act, i0:i0 + m], regime[act, i0:i0 + m] = blk_y, blk_r
             for r in np.flatnonzero(first_loss < m):
                 s, i = int(act[r]), int(first_loss[r])
                 if i == 0:
