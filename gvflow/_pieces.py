@@ -16,7 +16,7 @@ from numba import njit
 
 from .profiles.classify import _zone_labels
 
-__all__ = ["ProfilePiece", "profile_pieces", "UNIFORM_TOLERANCE"]
+__all__ = ["ProfilePiece", "profile_pieces", "scenario_pieces", "UNIFORM_TOLERANCE"]
 
 #: depths within this relative distance of normal depth all along a piece count as uniform flow
 UNIFORM_TOLERANCE = 1e-6
@@ -69,85 +69,121 @@ def _scenario_sequence(x, y, r, seg, j_after, j_x, j_y1, j_y2, j_seg, j_junc):
 
 
 @njit(cache=True)
-def _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
-            count, out_s, out_k, out_r, out_x0, out_x1, out_med):
-    """Continuous profile pieces of every scenario, sorted by (x_start, x_end) within each scenario.
+def _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, count, s, out_s, out_k, out_r, out_x0, out_x1, out_med, w):
+    """Continuous profile pieces of one scenario's station sequence (:func:`_scenario_sequence`), sorted by
+    (x_start, x_end); ``yn`` its normal depth per segment.
 
-    Runs of one regime inside one segment between jumps, skipping
-    those at normal depth throughout (uniform flow), labelled by their median
-    depth, extended through a critical-depth station at either end. With
-    ``count`` true only counts them; otherwise fills the out arrays and
-    returns the number written.
+    Runs of one regime inside one segment between jumps, skipping those at
+    normal depth throughout (uniform flow), labelled by their median depth,
+    extended through a critical-depth station at either end. Writes them from
+    row ``w`` of the out arrays (scenario index ``s``) unless ``count``;
+    returns the next free row either way.
     """
-    n = depth.shape[0]
-    w = 0
-    for s in range(n):
-        a, b = jump_ptr[s], jump_ptr[s + 1]
-        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
-                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
-        p = xs.shape[0]
-        w0 = w
-        start = 0
-        for j in range(1, p + 1):
-            if j < p and ks[j] == ks[j - 1] and xs[j] != xs[j - 1]:
-                continue
-            # part = [start, j)
-            for want in (-1, 1):
-                i = start
-                while i < j:
-                    if rs[i] != want:
-                        i += 1
-                        continue
-                    e = i
-                    while e + 1 < j and rs[e + 1] == want:
-                        e += 1
-                    k = ks[i]
-                    ynk = yn[s, k]
-                    uniform = np.isfinite(ynk)
-                    if uniform:
-                        for t in range(i, e + 1):
-                            if abs(ys[t] - ynk) > uni_tol * ynk:
-                                uniform = False
-                                break
-                    if not uniform:
-                        if not count:
-                            first = i - 1 if i > start and rs[i - 1] == 0 else i
-                            last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
-                            out_s[w] = s
-                            out_k[w] = k
-                            out_r[w] = want
-                            out_x0[w] = xs[first]
-                            out_x1[w] = xs[last]
-                            out_med[w] = np.median(ys[i:e + 1])
-                        w += 1
-                    i = e + 1
-            start = j
-        if not count:
-            # stable insertion sort of this scenario's pieces by (x_start, x_end)
-            for u in range(w0 + 1, w):
-                v = u
-                while v > w0 and (out_x0[v - 1] > out_x0[v] or (out_x0[v - 1] == out_x0[v]
-                                                                  and out_x1[v - 1] > out_x1[v])):
-                    for arr in (out_x0, out_x1, out_med):
-                        arr[v - 1], arr[v] = arr[v], arr[v - 1]
-                    out_s[v - 1], out_s[v] = out_s[v], out_s[v - 1]
-                    out_k[v - 1], out_k[v] = out_k[v], out_k[v - 1]
-                    out_r[v - 1], out_r[v] = out_r[v], out_r[v - 1]
-                    v -= 1
+    p = xs.shape[0]
+    w0 = w
+    start = 0
+    for j in range(1, p + 1):
+        if j < p and ks[j] == ks[j - 1] and xs[j] != xs[j - 1]:
+            continue
+        # part = [start, j)
+        for want in (-1, 1):
+            i = start
+            while i < j:
+                if rs[i] != want:
+                    i += 1
+                    continue
+                e = i
+                while e + 1 < j and rs[e + 1] == want:
+                    e += 1
+                k = ks[i]
+                ynk = yn[k]
+                uniform = np.isfinite(ynk)
+                if uniform:
+                    for t in range(i, e + 1):
+                        if abs(ys[t] - ynk) > uni_tol * ynk:
+                            uniform = False
+                            break
+                if not uniform:
+                    if not count:
+                        first = i - 1 if i > start and rs[i - 1] == 0 else i
+                        last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
+                        out_s[w] = s
+                        out_k[w] = k
+                        out_r[w] = want
+                        out_x0[w] = xs[first]
+                        out_x1[w] = xs[last]
+                        out_med[w] = np.median(ys[i:e + 1])
+                    w += 1
+                i = e + 1
+        start = j
+    if not count:
+        # stable insertion sort of this scenario's pieces by (x_start, x_end)
+        for u in range(w0 + 1, w):
+            v = u
+            while v > w0 and (out_x0[v - 1] > out_x0[v] or (out_x0[v - 1] == out_x0[v]
+                                                              and out_x1[v - 1] > out_x1[v])):
+                for arr in (out_x0, out_x1, out_med):
+                    arr[v - 1], arr[v] = arr[v], arr[v - 1]
+                out_s[v - 1], out_s[v] = out_s[v], out_s[v - 1]
+                out_k[v - 1], out_k[v] = out_k[v], out_k[v - 1]
+                out_r[v - 1], out_r[v] = out_r[v], out_r[v - 1]
+                v -= 1
     return w
 
 
 @njit(cache=True)
 def _all_pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol):
-    """:func:`_pieces` counted, allocated and filled in one call: (scenario, segment, regime, x0, x1, median)."""
+    """The pieces of every scenario, counted, allocated and filled in one call: (scenario, segment, regime,
+    x0, x1, median) per piece, scenario by scenario."""
+    n = depth.shape[0]
     e_i, e_f = np.empty(0, np.int64), np.empty(0)
-    total = _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
-                    True, e_i, e_i, e_i, e_f, e_f, e_f)
-    s, k, r = np.empty(total, np.int64), np.empty(total, np.int64), np.empty(total, np.int64)
+    total = 0
+    for s in range(n):
+        a, b = jump_ptr[s], jump_ptr[s + 1]
+        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
+                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
+        total = _sequence_pieces(xs, ys, rs, ks, yn[s], uni_tol, True, s, e_i, e_i, e_i, e_f, e_f, e_f, total)
+    out_s, out_k, out_r = np.empty(total, np.int64), np.empty(total, np.int64), np.empty(total, np.int64)
     x0, x1, med = np.empty(total), np.empty(total), np.empty(total)
-    _pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol,
-            False, s, k, r, x0, x1, med)
-    return s, k, r, x0, x1, med
+    w = 0
+    for s in range(n):
+        a, b = jump_ptr[s], jump_ptr[s + 1]
+        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
+                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
+        w = _sequence_pieces(xs, ys, rs, ks, yn[s], uni_tol, False, s, out_s, out_k, out_r, x0, x1, med, w)
+    return out_s, out_k, out_r, x0, x1, med
+
+
+@njit(cache=True)
+def _one_scenario_pieces(xs, ys, rs, ks, yn, uni_tol):
+    """:func:`_all_pieces` for one scenario's station sequence: (segment, regime, x0, x1, median)."""
+    e_i, e_f = np.empty(0, np.int64), np.empty(0)
+    total = _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, True, 0, e_i, e_i, e_i, e_f, e_f, e_f, 0)
+    out_s, out_k, out_r = np.empty(total, np.int64), np.empty(total, np.int64), np.empty(total, np.int64)
+    x0, x1, med = np.empty(total), np.empty(total), np.empty(total)
+    _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, False, 0, out_s, out_k, out_r, x0, x1, med, 0)
+    return out_k, out_r, x0, x1, med
+
+
+def _labelled(sol, cls, k, r, x0, x1, med, ynk, yck) -> list[ProfilePiece]:
+    """ProfilePiece objects for pieces in segments ``k`` of slope classes ``cls`` (normal and critical
+    depths ``ynk``, ``yck`` per piece)."""
+    # a closed conduit that cannot carry the discharge in uniform flow is classed mild with no normal
+    # depth: its profiles tend to the crown, which stands in for normal depth when labelling them
+    no_yn = np.isnan(ynk)
+    if no_yn.any():
+        crown = np.array([sg.section.max_depth for sg in sol.segs])
+        ynk = np.where(no_yn & (cls == "mild"), crown[k], ynk)
+    labels = _zone_labels(cls, med, ynk, yck).tolist()
+    return [ProfilePiece(lab, kk, a, b, _REGIME_NAMES[rr])
+            for lab, kk, rr, a, b in zip(labels, k.tolist(), r.tolist(), x0.tolist(), x1.tolist(), strict=True)]
+
+
+def scenario_pieces(sol, i, xs, ys, rs, ks, yn, yc) -> list[ProfilePiece]:
+    """The labelled pieces of scenario ``i``, from its station sequence (:func:`_scenario_sequence`) and
+    its normal and critical depth per segment."""
+    k, r, x0, x1, med = _one_scenario_pieces(xs, ys, rs, ks, yn, UNIFORM_TOLERANCE)
+    return _labelled(sol, sol.slope_class[i][k], k, r, x0, x1, med, yn[k], yc[k])
 
 
 def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
@@ -155,11 +191,8 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     sc = np.atleast_1d(np.asarray(scenarios, dtype=np.int64))
     js = sol.jump_scenario
     lo, hi = np.searchsorted(js, sc, "left"), np.searchsorted(js, sc, "right")
-    if sc.size == 1:
-        rows = np.arange(lo[0], hi[0])
-    else:
-        rows = np.concatenate([np.arange(a, b) for a, b in zip(lo, hi, strict=True)]).astype(np.int64) \
-            if sc.size else np.zeros(0, np.int64)
+    rows = np.concatenate([np.arange(a, b) for a, b in zip(lo, hi, strict=True)]).astype(np.int64) \
+        if sc.size else np.zeros(0, np.int64)
     ptr = np.zeros(sc.size + 1, np.int64)
     np.cumsum(hi - lo, out=ptr[1:])
     nseg = len(sol.segs)
@@ -171,17 +204,9 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
         np.ascontiguousarray(sol.segment, np.int64), ptr, sol.jump_after[rows], sol.jump_x[rows],
         sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows], yn,
         UNIFORM_TOLERANCE)
-    total = s.size
-    # a closed conduit that cannot carry the discharge in uniform flow is classed mild with no normal
-    # depth: its profiles tend to the crown, which stands in for normal depth when labelling them
-    ynk, yck = yn[s, k], yc[s, k]
-    cls = sol.slope_class[sc[s], k] if total else np.empty(0, dtype=object)
-    no_yn = np.isnan(ynk)
-    if no_yn.any():
-        crown = np.array([sg.section.max_depth for sg in sol.segs])
-        ynk = np.where(no_yn & (cls == "mild"), crown[k], ynk)
-    labels = _zone_labels(cls, med, ynk, yck)
     out = [[] for _ in range(sc.size)]
-    for j in range(total):
-        out[s[j]].append(ProfilePiece(str(labels[j]), int(k[j]), float(x0[j]), float(x1[j]), _REGIME_NAMES[int(r[j])]))
+    if s.size:
+        for j, piece in zip(s.tolist(), _labelled(sol, sol.slope_class[sc[s], k], k, r, x0, x1, med, yn[s, k],
+                                                   yc[s, k]), strict=True):
+            out[j].append(piece)
     return out

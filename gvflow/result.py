@@ -6,7 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._pieces import ProfilePiece, _scenario_sequence, profile_pieces
+from ._pieces import ProfilePiece, _scenario_sequence, scenario_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, _length_ratio, jump_type
@@ -116,7 +116,7 @@ class Profile:
         yn = np.array([s.yn[i] for s in sol.segs])
         yc = np.array([s.yc[i] for s in sol.segs])
         classes = [str(c) for c in sol.slope_class[i]]
-        pieces = profile_pieces(sol, [i])[0]
+        pieces = scenario_pieces(sol, i, x, y, reg, seg, yn, yc)
         # a junction station appears twice; keep one where nothing changes across it
         keep = np.ones(x.size, bool)
         keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1]))
