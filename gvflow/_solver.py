@@ -88,19 +88,36 @@ def station_layout(reach, n_steps: int, max_step: float | None):
 
     Returns (x, segment index of each station, bed elevation, [(first index, count)] per segment).
     """
-    xs, beds, bounds = [], [], []
-    start, i0 = 0.0, 0
-    for s, x_end, z_end in zip(reach.segments, *reach._segment_ends(), strict=True):
-        n = n_steps if max_step is None else max(n_steps, int(np.ceil(s.length / max_step)))
-        x = np.arange(n + 1) * (s.length / n) + start  # evenly spaced, as np.linspace(start, start + length)
-        x[-1] = start + s.length
-        xs.append(x)
-        beds.append(z_end + s.slope * (x_end - x))  # as Reach.bed_elevation
+    lengths = [s.length for s in reach.segments]
+    steps = [n_steps if max_step is None else max(n_steps, int(np.ceil(length / max_step))) for length in lengths]
+    x_end, z_end = reach._segment_ends()
+    x, seg_ix, bed = _layout(np.array(lengths), np.array(steps), np.array([s.slope for s in reach.segments]),
+                             np.array(x_end), np.array(z_end))
+    bounds, i0 = [], 0
+    for n in steps:
         bounds.append((i0, n + 1))
         i0 += n + 1
-        start += s.length
-    seg_ix = np.repeat(np.arange(len(bounds)), [m for _, m in bounds])
-    return np.concatenate(xs), seg_ix, np.concatenate(beds), bounds
+    return x, seg_ix, bed, bounds
+
+
+@njit(cache=True)
+def _layout(lengths, steps, slopes, x_end, z_end):
+    """Stations of :func:`station_layout`: ``steps[k] + 1`` evenly spaced over segment k, as
+    np.linspace(start, start + length) would place them, and the bed there as Reach.bed_elevation."""
+    total = 0
+    for k in range(steps.shape[0]):
+        total += steps[k] + 1
+    x, seg, bed = np.empty(total), np.empty(total, np.int64), np.empty(total)
+    p, start = 0, 0.0
+    for k in range(steps.shape[0]):
+        h = lengths[k] / steps[k]
+        for j in range(steps[k] + 1):
+            x[p] = j * h + start if j < steps[k] else start + lengths[k]
+            seg[p] = k
+            bed[p] = z_end[k] + slopes[k] * (x_end[k] - x[p])
+            p += 1
+        start += lengths[k]
+    return x, seg, bed
 
 
 def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
