@@ -20,6 +20,7 @@ one march per segment and pass serves them all.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -577,7 +578,7 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
 
 def _refine(jumps, marcher, seg, x, sub_y, k):
     """Locate, by root finding, every jump of segment k whose x is still unknown (NaN)."""
-    rows = [j for j, jp in enumerate(jumps) if jp[4] == k and np.isnan(jp[1])]
+    rows = [j for j, jp in enumerate(jumps) if jp[4] == k and math.isnan(jp[1])]
     if not rows:
         return
     s_idx = np.array([jumps[j][0] for j in rows])
@@ -585,7 +586,7 @@ def _refine(jumps, marcher, seg, x, sub_y, k):
     y_sup0 = np.array([jumps[j][2] for j in rows])
     x_lo, x_hi = x[after], x[after + 1]
     y_sub1 = sub_y[s_idx, after + 1]
-    xj, ys, yb = marcher.locate_jumps(seg.take(s_idx), y_sup0, x_lo, y_sub1, x_hi)
+    xj, ys, yb = marcher.locate_jumps(_subset(seg, s_idx), y_sup0, x_lo, y_sub1, x_hi)  # one jump a scenario
     bad = ~np.isfinite(xj)
     if np.any(bad):
         r = int(np.flatnonzero(bad)[0])
