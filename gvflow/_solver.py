@@ -126,19 +126,7 @@ def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
     return seg if idx.size == seg.n else seg.take(idx)
 
 
-_SLOPE_CLASS_NAMES = np.array(SLOPE_CLASSES, dtype=object)  # mild, steep, critical, horizontal, adverse
-
-
-def _class_codes(seg: SegmentBatch, tol: float) -> np.ndarray:
-    """Slope class of every scenario as an index into ``_SLOPE_CLASS_NAMES``: the rule of
-    :func:`gvflow.profiles.classify_slope`, over arrays."""
-    if seg.slope <= 0:
-        return np.full(seg.n, 3 if seg.slope == 0 else 4)
-    yn, yc = seg.yn, seg.yc
-    code = (yn <= yc).astype(int)  # 0 mild, 1 steep
-    code[np.abs(yn - yc) <= tol * yc] = 2
-    code[~np.isfinite(yn)] = 0  # a surcharging conduit: friction exceeds the slope at every depth: mild
-    return code
+_SLOPE_CLASS_NAMES = np.array(SLOPE_CLASSES, dtype=object)  # indexed by SegmentBatch._checked's class codes
 
 
 def _check_inside(seg, y, ctrl, end):
@@ -329,10 +317,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     n = q.size
     if coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
-    segs = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
-                                  None if coef is None else coef[:, k].copy()) for k, s in enumerate(segments)]
-    classes = _SLOPE_CLASS_NAMES[np.stack([_class_codes(sg, critical_tolerance) for sg in segs], axis=1)]
-    sf_c = [sg.friction_slope(sg.yc) for sg in segs]
+    built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
+                                   None if coef is None else coef[:, k].copy(), critical_tolerance)
+             for k, s in enumerate(segments)]
+    segs = [b[0] for b in built]
+    sf_c = [b[1] for b in built]  # friction slope at critical depth
+    classes = _SLOPE_CLASS_NAMES[np.stack([b[2] for b in built], axis=1)]
     can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
     can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
 

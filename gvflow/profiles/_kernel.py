@@ -428,21 +428,26 @@ def properties(kind, p0, p1, p2, law, coef, q, y, k, g, nu, out):
 
 
 @njit(cache=True)
-def critical_many(kind, p0, p1, p2, q, g, alpha, ymax):
-    """Critical depth for every discharge in ``q``."""
-    out = np.empty(q.shape[0])
+def segment_constants(kind, p0, p1, p2, law, c, q, slope, k, g, nu, ymax, alpha, tol, yc, yn, sf_c, code):
+    """Per scenario (roughness c[i], discharge q[i]): critical depth, normal depth (NaN where none), the
+    friction slope at critical depth, and the slope class code (0 mild, 1 steep, 2 critical, 3 horizontal,
+    4 adverse) by the rule of :func:`gvflow.profiles.classify_slope` with band ``tol`` (a closed conduit
+    that cannot carry q in uniform flow counts as mild)."""
     for i in range(q.shape[0]):
-        out[i] = critical_depth(kind, p0, p1, p2, q[i], g, alpha, ymax)
-    return out
-
-
-@njit(cache=True)
-def normal_many(kind, p0, p1, p2, law, c, q, slope, k, g, nu, ymax):
-    """Normal depth for every (roughness, discharge) pair (NaN where none exists)."""
-    out = np.empty(q.shape[0])
-    for i in range(q.shape[0]):
-        out[i] = normal_depth(kind, p0, p1, p2, law, c[i], q[i], slope, k, g, nu, ymax)
-    return out
+        yc[i] = critical_depth(kind, p0, p1, p2, q[i], g, alpha, ymax)
+        yn[i] = normal_depth(kind, p0, p1, p2, law, c[i], q[i], slope, k, g, nu, ymax)
+        a, p, t, m, dp = geom(kind, p0, p1, p2, yc[i])
+        sf_c[i] = fslope(law, c[i], k, g, nu, q[i], a, p)
+        if slope == 0.0:
+            code[i] = 3
+        elif slope < 0.0:
+            code[i] = 4
+        elif not np.isfinite(yn[i]) or yn[i] - yc[i] > tol * yc[i]:
+            code[i] = 0
+        elif yc[i] - yn[i] > tol * yc[i]:
+            code[i] = 1
+        else:
+            code[i] = 2
 
 
 @njit(cache=True)

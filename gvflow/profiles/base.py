@@ -22,6 +22,7 @@ import numpy as np
 from .._validate import positive_array
 from ..errors import InvalidInputError
 from ..friction import as_roughness
+from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from ..units import Units, resolve_units
 from . import _kernel as K
 
@@ -79,21 +80,21 @@ class SegmentBatch:
         q = np.atleast_1d(positive_array(discharge, "discharge")).astype(float).ravel()
         if coef is not None:
             coef = np.broadcast_to(positive_array(coef, "roughness"), q.shape).astype(float)
-        return cls._checked(section, slope, roughness, q, resolve_units(units), alpha, coef)
+        return cls._checked(section, slope, roughness, q, resolve_units(units), alpha, coef)[0]
 
     @classmethod
-    def _checked(cls, section, slope, roughness, q, u, alpha, coef):
+    def _checked(cls, section, slope, roughness, q, u, alpha, coef, tol=CRITICAL_SLOPE_TOLERANCE):
         """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
-        or a float array of q's shape it may keep."""
+        or a float array of q's shape it may keep. Returns (batch, friction slope at critical depth, slope
+        class code: an index into SLOPE_CLASSES, critical within ``tol``) per scenario."""
         law, c0 = as_roughness(roughness).kernel_spec()
         c = np.full(q.shape, c0) if coef is None else coef
         spec = section.kernel_spec()
         kind, p0, p1, p2 = spec
-        ymax = section.max_depth
-        yc = K.critical_many(kind, p0, p1, p2, q, u.g, float(alpha), ymax)
-        yn = K.normal_many(kind, p0, p1, p2, int(law), c, q, float(slope), u.manning_k, u.g,
-                           u.kinematic_viscosity, ymax)
-        return cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, spec)
+        yc, yn, sf_c, code = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape), np.empty(q.shape, np.int64)
+        K.segment_constants(kind, p0, p1, p2, int(law), c, q, float(slope), u.manning_k, u.g, u.kinematic_viscosity,
+                            section.max_depth, float(alpha), float(tol), yc, yn, sf_c, code)
+        return cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, spec), sf_c, code
 
     @property
     def n(self) -> int:
