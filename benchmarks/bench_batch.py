@@ -310,11 +310,11 @@ def test_solve_many_1000_reaches(benchmark, workers):
     full = full_size(benchmark)
     reaches = many_reaches(1000 if full else 24)
     if workers == 0:
-        out = benchmark.pedantic(gv.solve_many, args=(reaches,), rounds=3 if full else 1, iterations=1)
+        out = benchmark.pedantic(gv.solve_many, args=(reaches,), rounds=5 if full else 1, iterations=1)
     else:
         with ProcessPoolExecutor(max_workers=workers) as ex:
             gv.solve_many(reaches[:4 * workers], ex)  # start the workers before timing
-            out = benchmark.pedantic(gv.solve_many, args=(reaches, ex), rounds=3 if full else 1, iterations=1)
+            out = benchmark.pedantic(gv.solve_many, args=(reaches, ex), rounds=5 if full else 1, iterations=1)
     benchmark.extra_info.update(reaches=len(reaches), workers=workers)
     assert len(out) == len(reaches) and all(isinstance(p, gv.Profile) for p in out)
     assert [p.discharge for p in out] == [r.discharge for r in reaches]

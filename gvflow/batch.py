@@ -646,7 +646,7 @@ def solve_many(reaches, executor: Executor | None = None, method="standard_step"
                                           f"{exc}")
                         err.__cause__ = exc
                         chunk = [err] * (b - a)
-                    results[a:b] = [Profile(reach=r, **c) if isinstance(c, dict) else c
+                    results[a:b] = [c if isinstance(c, BaseException) else Profile._from_state(r, c)
                                     for r, c in zip(reaches[a:b], chunk, strict=True)]
                     bar.update(b - a)
             except BaseException:  # interrupted: do not leave queued chunks running

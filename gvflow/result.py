@@ -91,18 +91,25 @@ class Profile:
         for name in ("stage", "specific_energy", "energy_grade", "regime", "segment"):
             getattr(self, name).setflags(write=False)
 
-    def _state(self) -> dict:
-        """What makes this profile besides its reach: compact (one station array, regime codes), for pickling
-        and for sending results between processes (:func:`gvflow.solve_many` re-attaches the reach)."""
-        return dict(method=self.method, stations=self._stations, regime=self._regime_code, segment=self.segment,
-                    jumps=self.jumps, pieces=self.pieces, controls=self.controls, normal_depths=self.normal_depths,
-                    critical_depths=self.critical_depths, slope_classes=self.slope_classes)
+    def _state(self) -> tuple:
+        """What makes this profile besides its reach, compact (one station array, regime codes, plain tuples),
+        for pickling and for sending results between processes (:func:`gvflow.solve_many` re-attaches the
+        reach); :meth:`_from_state` undoes it."""
+        return (self.method, self._stations, self._regime_code, self.segment,
+                [tuple(vars(j).values()) for j in self.jumps], [tuple(vars(p).values()) for p in self.pieces],
+                [(c.x, c.kind, c.text) for c in self.controls], self.normal_depths, self.critical_depths,
+                self.slope_classes)
 
-    def __getstate__(self):
-        return {"reach": self.reach, **self._state()}
+    @classmethod
+    def _from_state(cls, reach, state) -> Profile:
+        method, stations, regime, segment, jumps, pieces, controls, yn, yc, classes = state
+        return cls(reach=reach, method=method, stations=stations, regime=regime, segment=segment,
+                   jumps=[Jump(*j) for j in jumps], pieces=[ProfilePiece(*p) for p in pieces],
+                   controls=[ControlNote(*c) for c in controls], normal_depths=yn, critical_depths=yc,
+                   slope_classes=classes)
 
-    def __setstate__(self, state):
-        self.__init__(**state)
+    def __reduce__(self):
+        return Profile._from_state, (self.reach, self._state())
 
     # -- construction --------------------------------------------------------------------
     @classmethod
