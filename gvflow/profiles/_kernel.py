@@ -403,8 +403,13 @@ def extrapolate(x, y, j):
     """First guess of y[j] from the depths before it: cubic through the last four on evenly spaced stations
     (the march's usual layout), linear otherwise."""
     d = x[j] - x[j - 1]
-    if j >= 4 and abs(x[j - 3] - x[j - 4] - d) <= 1e-9 * abs(d) and abs(x[j - 1] - x[j - 2] - d) <= 1e-9 * abs(d):
-        return 4.0 * y[j - 1] - 6.0 * y[j - 2] + 4.0 * y[j - 3] - y[j - 4]
+    if j >= 4:
+        even = True
+        for i in range(j - 3, j):
+            if abs(x[i] - x[i - 1] - d) > 1e-9 * abs(d):
+                even = False
+        if even:
+            return 4.0 * y[j - 1] - 6.0 * y[j - 2] + 4.0 * y[j - 3] - y[j - 4]
     if j >= 2:
         return y[j - 1] + (y[j - 1] - y[j - 2]) * d / (x[j - 1] - x[j - 2])
     return y[j - 1]
