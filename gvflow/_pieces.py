@@ -132,37 +132,36 @@ def _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, count, s, out_s, out_k, out_r,
 
 
 @njit(cache=True)
+def _piece_arrays(size):
+    """Out arrays of :func:`_sequence_pieces` for ``size`` pieces: scenario, segment, regime, x0, x1, median."""
+    return (np.empty(size, np.int64), np.empty(size, np.int64), np.empty(size, np.int64), np.empty(size),
+            np.empty(size), np.empty(size))
+
+
+@njit(cache=True)
 def _all_pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol):
     """The pieces of every scenario, counted, allocated and filled in one call: (scenario, segment, regime,
     x0, x1, median) per piece, scenario by scenario."""
-    n = depth.shape[0]
-    e_i, e_f = np.empty(0, np.int64), np.empty(0)
-    total = 0
-    for s in range(n):
-        a, b = jump_ptr[s], jump_ptr[s + 1]
-        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
-                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
-        total = _sequence_pieces(xs, ys, rs, ks, yn[s], uni_tol, True, s, e_i, e_i, e_i, e_f, e_f, e_f, total)
-    out_s, out_k, out_r = np.empty(total, np.int64), np.empty(total, np.int64), np.empty(total, np.int64)
-    x0, x1, med = np.empty(total), np.empty(total), np.empty(total)
+    out = _piece_arrays(0)
     w = 0
-    for s in range(n):
-        a, b = jump_ptr[s], jump_ptr[s + 1]
-        xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
-                                            j_y2[a:b], j_seg[a:b], j_junc[a:b])
-        w = _sequence_pieces(xs, ys, rs, ks, yn[s], uni_tol, False, s, out_s, out_k, out_r, x0, x1, med, w)
-    return out_s, out_k, out_r, x0, x1, med
+    for fill in (False, True):  # count, then fill
+        if fill:
+            out = _piece_arrays(w)
+        w = 0
+        for s in range(depth.shape[0]):
+            a, b = jump_ptr[s], jump_ptr[s + 1]
+            xs, ys, rs, ks = _scenario_sequence(x, depth[s], regime[s], seg, j_after[a:b], j_x[a:b], j_y1[a:b],
+                                                j_y2[a:b], j_seg[a:b], j_junc[a:b])
+            w = _sequence_pieces(xs, ys, rs, ks, yn[s], uni_tol, not fill, s, *out, w)
+    return out
 
 
 @njit(cache=True)
 def _one_scenario_pieces(xs, ys, rs, ks, yn, uni_tol):
     """:func:`_all_pieces` for one scenario's station sequence: (segment, regime, x0, x1, median)."""
-    e_i, e_f = np.empty(0, np.int64), np.empty(0)
-    total = _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, True, 0, e_i, e_i, e_i, e_f, e_f, e_f, 0)
-    out_s, out_k, out_r = np.empty(total, np.int64), np.empty(total, np.int64), np.empty(total, np.int64)
-    x0, x1, med = np.empty(total), np.empty(total), np.empty(total)
-    _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, False, 0, out_s, out_k, out_r, x0, x1, med, 0)
-    return out_k, out_r, x0, x1, med
+    out = _piece_arrays(_sequence_pieces(xs, ys, rs, ks, yn, uni_tol, True, 0, *_piece_arrays(0), 0))
+    _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, False, 0, *out, 0)
+    return out[1:]
 
 
 def _labelled(sol, cls, k, r, x0, x1, med, ynk, yck) -> list[ProfilePiece]:

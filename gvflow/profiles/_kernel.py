@@ -355,6 +355,7 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
     ns = q.shape[0]
     m = x.shape[0]
     watch = until_force.shape[0] > 0
+    even = evenly_spaced(x)
     for s in range(ns):
         y = y0[s]
         out_y[s, 0] = y
@@ -370,7 +371,7 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
         for j in range(1, m):
             d = x[j] - x[j - 1]
             y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
-                            k, g, nu, ymax, tol, extrapolate(x, out_y[s], j))
+                            k, g, nu, ymax, tol, extrapolate(x, out_y[s], j, even))
             if code == 1:
                 # Near critical depth a long step can miss a root the profile really has (the
                 # discrete energy equation loses it before the profile does): retry with
@@ -399,19 +400,23 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
 
 
 @njit(cache=True)
-def extrapolate(x, y, j):
+def evenly_spaced(x):
+    """True when the stations ``x`` are equally spaced (to 1e-9 of the spacing)."""
+    d = x[1] - x[0] if x.shape[0] > 1 else 0.0
+    for j in range(2, x.shape[0]):
+        if abs(x[j] - x[j - 1] - d) > 1e-9 * abs(d):
+            return False
+    return True
+
+
+@njit(cache=True)
+def extrapolate(x, y, j, even):
     """First guess of y[j] from the depths before it: cubic through the last four on evenly spaced stations
     (the march's usual layout), linear otherwise."""
-    d = x[j] - x[j - 1]
-    if j >= 4:
-        even = True
-        for i in range(j - 3, j):
-            if abs(x[i] - x[i - 1] - d) > 1e-9 * abs(d):
-                even = False
-        if even:
-            return 4.0 * y[j - 1] - 6.0 * y[j - 2] + 4.0 * y[j - 3] - y[j - 4]
+    if even and j >= 4:
+        return 4.0 * y[j - 1] - 6.0 * y[j - 2] + 4.0 * y[j - 3] - y[j - 4]
     if j >= 2:
-        return y[j - 1] + (y[j - 1] - y[j - 2]) * d / (x[j - 1] - x[j - 2])
+        return y[j - 1] + (y[j - 1] - y[j - 2]) * (x[j] - x[j - 1]) / (x[j - 1] - x[j - 2])
     return y[j - 1]
 
 
