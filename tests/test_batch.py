@@ -410,6 +410,7 @@ def test_solve_many_failed_task_fills_every_slot_of_its_chunk():
     assert "reaches 4-4" in str(out[4])
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_solve_many_process_pool_matches_in_process():
     reaches = small_reaches(30, bad={7})
     here = gv.solve_many(reaches, n_steps=20, friction_average="arithmetic")
@@ -431,6 +432,7 @@ def test_profile_pickles_whole_and_read_only():
     assert back.summary() == profile.summary()
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_solve_many_on_a_local_dask_cluster():
     distributed = pytest.importorskip("distributed")
     reaches = small_reaches(16, bad={2})

@@ -36,6 +36,7 @@ def reach_file(tmp_path_factory):
     return gv.write_reach(reach, tmp_path_factory.mktemp("reach") / "flume.json")
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_demo_prints_summary_and_caution_and_writes_files(tmp_path):
     res = gvflow("demo", "--plot", tmp_path / "demo.png", "--csv", tmp_path / "demo.csv")
     assert res.returncode == 0, res.stderr
@@ -54,6 +55,7 @@ def test_demo_prints_summary_and_caution_and_writes_files(tmp_path):
     assert "Long section written to" in out and "Station table (" in out
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_run_csv_and_plot(reach_file, tmp_path):
     out, png = tmp_path / "out.csv", tmp_path / "flume.png"
     res = gvflow("run", reach_file, "--csv", out, "--plot", png)
@@ -76,6 +78,7 @@ def test_run_options_in_process(reach_file, tmp_path, capsys):
     assert len(out.read_text().splitlines()) == coarse.x.size + 1
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_schema_prints_json_schema():
     res = gvflow("schema")
     assert res.returncode == 0, res.stderr
@@ -84,6 +87,7 @@ def test_schema_prints_json_schema():
     assert "sluice_gate" in res.stdout
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_malformed_file_exits_2_with_field_path(tmp_path):
     data = json.loads(gv.demo_reach().model_dump_json())
     data["segments"][1]["section"]["width"] = -4.0

@@ -13,6 +13,7 @@ def test_there_are_notebooks():
     assert NOTEBOOKS, "notebooks/ holds no notebook"
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=lambda p: p.name)
 def test_notebook_runs(path, tmp_path):
     nb = nbformat.read(path, as_version=4)

@@ -3,6 +3,8 @@
 import subprocess
 import sys
 
+import pytest
+
 import gvflow as gv
 
 
@@ -17,6 +19,7 @@ def test_version_is_single_sourced():
     assert version("gvflow") == gv.__version__
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_demo_runs_and_prints_caution():
     out = subprocess.run([sys.executable, "-m", "gvflow.cli", "demo"], capture_output=True, text=True,
                          check=True).stdout
