@@ -1,0 +1,235 @@
+"""Specific energy, specific force, critical and normal depth (private, compiled).
+
+Roots return ``(depth, status)``: status :data:`SOLVED`, :data:`NO_ROOT` (none
+exists: normal depth on a flat or adverse bed, or a discharge above a closed
+conduit's capacity), or :data:`NOT_CONVERGED` (the iteration did not meet its
+tolerance); the Python callers turn a status into gvflow's errors, so no
+unconverged iterate is ever used as an answer.
+
+Specific energy E = y + alpha Q²/(2 g A²) and specific force
+M = beta Q²/(g A) + A ybar (Chow, *Open-Channel Hydraulics*, 1959, ch. 3); critical
+flow where dE/dy = 0, that is alpha Q² T = g A³ for a section with constant alpha.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ._jit import kernel
+from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
+from .resistance import dlnsf_dy, friction_slope, froude_squared, velocity_coefficients
+
+SOLVED = 0
+NO_ROOT = 1
+NOT_CONVERGED = 2
+
+_RTOL = 1e-14
+
+
+@kernel
+def specific_energy(ch, fl, q, y, alpha):
+    """E = y + alpha(y) Q²/(2 g A²) [length]."""
+    a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+    al, be = velocity_coefficients(ch, fl, y, alpha)
+    return y + al * q * q / (2.0 * fl.g * a * a)
+
+
+@kernel
+def specific_force(ch, fl, q, y, alpha):
+    """M = beta(y) Q²/(g A) + A ybar [length³]."""
+    a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+    al, be = velocity_coefficients(ch, fl, y, alpha)
+    return be * q * q / (fl.g * a) + m
+
+
+@kernel
+def _subcritical_depth(ch, fl, q, alpha):
+    """A depth at which the flow is subcritical (Fr² < 1), doubling from 1 [length]; NaN if none by 2^400."""
+    hi = 1.0
+    for _ in range(400):
+        if froude_squared(ch, fl, q, hi, alpha) < 1.0:
+            return hi
+        hi *= 2.0
+    return math.nan
+
+
+@kernel
+def critical_depth_single(ch, fl, q, alpha):
+    """Critical depth of a section whose specific energy has one minimum: alpha Q² T = g A³.
+
+    Safeguarded Newton on ln(A³/T) - ln(alpha Q²/g), increasing in depth, on a
+    bracket from 0 to the crown (closed conduit) or a doubled upper bound.
+    """
+    target = math.log(alpha * q * q / fl.g)
+    ymax = max_depth(ch.kind, ch.par)
+    lo = 0.0
+    if ymax < math.inf:
+        hi = ymax * (1.0 - 1e-13)
+    else:
+        hi = _subcritical_depth(ch, fl, q, alpha)
+        if not hi < math.inf:
+            return math.nan, NO_ROOT
+    y = 0.5 * hi
+    for _ in range(200):
+        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        f = 3.0 * math.log(a) - math.log(t) - target
+        if f > 0.0:
+            hi = y
+        else:
+            lo = y
+        df = 3.0 * t / a - dt / t
+        yn = y - f / df if df > 0.0 and df < math.inf else 0.5 * (lo + hi)
+        if not (lo < yn < hi):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
+            return yn, SOLVED
+        y = yn
+    return y, NOT_CONVERGED
+
+
+@kernel
+def _dedy(ch, fl, q, y, alpha):
+    return 1.0 - froude_squared(ch, fl, q, y, alpha)
+
+
+@kernel
+def _polish(ch, fl, q, alpha, lo, hi):
+    """Root of dE/dy (negative at lo, positive at hi) by the Illinois method; (depth, status)."""
+    flo = _dedy(ch, fl, q, lo, alpha)
+    fhi = _dedy(ch, fl, q, hi, alpha)
+    side = 0
+    y = hi
+    for _ in range(200):
+        y = (lo * fhi - hi * flo) / (fhi - flo)
+        if not (lo < y < hi):
+            y = 0.5 * (lo + hi)
+        fy = _dedy(ch, fl, q, y, alpha)
+        if fy == 0.0 or hi - lo <= 4e-16 * hi:
+            return y, SOLVED
+        if fy < 0.0:
+            lo, flo = y, fy
+            if side == -1:
+                fhi *= 0.5
+            side = -1
+        else:
+            hi, fhi = y, fy
+            if side == 1:
+                flo *= 0.5
+            side = 1
+    if hi - lo <= 1e-12 * hi:
+        return 0.5 * (lo + hi), SOLVED
+    return y, NOT_CONVERGED
+
+
+@kernel
+def critical_depths(ch, fl, q, alpha, out):
+    """Every depth where the specific energy has a local minimum, ascending; returns (count, status).
+
+    Scans dE/dy on a grid that contains every breakpoint elevation and a hair on
+    either side of it (dE/dy jumps where the top width jumps), brackets each change
+    of sign from negative to positive and polishes it; a minimum at a kink (a
+    breakpoint where dE/dy jumps from negative to positive) is returned at the
+    breakpoint. ``out`` receives the depths. A section with one minimum gives one.
+    """
+    if ch.kind != SURVEYED:
+        y, status = critical_depth_single(ch, fl, q, alpha)
+        out[0] = y
+        return 1, status
+    top = _subcritical_depth(ch, fl, q, alpha)
+    if not top < math.inf:
+        return 0, NO_ROOT
+    bps = breakpoint_depths(ch.kind, ch.par)
+    top = max(top, 2.0 * bps[-1]) if bps.size > 0 else top
+    # grid: geometric below the first breakpoint, then every breakpoint with a hair either side and
+    # 16 points between neighbours
+    grid = np.empty(64 + 19 * (bps.size + 1))
+    k = 0
+    first = bps[0] if bps.size > 0 else top
+    for i in range(48):
+        grid[k] = first * 2.0 ** (-(47 - i) * 0.5)
+        k += 1
+    prev = first
+    for j in range(bps.size + 1):
+        nxt = bps[j] if j < bps.size else top
+        for i in range(1, 17):
+            grid[k] = prev + (nxt - prev) * i / 17.0
+            k += 1
+        if j < bps.size:
+            grid[k] = nxt * (1.0 - 1e-12)
+            grid[k + 1] = nxt
+            k += 2
+        prev = nxt
+    grid[k] = top
+    k += 1
+    count = 0
+    status = SOLVED
+    f_prev = _dedy(ch, fl, q, grid[0], alpha)
+    for i in range(1, k):
+        f_i = _dedy(ch, fl, q, grid[i], alpha)
+        if f_prev < 0.0 and f_i >= 0.0:
+            y, st = _polish(ch, fl, q, alpha, grid[i - 1], grid[i])
+            if st != SOLVED:
+                status = st
+            if count < out.size:
+                out[count] = y
+                count += 1
+        f_prev = f_i
+    if count == 0:
+        return 0, NOT_CONVERGED
+    return count, status
+
+
+@kernel
+def normal_depth(ch, fl, q, s0):
+    """Depth of uniform flow, Sf(y) = S0; (depth, status).
+
+    No root on a flat or adverse bed. In a closed conduit the conveyance peaks
+    below the crown (about 0.94 D for a circle, Chow 1959 ch. 6): the root is
+    sought on the lower branch, below the peak found by golden-section search,
+    and a discharge above the peak's has no root. Otherwise safeguarded Newton
+    on ln Sf(y) - ln S0, decreasing in depth.
+    """
+    if not s0 > 0.0:
+        return math.nan, NO_ROOT
+    ymax = max_depth(ch.kind, ch.par)
+    if ymax < math.inf:
+        lo_g = 0.5 * ymax
+        hi_g = ymax
+        r = (math.sqrt(5.0) - 1.0) / 2.0
+        for _ in range(80):
+            c = hi_g - r * (hi_g - lo_g)
+            e = lo_g + r * (hi_g - lo_g)
+            if friction_slope(ch, fl, q, c) < friction_slope(ch, fl, q, e):
+                hi_g = e
+            else:
+                lo_g = c
+        hi = 0.5 * (lo_g + hi_g)
+        if friction_slope(ch, fl, q, hi) > s0 * (1.0 + 1e-12):
+            return math.nan, NO_ROOT
+    else:
+        hi = 1.0
+        for _ in range(2100):
+            if friction_slope(ch, fl, q, hi) < s0:
+                break
+            hi *= 2.0
+        if not friction_slope(ch, fl, q, hi) < s0:
+            return math.nan, NO_ROOT
+    lo = 0.0
+    y = 0.5 * hi
+    lns0 = math.log(s0)
+    for _ in range(200):
+        f = math.log(friction_slope(ch, fl, q, y)) - lns0
+        if f > 0.0:
+            lo = y
+        else:
+            hi = y
+        df = dlnsf_dy(ch, fl, q, y)
+        yn = y - f / df if df < 0.0 else 0.5 * (lo + hi)
+        if not (lo < yn < hi):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
+            return yn, SOLVED
+        y = yn
+    return y, NOT_CONVERGED

@@ -1,0 +1,214 @@
+"""Flow resistance (private, compiled): conveyance, friction slope, its averages, and the
+energy and momentum coefficients of a section of several roughness zones.
+
+Every function takes a :class:`~gvflow._core.records.Channel` ``ch`` and a
+:class:`~gvflow._core.records.Fluid` ``fl``.
+
+Conveyance per zone (Chow, *Open-Channel Hydraulics*, 1959, §6-2 and §6-7):
+Manning K_i = (k/n_i) A_i^(5/3) P_i^(-2/3); Chezy K_i = C_i A_i^(3/2) P_i^(-1/2);
+Darcy-Weisbach (one zone) K = sqrt(8 g/f) A R^(1/2) with f from Colebrook-White
+(Colebrook 1939) on ks/(4R) and Re = 4 R V / nu. The section's conveyance is the
+sum over zones, K = sum K_i, and Sf = (Q/K)². Division lines between zones are
+not wetted perimeter (see :mod:`gvflow._core.geometry`).
+
+With zone conveyances the energy and momentum coefficients are
+alpha = (sum K_i³/A_i²)/(K³/A²) and beta = (sum K_i²/A_i)/(K²/A) (Chow 1959,
+§2-7 and §6-7), both 1 for one zone; and the derivative of the specific energy
+with depth, with alpha varying, is dE/dy = 1 - Fc² with the compound Froude
+number of Blalock & Sturm (1981, J. Hydraul. Div. ASCE 107(HY6); from memory):
+Fc² = Q²/(2 g K³) (sigma2 sigma3 / K - sigma1), sigma1 = sum (K_i/A_i)³ (3 T_i - 2 R_i dP_i/dy),
+sigma2 = sum (K_i/A_i)(5 T_i - 2 R_i dP_i/dy), sigma3 = sum K_i³/A_i² (Manning zones;
+the Chezy form follows from its exponents 3/2 and 1/2 in the same way).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ._jit import kernel
+from .geometry import SURVEYED, geometry, zone_count, zone_geometry
+
+MANNING = 0
+CHEZY = 1
+DARCY = 2
+
+# friction-slope averages between two stations
+AVG_ARITHMETIC = 0
+AVG_GEOMETRIC = 1
+AVG_HARMONIC = 2
+AVG_CONVEYANCE = 3
+#: Public names of the friction-slope averages; "conveyance" is the default everywhere.
+AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
+            "conveyance": AVG_CONVEYANCE}
+
+LAMINAR_LIMIT = 2000.0
+
+
+@kernel
+def colebrook(re, eps):
+    """Darcy friction factor f from Colebrook-White, 1/sqrt f = -2 log10(eps/3.7 + 2.51/(Re sqrt f)).
+
+    Newton's method on x = 1/sqrt(f) from the Swamee-Jain (1976) estimate, to 1e-13
+    relative. Below Re = 2000 the pipe's laminar value 64/Re (open channels run
+    about 50 % higher, so laminar results are approximate). Returns NaN if the
+    iteration does not converge in 50 steps (it converges in 3-6 for any Re > 2000
+    and eps >= 0); callers turn that into an error.
+    """
+    if re < LAMINAR_LIMIT:
+        return 64.0 / max(re, 1e-300)
+    a = eps / 3.7
+    b = 2.51 / re
+    x = -2.0 * math.log10(a + 5.74 / re ** 0.9)
+    for _ in range(50):
+        inner = a + b * x
+        gx = x + 2.0 * math.log10(inner)
+        step = gx / (1.0 + 2.0 * b / (inner * math.log(10.0)))
+        x -= step
+        if abs(step) <= 1e-13 * abs(x):
+            return 1.0 / (x * x)
+    return math.nan
+
+
+@kernel
+def _zone_k(law, c, k, a, p):
+    """Conveyance of one zone of area a and wetted perimeter p (Manning or Chezy); 0 if dry."""
+    if a <= 0.0 or p <= 0.0:
+        return 0.0
+    if law == MANNING:
+        return k / c * a * (a / p) ** (2.0 / 3.0)
+    return c * a * math.sqrt(a / p)
+
+
+@kernel
+def _exponents(law):
+    """(a, b) of K_i proportional to A_i^a P_i^-b: Manning (5/3, 2/3), Chezy and Darcy (3/2, 1/2)."""
+    if law == MANNING:
+        return 5.0 / 3.0, 2.0 / 3.0
+    return 1.5, 0.5
+
+
+@kernel
+def conveyance(ch, fl, q, y):
+    """Conveyance K [length³/s] at depth y, so that Q = K sqrt(Sf); ``q`` matters only for Darcy."""
+    if ch.law == DARCY:
+        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        r = a / p
+        f = colebrook(4.0 * r * abs(q) / (a * fl.nu), ch.rough[0] / (4.0 * r))
+        return math.sqrt(8.0 * fl.g / f) * a * math.sqrt(r)
+    if ch.kind != SURVEYED:
+        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        return _zone_k(ch.law, ch.rough[0], fl.k, a, p)
+    kk = 0.0
+    for i in range(zone_count(ch.kind, ch.par)):
+        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
+        kk += _zone_k(ch.law, ch.rough[i], fl.k, a, p)
+    return kk
+
+
+@kernel
+def friction_slope(ch, fl, q, y):
+    """Friction slope Sf = (Q/K)² [-] of discharge q at depth y."""
+    kk = conveyance(ch, fl, q, y)
+    return (q / kk) * (q / kk)
+
+
+@kernel
+def dlnsf_dy(ch, fl, q, y):
+    """d ln(Sf)/dy at fixed discharge, -2 dK/dy / K (Darcy: friction factor held fixed)."""
+    ea, eb = _exponents(ch.law)
+    if ch.kind != SURVEYED or ch.law == DARCY:
+        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        return -2.0 * (ea * t / a - eb * dp / p)
+    kk = 0.0
+    dk = 0.0
+    for i in range(zone_count(ch.kind, ch.par)):
+        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
+        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
+        if ki > 0.0:
+            kk += ki
+            dk += ki * (ea * t / a - eb * dp / p)
+    return -2.0 * dk / kk
+
+
+@kernel
+def sf_average(avg, s1, s2):
+    """Mean friction slope over a step and its derivative with respect to s2.
+
+    Arithmetic (s1 + s2)/2, geometric sqrt(s1 s2), harmonic 2 s1 s2/(s1 + s2), and
+    average conveyance 4/(1/sqrt s1 + 1/sqrt s2)² (the friction slope of the mean
+    conveyance); for any two positive slopes harmonic <= conveyance <= geometric
+    <= arithmetic.
+    """
+    if avg == AVG_ARITHMETIC:
+        return 0.5 * (s1 + s2), 0.5
+    if avg == AVG_GEOMETRIC:
+        m = math.sqrt(s1 * s2)
+        return m, 0.5 * m / s2
+    if avg == AVG_HARMONIC:
+        return 2.0 * s1 * s2 / (s1 + s2), 2.0 * s1 * s1 / ((s1 + s2) * (s1 + s2))
+    a1 = 1.0 / math.sqrt(s1)
+    a2 = 1.0 / math.sqrt(s2)
+    den = a1 + a2
+    return 4.0 / (den * den), 4.0 * a2 * a2 * a2 / (den * den * den)
+
+
+@kernel
+def velocity_coefficients(ch, fl, y, alpha):
+    """Energy and momentum coefficients (alpha, beta) at depth y.
+
+    A surveyed section's own coefficients from its zone conveyances (1 and 1 for
+    one zone); a geometric section takes the given ``alpha`` and beta = 1.
+    """
+    if ch.kind != SURVEYED:
+        return alpha, 1.0
+    nz = zone_count(ch.kind, ch.par)
+    if nz == 1:
+        return 1.0, 1.0
+    a_tot = 0.0
+    kk = 0.0
+    s3 = 0.0
+    s2 = 0.0
+    for i in range(nz):
+        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
+        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
+        if ki > 0.0:
+            a_tot += a
+            kk += ki
+            s3 += ki * ki * ki / (a * a)
+            s2 += ki * ki / a
+    if kk <= 0.0:
+        return 1.0, 1.0
+    return s3 * a_tot * a_tot / (kk * kk * kk), s2 * a_tot / (kk * kk)
+
+
+@kernel
+def froude_squared(ch, fl, q, y, alpha):
+    """Square of the Froude number that decides the regime: 1 - dE/dy at depth y.
+
+    One zone: alpha Q² T/(g A³). Several zones: the compound Froude number
+    (module notes), exactly 1 where the specific energy with depth-varying alpha
+    is stationary.
+    """
+    if ch.kind != SURVEYED or zone_count(ch.kind, ch.par) == 1:
+        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        al, be = velocity_coefficients(ch, fl, y, alpha)
+        return al * q * q * t / (fl.g * a * a * a)
+    ea, eb = _exponents(ch.law)
+    kk = 0.0
+    sig1 = 0.0
+    sig2 = 0.0
+    sig3 = 0.0
+    for i in range(zone_count(ch.kind, ch.par)):
+        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
+        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
+        if ki <= 0.0:
+            continue
+        kk += ki
+        # dK_i/dy = K_i (ea T_i/A_i - eb P_i'/P_i); d(K_i³/A_i²)/dy = K_i³/A_i² (3 dK_i/K_i - 2 T_i/A_i)
+        g_i = ea * t / a - eb * dp / p
+        c3 = ki * ki * ki / (a * a)
+        sig3 += c3
+        sig2 += ki * g_i
+        sig1 += c3 * (3.0 * g_i - 2.0 * t / a)
+    # dE/dy = 1 + Q²/(2g) d(sigma3/K³)/dy = 1 + Q²/(2g K³) (sigma1 - 3 sigma3 sigma2 / K)
+    return -q * q / (2.0 * fl.g * kk * kk * kk) * (sig1 - 3.0 * sig3 * sig2 / kk)
