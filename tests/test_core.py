@@ -56,7 +56,7 @@ def test_shallow_circle_first_moment_against_quadrature():
 
     d = 1.0
     for y in (1e-8, 1e-6, 1e-4, 0.04, 0.06, 0.5, 0.99):
-        ref = quad(lambda e: (y - e) * 2.0 * math.sqrt(e * (d - e)), 0.0, y, epsrel=1e-13, epsabs=0)[0]
+        ref = quad(lambda e, y=y: (y - e) * 2.0 * math.sqrt(e * (d - e)), 0.0, y, epsrel=1e-13, epsabs=0)[0]
         assert G.geometry(G.CIRCLE, np.array([d]), y)[3] == pytest.approx(ref, rel=1e-11)
 
 
@@ -64,10 +64,10 @@ def _shapely_props(x, z, y, lo=-np.inf, hi=np.inf):
     """Area, top width, wetted ground length of the section below level y within lo <= x <= hi (shapely)."""
     z = np.asarray(z, float) - min(z)
     top = max(max(z), y) + 1.0
-    ground = Polygon([(x[0], top), *zip(x, z), (x[-1], top)])
+    ground = Polygon([(x[0], top), *zip(x, z, strict=True), (x[-1], top)])
     window = box(max(lo, x[0] - 1), -1.0, min(hi, x[-1] + 1), y)
     water = ground.intersection(window)
-    line = LineString(list(zip(x, z))).intersection(box(max(lo, x[0] - 1), -1.0, min(hi, x[-1] + 1), y))
+    line = LineString(list(zip(x, z, strict=True))).intersection(box(max(lo, x[0] - 1), -1.0, min(hi, x[-1] + 1), y))
     surface = LineString([(x[0], y), (x[-1], y)]).intersection(ground.intersection(
         box(max(lo, x[0] - 1), -1.0, min(hi, x[-1] + 1), y + 1.0)))
     return water.area, surface.length, line.length
@@ -214,7 +214,7 @@ def test_one_zone_coefficients_are_one_and_lotter_n_reproduces_subdivided_convey
     zones = [G.zone_geometry(G.SURVEYED, COMPOUND, y, i) for i in range(3)]
     a = sum(z[0] for z in zones)
     p = sum(z[1] for z in zones)
-    ne = p * (a / p) ** (5 / 3) / sum(z[1] * (z[0] / z[1]) ** (5 / 3) / ni for z, ni in zip(zones, n))
+    ne = p * (a / p) ** (5 / 3) / sum(z[1] * (z[0] / z[1]) ** (5 / 3) / ni for z, ni in zip(zones, n, strict=True))
     assert R.conveyance(ch, SI, 1.0, y) == pytest.approx(1.0 / ne * a * (a / p) ** (2 / 3), rel=1e-13)
 
 
