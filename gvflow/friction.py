@@ -23,6 +23,8 @@ from typing import Annotated, ClassVar, Literal
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
+from ._core.records import Channel, channel, fluid
+from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array
 from .errors import ConvergenceError, InvalidInputError
 from .units import UnitsLike, resolve_units
@@ -179,13 +181,14 @@ def as_roughness(roughness) -> Manning | Chezy | DarcyWeisbach:
     )
 
 
-def colebrook_friction_factor(reynolds, relative_roughness, *, tol: float = 1e-12, max_iter: int = 50):
+def colebrook_friction_factor(reynolds, relative_roughness):
     """Darcy friction factor f from the Colebrook-White equation.
 
     Solves 1/sqrt(f) = -2 log10(eps/3.7 + 2.51/(Re sqrt(f))) by Newton's method
-    on x = 1/sqrt(f), starting from the Swamee-Jain explicit estimate. Below
-    Re = 2000 the laminar value f = 64/Re is returned (the pipe's; open
-    channels run about 50 % higher, so laminar results are approximate).
+    on x = 1/sqrt(f), starting from the Swamee-Jain explicit estimate, to 1e-13
+    relative. Below Re = 2000 the laminar value f = 64/Re is returned (the
+    pipe's; open channels run about 50 % higher, so laminar results are
+    approximate). The relation itself lives in :func:`gvflow._core.resistance.colebrook`.
 
     Parameters
     ----------
@@ -198,6 +201,11 @@ def colebrook_friction_factor(reynolds, relative_roughness, *, tol: float = 1e-1
     -------
     float or ndarray
         Friction factor f [-].
+
+    Raises
+    ------
+    ConvergenceError
+        If the iteration does not converge (it converges in a few steps for any valid input).
 
     References
     ----------
@@ -213,41 +221,37 @@ def colebrook_friction_factor(reynolds, relative_roughness, *, tol: float = 1e-1
     re = positive_array(reynolds, "reynolds")
     eps = positive_array(relative_roughness, "relative_roughness", allow_zero=True)
     re, eps = np.broadcast_arrays(re, eps)
-    a = eps / 3.7
-    b = 2.51 / np.maximum(re, 1.0)
-    # Swamee-Jain start, then Newton on g(x) = x + 2 log10(a + b x).
-    x = -2.0 * np.log10(a + 5.74 / np.maximum(re, 1.0) ** 0.9)
-    ln10 = math.log(10.0)
-    for _ in range(max_iter):
-        inner = a + b * x
-        g = x + 2.0 * np.log10(inner)
-        dg = 1.0 + 2.0 * b / (inner * ln10)
-        step = g / dg
-        x = x - step
-        if np.all(np.abs(step) <= tol * np.abs(x)):
-            break
-    else:
-        raise ConvergenceError("Colebrook-White iteration did not converge", iterations=max_iter,
-                               residual=float(np.max(np.abs(step))), last=float(np.ravel(x)[0]))
-    f = 1.0 / (x * x)
-    f = np.where(re < 2000.0, 64.0 / re, f)
-    return scalar_or_array(f)
+    out = np.empty(re.size)
+    core("arrays", re.size).colebrook_many(np.ascontiguousarray(re.reshape(-1)),
+                                           np.ascontiguousarray(eps.reshape(-1)), out)
+    if not np.all(np.isfinite(out)):
+        raise ConvergenceError("Colebrook-White iteration did not converge", iterations=50)
+    return scalar_or_array(out.reshape(re.shape))
 
 
 def _kfactor(section, depth, roughness, units, discharge):
-    """Conveyance K with Q = K sqrt(Sf), on validated arrays."""
-    a, p = section._geometry(depth)[:2]
-    r = a / p
-    if isinstance(roughness, Manning):
-        return units.manning_k / roughness.n * a * r ** (2.0 / 3.0)
-    if isinstance(roughness, Chezy):
-        return roughness.C * a * np.sqrt(r)
-    if discharge is None:
+    """Conveyance K with Q = K sqrt(Sf), on validated arrays, from the physics core."""
+    if isinstance(roughness, DarcyWeisbach) and discharge is None:
         raise InvalidInputError("Darcy-Weisbach conveyance depends on the discharge; pass discharge=")
-    v = discharge / a
-    re = 4.0 * r * np.abs(v) / units.kinematic_viscosity
-    f = np.asarray(colebrook_friction_factor(np.maximum(re, 1e-300), roughness.roughness_height / (4.0 * r)))
-    return np.sqrt(8.0 * units.g / f) * a * np.sqrt(r)
+    y, q = np.broadcast_arrays(np.asarray(depth, dtype=float), 1.0 if discharge is None else discharge)
+    flat_y = np.ascontiguousarray(y.reshape(-1))
+    out = np.empty(flat_y.size)
+    core("arrays", flat_y.size).conveyance_many(core_channel(section, roughness), fluid(units),
+                                                np.ascontiguousarray(q.reshape(-1), dtype=float), flat_y, out)
+    if not np.all(np.isfinite(out)):
+        raise ConvergenceError("Colebrook-White iteration did not converge", iterations=50)
+    return out.reshape(y.shape)
+
+
+def core_channel(section, roughness=None) -> Channel:
+    """The :class:`~gvflow._core.records.Channel` record of a section with its roughness.
+
+    Without a roughness (for relations that do not depend on it: critical flow, specific
+    energy and force) the record carries a placeholder Manning's n of 1.
+    """
+    kind, par = section.core_params()
+    law, value = (KIND_MANNING, 1.0) if roughness is None else roughness.kernel_spec()
+    return channel(kind, par, law, value)
 
 
 def conveyance(section, depth, roughness, units: UnitsLike = "SI", discharge=None):

@@ -23,6 +23,8 @@ from typing import Annotated, ClassVar, Literal
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
+from ._core.geometry import CIRCLE, PARABOLA, TRAPEZOID, WIDE
+from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array
 from .errors import InvalidInputError
 
@@ -40,12 +42,6 @@ __all__ = [
 _Dim = Annotated[float, Field(gt=0, allow_inf_nan=False)]
 _Slope = Annotated[float, Field(ge=0, allow_inf_nan=False)]
 
-# Codes read by the compiled marching kernels (gvflow.profiles._kernel).
-KIND_TRAPEZOID = 0
-KIND_WIDE = 1
-KIND_CIRCLE = 2
-KIND_PARABOLA = 3
-
 
 class Section(BaseModel):
     """Base class of prismatic cross-sections. Subclasses supply ``_geometry``."""
@@ -61,14 +57,25 @@ class Section(BaseModel):
         except ValidationError as exc:
             raise invalid_input_from(exc, type(self).__name__) from None
 
-    # -- subclass hooks -------------------------------------------------
-    def _geometry(self, y: np.ndarray):  # pragma: no cover - abstract
-        """Return (A, P, T, A*ybar, dT/dy, dP/dy) for valid depths ``y``."""
+    # -- subclass hook --------------------------------------------------
+    def core_params(self) -> tuple[int, np.ndarray]:  # pragma: no cover - abstract
+        """(kind code, parameter array) describing this shape to the physics core (:mod:`gvflow._core.geometry`)."""
         raise NotImplementedError
 
-    def kernel_spec(self) -> tuple[int, float, float, float]:  # pragma: no cover - abstract
-        """(kind code, p0, p1, p2) describing this shape to the compiled kernels."""
-        raise NotImplementedError
+    def kernel_spec(self) -> tuple[int, float, float, float]:
+        """(kind code, p0, p1, p2) of the shape for the marching kernels (the parameters padded to three)."""
+        kind, par = self.core_params()
+        p = [float(v) for v in par[:3]] + [0.0] * (3 - min(par.size, 3))
+        return (kind, p[0], p[1], p[2])
+
+    def _geometry(self, y):
+        """(A, P, T, A*ybar, dT/dy, dP/dy) at valid depths ``y`` (arrays of y's shape), from the core."""
+        y = np.asarray(y, dtype=float)
+        kind, par = self.core_params()
+        flat = np.ascontiguousarray(y.reshape(-1))
+        out = np.empty((6, flat.size))
+        core("arrays", flat.size).geometry_many(kind, par, flat, out)
+        return tuple(row.reshape(y.shape) for row in out)
 
     @property
     def max_depth(self) -> float:
@@ -150,19 +157,9 @@ class _TrapezoidLike(Section):
     def _bz(self) -> tuple[float, float, float]:
         raise NotImplementedError  # pragma: no cover
 
-    def _geometry(self, y):
+    def core_params(self):
         b, zl, zr = self._bz()
-        zs = zl + zr
-        sides = math.sqrt(1 + zl * zl) + math.sqrt(1 + zr * zr)
-        a = (b + 0.5 * zs * y) * y
-        p = b + sides * y
-        t = b + zs * y
-        m = 0.5 * b * y * y + zs * y ** 3 / 6.0
-        return a, p, t, m, np.full_like(y, zs), np.full_like(y, sides)
-
-    def kernel_spec(self):
-        b, zl, zr = self._bz()
-        return (KIND_TRAPEZOID, b, zl, zr)
+        return TRAPEZOID, np.array([b, zl, zr])
 
 
 class Rectangular(_TrapezoidLike):
@@ -264,45 +261,8 @@ class WideRectangular(_TrapezoidLike):
     shape: Literal["wide"] = "wide"
     width: _Dim
 
-    def _geometry(self, y):
-        b = self.width
-        return b * y, np.full_like(y, b), np.full_like(y, b), 0.5 * b * y * y, \
-            np.zeros_like(y), np.zeros_like(y)
-
-    def kernel_spec(self):
-        return (KIND_WIDE, self.width, 0.0, 0.0)
-
-
-def _theta_minus_sin(theta):
-    """theta - sin(theta) without cancellation at small angles (Taylor series below 0.25 rad)."""
-    t2 = theta * theta
-    series = theta * t2 / 6.0 * (1.0 - t2 / 20.0 * (1.0 - t2 / 42.0 * (1.0 - t2 / 72.0 * (
-        1.0 - t2 / 110.0 * (1.0 - t2 / 156.0)))))
-    return np.where(theta < 0.25, series, theta - np.sin(theta))
-
-
-def _binomial_moment_weights(n=16):
-    # w_k = c_k * 2/((2k+3)(2k+5)), c_k the coefficients of sqrt(1 - x) = sum c_k x^k
-    c, out = 1.0, []
-    for k in range(n):
-        out.append(c * 2.0 / ((2 * k + 3) * (2 * k + 5)))
-        c *= (k - 0.5) / (k + 1)
-    return tuple(out)
-
-
-_MOMENT_WEIGHTS = _binomial_moment_weights()
-
-
-def _circle_moment_series(y, d, s):
-    """First moment of a shallow circular segment without cancellation (y/D small).
-
-    A ybar = int_0^y (y - eta) 2 sqrt(eta (D - eta)) d eta; with eta = y u² this is
-    4 sqrt(D) y^(5/2) int_0^1 (1 - u²) u² sqrt(1 - s u²) du, s = y/D, summed term by term.
-    """
-    acc = np.zeros_like(s)
-    for w in reversed(_MOMENT_WEIGHTS):
-        acc = acc * s + w
-    return 4.0 * math.sqrt(d) * y * y * np.sqrt(y) * acc
+    def core_params(self):
+        return WIDE, np.array([self.width])
 
 
 class Circular(Section):
@@ -336,28 +296,8 @@ class Circular(Section):
     def max_depth(self) -> float:
         return self.diameter
 
-    def _geometry(self, y):
-        d = self.diameter
-        # theta = 2 arccos(1 - 2y/D) = 4 arcsin(sqrt(y/D)); the arcsin forms, taken from the
-        # nearer of invert and crown, keep full relative precision at very small depths and
-        # near the crown, where arccos loses digits.
-        s = np.clip(y / d, 0.0, 1.0)
-        theta = np.where(s <= 0.5, 4.0 * np.arcsin(np.sqrt(s)),
-                         2.0 * np.pi - 4.0 * np.arcsin(np.sqrt(1.0 - s)))
-        half = 0.5 * theta
-        a = d * d * _theta_minus_sin(theta) / 8.0
-        p = d * half
-        # T = D sin(theta/2) = 2 sqrt(y (D - y)): exactly zero at the crown
-        root = np.sqrt(np.maximum(y * (d - y), 0.0))
-        t = 2.0 * root
-        m = np.where(s < 0.05, _circle_moment_series(y, d, s), a * (y - 0.5 * d) + t ** 3 / 12.0)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            dt = np.where(root > 0, (d - 2.0 * y) / np.where(root > 0, root, 1.0), -np.inf)
-            dp = np.where(root > 0, d / np.where(root > 0, root, 1.0), np.inf)
-        return a, p, t, m, dt, dp
-
-    def kernel_spec(self):
-        return (KIND_CIRCLE, self.diameter, 0.0, 0.0)
+    def core_params(self):
+        return CIRCLE, np.array([self.diameter])
 
 
 class Parabolic(Section):
@@ -392,20 +332,8 @@ class Parabolic(Section):
     def _c(self) -> float:
         return self.top_width_at_reference / math.sqrt(self.reference_depth)
 
-    def _geometry(self, y):
-        c = self._c()
-        s = np.sqrt(y)
-        t = c * s
-        a = 2.0 / 3.0 * t * y
-        u = 4.0 * y / t
-        p = 0.5 * t * (np.sqrt(1 + u * u) + np.arcsinh(u) / u)
-        m = 4.0 / 15.0 * c * y * y * s
-        dt = 0.5 * c / s
-        dp = 0.5 * c * np.sqrt(1 + 16.0 * y / (c * c)) / s
-        return a, p, t, m, dt, dp
-
-    def kernel_spec(self):
-        return (KIND_PARABOLA, self._c(), 0.0, 0.0)
+    def core_params(self):
+        return PARABOLA, np.array([self._c()])
 
 
 AnySection = Annotated[

@@ -12,10 +12,13 @@ from typing import Literal
 
 import numpy as np
 
+from ._core.flow import NO_ROOT, NOT_CONVERGED
+from ._core.records import fluid
+from ._engine import core
 from ._roots import bracketed_root, expand_upper
 from ._validate import finite_array, positive_array, scalar_or_array
-from .errors import InvalidInputError, NoSolutionError
-from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, as_roughness
+from .errors import ConvergenceError, InvalidInputError, NoSolutionError
+from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, as_roughness, core_channel
 from .units import UnitsLike, resolve_units
 
 __all__ = [
@@ -62,29 +65,26 @@ def _shrink_lower(fun, lo, *, what: str, increasing: bool = True):
                           "check the units and magnitude of the discharge")
 
 
+def _flat(*arrays):
+    """Broadcast arrays to one shape and return it with contiguous flat float copies."""
+    b = np.broadcast_arrays(*arrays)
+    return b[0].shape, [np.ascontiguousarray(a.reshape(-1), dtype=float) for a in b]
+
+
 def _peak_conveyance_depth(section, rough, units, q):
-    """Depth of largest conveyance in a closed conduit (golden-section search)."""
-    d = section.max_depth
-    lo = np.full(np.shape(q), 0.5 * d)
-    hi = np.full(np.shape(q), d)
-    invphi = (math.sqrt(5) - 1) / 2
+    """Depth and conveyance of a closed conduit's largest conveyance, for each discharge."""
+    shape, (qf,) = _flat(np.asarray(q, dtype=float))
+    depth, k = np.empty(qf.size), np.empty(qf.size)
+    core("arrays", 100 * qf.size).peak_conveyance_many(core_channel(section, rough), fluid(units), qf, depth, k)
+    return depth.reshape(shape), k.reshape(shape)
 
-    def lnk(y):
-        return np.log(_kfactor(section, y, rough, units, q))
 
-    c = hi - invphi * (hi - lo)
-    e = lo + invphi * (hi - lo)
-    fc, fe = lnk(c), lnk(e)
-    for _ in range(80):
-        left = fc > fe
-        hi = np.where(left, e, hi)
-        lo = np.where(left, lo, c)
-        c_new = hi - invphi * (hi - lo)
-        e_new = lo + invphi * (hi - lo)
-        c, e = np.where(left, c_new, e), np.where(left, c, e_new)
-        fc, fe = np.where(left, lnk(c_new), fe), np.where(left, fc, lnk(e_new))
-    y = 0.5 * (lo + hi)
-    return y, _kfactor(section, y, rough, units, q)
+def _check_status(status, values, what: str, inputs: str):
+    """Raise ConvergenceError where a core root did not converge."""
+    bad = status == NOT_CONVERGED
+    if np.any(bad):
+        i = int(np.flatnonzero(bad)[0])
+        raise ConvergenceError(f"{what} did not converge for {inputs}", iterations=200, last=float(values[i]))
 
 
 def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
@@ -136,29 +136,25 @@ def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
             f"normal depth does not exist on {kind} bed (slope={float(np.min(s)):g}); uniform flow "
             "needs a bed falling downstream (slope > 0)"
         )
-    q, s = np.broadcast_arrays(q, s)
-    target = np.log(q / np.sqrt(s))
-
-    def fun(y):
-        return np.log(_kfactor(section, y, rough, u, q)) - target
-
-    if section.closed:
-        y_peak, k_peak = _peak_conveyance_depth(section, rough, u, q)
-        over = q > k_peak * np.sqrt(s) * (1 + 1e-12)
-        if np.any(over):
-            i = np.flatnonzero(over.ravel())[0]
-            cap = float((k_peak * np.sqrt(s)).ravel()[i])
-            raise NoSolutionError(
-                f"discharge {float(q.ravel()[i]):g} exceeds the uniform-flow capacity {cap:.6g} of "
-                f"{section!r} at slope {float(s.ravel()[i]):g}: the conduit would surcharge; use a larger "
-                "conduit or a steeper slope"
-            )
-        hi = y_peak
-    else:
-        hi = expand_upper(fun, None, np.ones(q.shape), what="normal depth")
-    lo = _shrink_lower(fun, np.full(q.shape, _TINY) * np.maximum(hi, 1.0), what="normal depth")
-    y = bracketed_root(fun, lo, hi, what="normal depth")
-    return scalar_or_array(y)
+    shape, (qf, sf) = _flat(q, s)
+    ch = core_channel(section, rough)
+    out, status = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64)
+    core("arrays", 100 * qf.size).normal_depth_many(ch, fluid(u), qf, sf, out, status)
+    none = status == NO_ROOT
+    if np.any(none):
+        i = int(np.flatnonzero(none)[0])
+        if not section.closed:
+            raise NoSolutionError(f"discharge {qf[i]:g} is too large for any depth of {section!r} at slope "
+                                  f"{sf[i]:g}; check the units and magnitude of the discharge")
+        k_peak = _peak_conveyance_depth(section, rough, u, qf[i:i + 1])[1][0]
+        cap = float(k_peak * math.sqrt(sf[i]))
+        raise NoSolutionError(
+            f"discharge {qf[i]:g} exceeds the uniform-flow capacity {cap:.6g} of "
+            f"{section!r} at slope {sf[i]:g}: the conduit would surcharge; use a larger "
+            "conduit or a steeper slope"
+        )
+    _check_status(status, out, "normal depth", f"{section!r}")
+    return scalar_or_array(out.reshape(shape))
 
 
 def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1.0):
@@ -186,24 +182,22 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
     u = resolve_units(units)
     q = positive_array(discharge, "discharge")
     a_ = float(positive_array(alpha, "alpha"))
-    target = math.log(a_ / u.g) + 2.0 * np.log(q)  # log form: no underflow of q² for tiny q
-
-    def fun(y):
-        a, _, t = section._geometry(y)[:3]
-        return 3.0 * np.log(a) - np.log(t) - target
-
-    if section.closed:
-        hi = np.full(q.shape, section.max_depth * (1 - 1e-13))
-        short = np.asarray(fun(hi)) < 0
-        if np.any(short):
+    shape, (qf,) = _flat(q)
+    out, status = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64)
+    ch = core_channel(section)  # critical flow does not depend on the roughness
+    core("arrays", 100 * qf.size).critical_depth_many(ch, fluid(u), qf, a_, out, status)
+    none = status == NO_ROOT
+    if np.any(none):
+        i = int(np.flatnonzero(none)[0])
+        if section.closed:
             raise NoSolutionError(
-                f"discharge {float(q[short].flat[0]):g} is too large for free-surface flow in {section!r}: "
+                f"discharge {qf[i]:g} is too large for free-surface flow in {section!r}: "
                 "its critical depth would be at the crown (the conduit flows full); use a larger conduit"
             )
-    else:
-        hi = expand_upper(fun, None, np.ones(q.shape), what="critical depth")
-    lo = _shrink_lower(fun, np.full(q.shape, _TINY) * np.maximum(hi, 1.0), what="critical depth")
-    return scalar_or_array(bracketed_root(fun, lo, hi, what="critical depth"))
+        raise NoSolutionError(f"no critical depth found for discharge {qf[i]:g} in {section!r}; check the "
+                              "units and magnitude of the discharge")
+    _check_status(status, out, "critical depth", f"{section!r}")
+    return scalar_or_array(out.reshape(shape))
 
 
 def critical_slope(section, discharge, roughness, units: UnitsLike = "SI", alpha: float = 1.0):
@@ -240,10 +234,17 @@ def froude_number(section, discharge, depth, units: UnitsLike = "SI"):
     >>> round(gv.froude_number(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0)), 12)
     1.0
     """
+    return _station_values(section, discharge, depth, units, 1.0, "froude_many")
+
+
+def _station_values(section, discharge, depth, units, alpha, loop):
+    """One core relation of (discharge, depth) evaluated over broadcast arrays."""
     u = resolve_units(units)
     q, y = _qy(section, discharge, depth)
-    a, _, t = section._geometry(y)[:3]
-    return scalar_or_array(q / a * np.sqrt(t / (u.g * a)))
+    shape, (qf, yf) = _flat(q, y)
+    out = np.empty(qf.size)
+    getattr(core("arrays", qf.size), loop)(core_channel(section), fluid(u), qf, yf, alpha, out)
+    return scalar_or_array(out.reshape(shape))
 
 
 def specific_energy(section, discharge, depth, units: UnitsLike = "SI", alpha: float = 1.0):
@@ -255,11 +256,8 @@ def specific_energy(section, discharge, depth, units: UnitsLike = "SI", alpha: f
     >>> round(gv.specific_energy(gv.Rectangular(width=1.0), 1.0, 0.5, units=gv.Units(g=10.0, manning_k=1.0)), 6)
     0.7
     """
-    u = resolve_units(units)
     alpha = float(positive_array(alpha, "alpha"))
-    q, y = _qy(section, discharge, depth)
-    a = section._geometry(y)[0]
-    return scalar_or_array(y + alpha * q * q / (2.0 * u.g * a * a))
+    return _station_values(section, discharge, depth, units, alpha, "energy_many")
 
 
 def specific_force(section, discharge, depth, units: UnitsLike = "SI"):
@@ -274,10 +272,7 @@ def specific_force(section, discharge, depth, units: UnitsLike = "SI"):
     >>> gv.specific_force(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0))
     1.5
     """
-    u = resolve_units(units)
-    q, y = _qy(section, discharge, depth)
-    g = section._geometry(y)
-    return scalar_or_array(q * q / (u.g * g[0]) + g[3])
+    return _station_values(section, discharge, depth, units, 1.0, "force_many")
 
 
 def _other_branch(section, q, y, units, value_fn, name, alpha=1.0):

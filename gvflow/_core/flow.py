@@ -19,7 +19,7 @@ import numpy as np
 
 from ._jit import kernel
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
-from .resistance import dlnsf_dy, friction_slope, froude_squared, velocity_coefficients
+from .resistance import conveyance, dlnsf_dy, friction_slope, froude_squared, velocity_coefficients
 
 SOLVED = 0
 NO_ROOT = 1
@@ -67,6 +67,9 @@ def critical_depth_single(ch, fl, q, alpha):
     lo = 0.0
     if ymax < math.inf:
         hi = ymax * (1.0 - 1e-13)
+        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, hi)
+        if 3.0 * math.log(a) - math.log(t) < target:
+            return hi, NO_ROOT  # the conduit would flow full before the flow became critical
     else:
         hi = _subcritical_depth(ch, fl, q, alpha)
         if not hi < math.inf:
@@ -182,6 +185,29 @@ def critical_depths(ch, fl, q, alpha, out):
 
 
 @kernel
+def peak_conveyance(ch, fl, q):
+    """(depth, conveyance) of a closed conduit's largest conveyance, by golden-section search.
+
+    Between half full and the crown the conveyance of a circle has one maximum
+    (about 0.938 D with constant Manning n; Chow 1959 ch. 6); the search narrows the
+    bracket 80 times by the golden ratio, far below the depth's round-off.
+    """
+    ymax = max_depth(ch.kind, ch.par)
+    lo = 0.5 * ymax
+    hi = ymax
+    r = (math.sqrt(5.0) - 1.0) / 2.0
+    for _ in range(80):
+        c = hi - r * (hi - lo)
+        e = lo + r * (hi - lo)
+        if conveyance(ch, fl, q, c) > conveyance(ch, fl, q, e):
+            hi = e
+        else:
+            lo = c
+    y = 0.5 * (lo + hi)
+    return y, conveyance(ch, fl, q, y)
+
+
+@kernel
 def normal_depth(ch, fl, q, s0):
     """Depth of uniform flow, Sf(y) = S0; (depth, status).
 
@@ -193,19 +219,8 @@ def normal_depth(ch, fl, q, s0):
     """
     if not s0 > 0.0:
         return math.nan, NO_ROOT
-    ymax = max_depth(ch.kind, ch.par)
-    if ymax < math.inf:
-        lo_g = 0.5 * ymax
-        hi_g = ymax
-        r = (math.sqrt(5.0) - 1.0) / 2.0
-        for _ in range(80):
-            c = hi_g - r * (hi_g - lo_g)
-            e = lo_g + r * (hi_g - lo_g)
-            if friction_slope(ch, fl, q, c) < friction_slope(ch, fl, q, e):
-                hi_g = e
-            else:
-                lo_g = c
-        hi = 0.5 * (lo_g + hi_g)
+    if max_depth(ch.kind, ch.par) < math.inf:
+        hi, k_peak = peak_conveyance(ch, fl, q)
         if friction_slope(ch, fl, q, hi) > s0 * (1.0 + 1e-12):
             return math.nan, NO_ROOT
     else:

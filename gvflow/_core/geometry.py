@@ -283,16 +283,3 @@ def pack_surveyed(offset, elevation, zone_edges=()) -> np.ndarray:
     edges = np.asarray(zone_edges, dtype=float).reshape(-1)
     bounds = np.concatenate(([x[0]], edges, [x[-1]]))
     return np.concatenate(([x.size, bounds.size - 1], x, z, bounds)).astype(float)
-
-
-@kernel
-def geometry_many(kind, par, y, out):
-    """Fill ``out[:, j]`` with the six properties of :func:`geometry` at every depth of ``y``."""
-    for j in range(y.size):
-        a, p, t, m, dt, dp = geometry(kind, par, y[j])
-        out[0, j] = a
-        out[1, j] = p
-        out[2, j] = t
-        out[3, j] = m
-        out[4, j] = dt
-        out[5, j] = dp

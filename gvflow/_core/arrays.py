@@ -1,0 +1,75 @@
+"""Loops of the core's scalar relations over flat arrays, for the public array functions (private).
+
+Each takes inputs already broadcast to one flat shape and fills ``out`` (and
+``status`` for roots, see :mod:`gvflow._core.flow`).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ._jit import kernel
+from .flow import critical_depth_single, normal_depth, peak_conveyance, specific_energy, specific_force
+from .geometry import geometry
+from .resistance import colebrook, conveyance, froude_squared
+
+
+@kernel
+def geometry_many(kind, par, y, out):
+    """``out[:, j]`` = (A, P, T, M, dT/dy, dP/dy) at depth ``y[j]``."""
+    for j in range(y.size):
+        a, p, t, m, dt, dp = geometry(kind, par, y[j])
+        out[0, j] = a
+        out[1, j] = p
+        out[2, j] = t
+        out[3, j] = m
+        out[4, j] = dt
+        out[5, j] = dp
+
+
+@kernel
+def conveyance_many(ch, fl, q, y, out):
+    for j in range(y.size):
+        out[j] = conveyance(ch, fl, q[j], y[j])
+
+
+@kernel
+def normal_depth_many(ch, fl, q, s0, out, status):
+    for j in range(q.size):
+        out[j], status[j] = normal_depth(ch, fl, q[j], s0[j])
+
+
+@kernel
+def critical_depth_many(ch, fl, q, alpha, out, status):
+    for j in range(q.size):
+        out[j], status[j] = critical_depth_single(ch, fl, q[j], alpha)
+
+
+@kernel
+def froude_many(ch, fl, q, y, alpha, out):
+    for j in range(q.size):
+        out[j] = math.sqrt(froude_squared(ch, fl, q[j], y[j], alpha))
+
+
+@kernel
+def energy_many(ch, fl, q, y, alpha, out):
+    for j in range(q.size):
+        out[j] = specific_energy(ch, fl, q[j], y[j], alpha)
+
+
+@kernel
+def force_many(ch, fl, q, y, alpha, out):
+    for j in range(q.size):
+        out[j] = specific_force(ch, fl, q[j], y[j], alpha)
+
+
+@kernel
+def colebrook_many(re, eps, out):
+    for j in range(re.size):
+        out[j] = colebrook(re[j], eps[j])
+
+
+@kernel
+def peak_conveyance_many(ch, fl, q, depth, out):
+    for j in range(q.size):
+        depth[j], out[j] = peak_conveyance(ch, fl, q[j])
