@@ -45,7 +45,7 @@ from .profiles import (
 )
 from .reach import Reach, Segment
 from .result import ControlNote, Profile, ProfilePiece
-from .sections import Circular, Parabolic, Rectangular, Section, Trapezoidal, Triangular, WideRectangular
+from .sections import Circular, Parabolic, Rectangular, Section, Surveyed, Trapezoidal, Triangular, WideRectangular
 from .structures import (
     BackwaterExtent,
     Culvert,
@@ -64,6 +64,7 @@ from .uniform import (
     alternate_depth,
     conduit_capacity,
     critical_depth,
+    critical_depths,
     critical_slope,
     froude_number,
     normal_depth,
@@ -101,12 +102,12 @@ __all__ = [
     "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",
     "ReachFileError", "GVFlowWarning",
     # sections
-    "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular",
+    "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular", "Surveyed",
     # friction
     "Manning", "Chezy", "DarcyWeisbach", "conveyance", "friction_slope", "colebrook_friction_factor",
     "composite_manning", "COMPOSITE_ROUGHNESS_METHODS",
     # uniform and critical flow
-    "normal_depth", "critical_depth", "critical_slope", "froude_number", "specific_energy",
+    "normal_depth", "critical_depth", "critical_depths", "critical_slope", "froude_number", "specific_energy",
     "specific_force", "sequent_depth", "alternate_depth", "slope_class", "uniform_discharge",
     "uniform_velocity", "conduit_capacity", "ConduitCapacity", "CRITICAL_SLOPE_TOLERANCE",
     # profile engine and checks

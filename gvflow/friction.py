@@ -181,6 +181,25 @@ def as_roughness(roughness) -> Manning | Chezy | DarcyWeisbach:
     )
 
 
+def section_roughness(section, roughness):
+    """The roughness a call uses: the given one, or None for a section that carries its own (surveyed).
+
+    Raises
+    ------
+    InvalidInputError
+        When a surveyed section is given a roughness too, or a geometric section none.
+    """
+    if getattr(section, "roughness", None) is not None:
+        if roughness is not None:
+            raise InvalidInputError(f"roughness: {section!r} carries its own roughness per zone; leave roughness "
+                                    "out (None), or change the section's roughness")
+        return None
+    if roughness is None:
+        raise InvalidInputError(f"roughness is required for {section!r}: give Manning's n (a float), "
+                                "gv.Manning(n), gv.Chezy(C) or gv.DarcyWeisbach(ks)")
+    return as_roughness(roughness)
+
+
 def colebrook_friction_factor(reynolds, relative_roughness):
     """Darcy friction factor f from the Colebrook-White equation.
 
@@ -250,11 +269,14 @@ def core_channel(section, roughness=None) -> Channel:
     energy and force) the record carries a placeholder Manning's n of 1.
     """
     kind, par = section.core_params()
+    own = getattr(section, "roughness", None)
+    if own is not None:  # a surveyed section carries one roughness per zone
+        return channel(kind, par, own[0].kernel_spec()[0], [r.kernel_spec()[1] for r in own])
     law, value = (KIND_MANNING, 1.0) if roughness is None else roughness.kernel_spec()
     return channel(kind, par, law, value)
 
 
-def conveyance(section, depth, roughness, units: UnitsLike = "SI", discharge=None):
+def conveyance(section, depth, roughness=None, units: UnitsLike = "SI", discharge=None):
     """Conveyance K [length³/s] of a section at a depth, so that Q = K sqrt(Sf).
 
     Parameters
@@ -283,13 +305,13 @@ def conveyance(section, depth, roughness, units: UnitsLike = "SI", discharge=Non
     96.917
     """
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     y = section._depth(depth)
     q = None if discharge is None else positive_array(discharge, "discharge")
     return scalar_or_array(np.asarray(_kfactor(section, y, rough, u, q)))
 
 
-def friction_slope(section, discharge, depth, roughness, units: UnitsLike = "SI"):
+def friction_slope(section, discharge, depth, roughness=None, units: UnitsLike = "SI"):
     """Friction slope Sf [-] of a flow ``discharge`` at ``depth``: Sf = (Q/K)².
 
     Examples
@@ -299,7 +321,7 @@ def friction_slope(section, discharge, depth, roughness, units: UnitsLike = "SI"
     0.00042585
     """
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     y = section._depth(depth)
     q = positive_array(discharge, "discharge")
     k = _kfactor(section, y, rough, u, q)

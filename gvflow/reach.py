@@ -22,7 +22,7 @@ from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformF
 from .errors import ControlError, InvalidInputError
 from .friction import AnyRoughness, as_roughness
 from .profiles import get_marcher
-from .sections import AnySection
+from .sections import AnySection, Surveyed
 from .structures.controls import Culvert, FreeOverfall, Pool, StageDischargeTable, Weir
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 from .units import Units, resolve_units
@@ -65,6 +65,15 @@ class Segment(FrozenModel):
     roughness: AnyRoughness
     name: str | None = None
     gate: SluiceGate | None = None
+
+    @field_validator("section")
+    @classmethod
+    def _geometric_only(cls, v):
+        if isinstance(v, Surveyed):
+            raise ValueError("a surveyed section cannot be used in a reach yet: the reach solver takes geometric "
+                             "sections; use the uniform-flow functions (gv.normal_depth, gv.critical_depths, ...) "
+                             "with it")
+        return v
 
     @field_validator("roughness", mode="before")
     @classmethod

@@ -21,12 +21,14 @@ import math
 from typing import Annotated, ClassVar, Literal
 
 import numpy as np
-from pydantic import BaseModel, ConfigDict, Field, ValidationError
+from pydantic import BaseModel, ConfigDict, Field, PrivateAttr, ValidationError, field_validator
 
-from ._core.geometry import CIRCLE, PARABOLA, TRAPEZOID, WIDE
+from ._core.geometry import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed
+from ._core.records import Fluid
 from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array
 from .errors import InvalidInputError
+from .friction import Chezy, DarcyWeisbach, Manning, as_roughness, core_channel
 
 __all__ = [
     "Section",
@@ -36,6 +38,7 @@ __all__ = [
     "Circular",
     "Parabolic",
     "WideRectangular",
+    "Surveyed",
     "AnySection",
 ]
 
@@ -336,7 +339,144 @@ class Parabolic(Section):
         return PARABOLA, np.array([self._c()])
 
 
+class Surveyed(Section):
+    """Cross-section given by surveyed ground points, with zones of different roughness.
+
+    Parameters
+    ----------
+    offset : sequence of float
+        Horizontal distance of each ground point across the channel [length], left to right
+        looking downstream; non-decreasing (a repeated offset is a vertical wall). At least 3.
+    elevation : sequence of float
+        Ground elevation of each point [length].
+    roughness : float, Manning, Chezy or a sequence of them
+        One value per zone (a float is Manning's n); every zone uses the same law.
+    zone_edges : sequence of float, optional
+        Offsets of the vertical lines dividing the zones, increasing and strictly inside the
+        section; ``len(roughness) == len(zone_edges) + 1``. Omit for one zone.
+
+    Notes
+    -----
+    Depth is measured above the lowest ground point, whose elevation is :attr:`invert`.
+    The geometry is exact at any depth (top width linear and area quadratic between
+    breakpoint elevations); conveyance is summed over the zones, whose division lines are
+    not wetted perimeter, and the energy and momentum coefficients follow from the zone
+    conveyances (Chow, *Open-Channel Hydraulics*, 1959, §2-7 and §6-7; conventions in
+    :mod:`gvflow._core.geometry`). The water surface is level across the section, so a low
+    area cut off by higher ground holds water as soon as the level reaches it. Above an end
+    point the section is closed by a vertical wall, with a :class:`GVFlowWarning` from the
+    functions that meet such a depth. Vertical division lines overestimate the discharge
+    where floodplain and main channel interact strongly (Knight & Demetriou 1983, from
+    memory): place zone edges deliberately.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> sec = gv.Surveyed(offset=[0, 2, 5, 7], elevation=[101.5, 100.0, 100.0, 101.5], roughness=0.03)
+    >>> sec.invert, round(sec.area(1.0), 6)
+    (100.0, 4.333333)
+    """
+
+    shape: Literal["surveyed"] = "surveyed"
+    offset: list[Annotated[float, Field(allow_inf_nan=False)]]
+    elevation: list[Annotated[float, Field(allow_inf_nan=False)]]
+    roughness: list[Manning | Chezy]
+    zone_edges: list[Annotated[float, Field(allow_inf_nan=False)]] = Field(default_factory=list)
+
+    _packed: np.ndarray = PrivateAttr()
+
+    @field_validator("roughness", mode="before")
+    @classmethod
+    def _one_or_many(cls, v):
+        items = v if isinstance(v, (list, tuple, np.ndarray)) else [v]
+        out = []
+        for item in items:
+            if isinstance(item, DarcyWeisbach):
+                raise ValueError("a surveyed section takes Manning's n or Chezy's C per zone, not Darcy-Weisbach")
+            out.append(as_roughness(item) if not isinstance(item, dict) else item)
+        return out
+
+    def model_post_init(self, __context) -> None:
+        x, z = self.offset, self.elevation
+        if len(x) < 3:
+            raise InvalidInputError(f"Surveyed: offset needs at least 3 ground points; got {len(x)}")
+        if len(z) != len(x):
+            raise InvalidInputError(f"Surveyed: elevation needs one value per offset ({len(x)}); got {len(z)}")
+        for i in range(1, len(x)):
+            if x[i] < x[i - 1]:
+                raise InvalidInputError(
+                    f"Surveyed: offset[{i}] = {x[i]:g} is less than offset[{i - 1}] = {x[i - 1]:g}; offsets must "
+                    "not decrease from left to right looking downstream (points out of order, or an overhang, "
+                    "which a section cannot have)")
+        if x[-1] == x[0]:
+            raise InvalidInputError("Surveyed: offset must span a width; all points share one offset")
+        if max(z) == min(z):
+            raise InvalidInputError("Surveyed: elevation must vary; a flat line holds no water")
+        edges = self.zone_edges
+        for i, e in enumerate(edges):
+            if not x[0] < e < x[-1]:
+                raise InvalidInputError(f"Surveyed: zone_edges[{i}] = {e:g} must lie strictly inside the section, "
+                                        f"between offsets {x[0]:g} and {x[-1]:g}")
+            if i and e <= edges[i - 1]:
+                raise InvalidInputError(f"Surveyed: zone_edges must increase; zone_edges[{i}] = {e:g} follows "
+                                        f"{edges[i - 1]:g}")
+        if len(self.roughness) != len(edges) + 1:
+            raise InvalidInputError(
+                f"Surveyed: roughness needs one value per zone, len(zone_edges) + 1 = {len(edges) + 1}; got "
+                f"{len(self.roughness)}")
+        if len({type(r) for r in self.roughness}) > 1:
+            raise InvalidInputError("Surveyed: every zone's roughness must use the same law (all Manning's n or "
+                                    "all Chezy's C)")
+        self._packed = pack_surveyed(x, z, edges)
+
+    @property
+    def invert(self) -> float:
+        """Elevation of the lowest ground point, from which depth is measured [length]."""
+        return float(min(self.elevation))
+
+    @property
+    def bank_depth(self) -> float:
+        """Depth at which the water reaches the lower of the two end points [length]."""
+        return float(min(self.elevation[0], self.elevation[-1]) - self.invert)
+
+    @property
+    def zone_count(self) -> int:
+        """Number of roughness zones."""
+        return len(self.roughness)
+
+    def core_params(self):
+        return SURVEYED, self._packed
+
+    def _coefficients(self, y):
+        y = self._depth(y)
+        flat = np.ascontiguousarray(y.reshape(-1), dtype=float)
+        out = np.empty((2, flat.size))
+        core("arrays", flat.size * self.zone_count).coefficients_many(
+            core_channel(self, None), Fluid(1.0, 1.0, 1e-6), flat, out)
+        return out[0].reshape(y.shape), out[1].reshape(y.shape)
+
+    def energy_coefficient(self, y):
+        """Energy (Coriolis) coefficient alpha at depth ``y`` from the zone conveyances [-].
+
+        alpha = (sum K_i³/A_i²)/(K³/A²) (Chow 1959, §2-7); 1 for one zone.
+        """
+        return scalar_or_array(self._coefficients(y)[0])
+
+    def momentum_coefficient(self, y):
+        """Momentum (Boussinesq) coefficient beta at depth ``y`` from the zone conveyances [-].
+
+        beta = (sum K_i²/A_i)/(K²/A) (Chow 1959, §2-7); 1 for one zone.
+        """
+        return scalar_or_array(self._coefficients(y)[1])
+
+    def __repr__(self) -> str:
+        return (f"Surveyed({len(self.offset)} points, invert {self.invert:g}, {self.zone_count} "
+                f"zone{'s' if self.zone_count > 1 else ''})")
+
+    __str__ = __repr__
+
+
 AnySection = Annotated[
-    Rectangular | Trapezoidal | Triangular | Circular | Parabolic | WideRectangular,
+    Rectangular | Trapezoidal | Triangular | Circular | Parabolic | WideRectangular | Surveyed,
     Field(discriminator="shape"),
 ]

@@ -8,6 +8,7 @@ float for scalar input. They raise a :class:`~gvflow.errors.GVFlowError`
 from __future__ import annotations
 
 import math
+import warnings
 from typing import Literal
 
 import numpy as np
@@ -17,13 +18,14 @@ from ._core.records import fluid
 from ._engine import core
 from ._roots import bracketed_root, expand_upper
 from ._validate import finite_array, positive_array, scalar_or_array
-from .errors import ConvergenceError, InvalidInputError, NoSolutionError
-from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, as_roughness, core_channel
+from .errors import ConvergenceError, GVFlowWarning, InvalidInputError, NoSolutionError
+from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, core_channel, section_roughness
 from .units import UnitsLike, resolve_units
 
 __all__ = [
     "normal_depth",
     "critical_depth",
+    "critical_depths",
     "critical_slope",
     "froude_number",
     "specific_energy",
@@ -87,7 +89,7 @@ def _check_status(status, values, what: str, inputs: str):
         raise ConvergenceError(f"{what} did not converge for {inputs}", iterations=200, last=float(values[i]))
 
 
-def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
+def normal_depth(section, discharge, slope, roughness=None, units: UnitsLike = "SI"):
     """Normal (uniform-flow) depth yn [length]: the depth at which Sf equals the bed slope.
 
     Solves Q = K(y) sqrt(S0) for y, with K the conveyance of the roughness law
@@ -127,7 +129,7 @@ def normal_depth(section, discharge, slope, roughness, units: UnitsLike = "SI"):
     1.0787
     """
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     q = positive_array(discharge, "discharge")
     s = finite_array(slope, "slope")
     if np.any(s <= 0):
@@ -183,9 +185,9 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
     q = positive_array(discharge, "discharge")
     a_ = float(positive_array(alpha, "alpha"))
     shape, (qf,) = _flat(q)
-    out, status = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64)
+    out, status, count = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64), np.zeros(qf.size, dtype=np.int64)
     ch = core_channel(section)  # critical flow does not depend on the roughness
-    core("arrays", 100 * qf.size).critical_depth_many(ch, fluid(u), qf, a_, out, status)
+    core("arrays", 100 * qf.size).critical_depth_many(ch, fluid(u), qf, a_, out, status, count)
     none = status == NO_ROOT
     if np.any(none):
         i = int(np.flatnonzero(none)[0])
@@ -196,11 +198,59 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
             )
         raise NoSolutionError(f"no critical depth found for discharge {qf[i]:g} in {section!r}; check the "
                               "units and magnitude of the discharge")
+    if np.any(count > 1):
+        i = int(np.flatnonzero(count > 1)[0])
+        warnings.warn(f"{section!r} has {int(count[i])} critical depths at discharge {qf[i]:g} (specific energy "
+                      "has several minima); returning the one of least specific energy, "
+                      f"{out[i]:.6g}: gv.critical_depths gives them all", GVFlowWarning, stacklevel=2)
     _check_status(status, out, "critical depth", f"{section!r}")
     return scalar_or_array(out.reshape(shape))
 
 
-def critical_slope(section, discharge, roughness, units: UnitsLike = "SI", alpha: float = 1.0):
+def critical_depths(section, discharge, units: UnitsLike = "SI", alpha: float = 1.0) -> np.ndarray:
+    """Every critical depth of a section at one discharge: the local minima of specific energy [length].
+
+    In a compound section (a main channel with floodplains) the specific energy, with the
+    energy coefficient varying with depth, can have two minima with a local maximum between
+    them; at each the compound Froude number is 1 (Blalock & Sturm 1981, J. Hydraul. Div.
+    ASCE 107(HY6), from memory). Geometric shapes have one. Found by scanning dE/dy on a
+    grid that holds every breakpoint elevation, then polishing each sign change.
+
+    Parameters
+    ----------
+    section : Section
+    discharge : float
+        Discharge Q [length³/s].
+    units : "SI", "US" or Units
+    alpha : float
+        Energy coefficient of a geometric section [-]; a surveyed section uses its own.
+
+    Returns
+    -------
+    ndarray
+        The critical depths, ascending.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> channel = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110],
+    ...                       elevation=[5, 2, 2, 0, 0, 2, 2, 5], roughness=[0.05, 0.03, 0.05],
+    ...                       zone_edges=[0, 10])
+    >>> gv.critical_depths(channel, 80.0).round(4)
+    array([1.8688, 2.3044])
+    """
+    u = resolve_units(units)
+    q = float(positive_array(discharge, "discharge"))
+    a_ = float(positive_array(alpha, "alpha"))
+    out = np.empty(64)
+    n, status = core("arrays", 1000).all_critical_depths(core_channel(section), fluid(u), q, a_, out)
+    if status == NO_ROOT or n == 0:
+        raise NoSolutionError(f"no critical depth found for discharge {q:g} in {section!r}")
+    _check_status(np.array([status]), out, "critical depth", f"{section!r}")
+    return out[:n].copy()
+
+
+def critical_slope(section, discharge, roughness=None, units: UnitsLike = "SI", alpha: float = 1.0):
     """Critical slope Sc [-]: the bed slope whose normal depth equals the critical depth.
 
     Sc = (Q / K(yc))² (Chow 1959, §6-5).
@@ -212,7 +262,7 @@ def critical_slope(section, discharge, roughness, units: UnitsLike = "SI", alpha
     0.005108
     """
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     q = positive_array(discharge, "discharge")
     yc = np.asarray(critical_depth(section, q, u, alpha))
     return scalar_or_array((q / _kfactor(section, yc, rough, u, q)) ** 2)
@@ -376,7 +426,7 @@ def alternate_depth(section, discharge, depth, units: UnitsLike = "SI", alpha: f
 SlopeClass = Literal["mild", "steep", "critical", "horizontal", "adverse"]
 
 
-def slope_class(section, discharge, slope, roughness, units: UnitsLike = "SI",
+def slope_class(section, discharge, slope, roughness=None, units: UnitsLike = "SI",
                 tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> SlopeClass:
     """Classify a bed slope for a discharge: mild, steep, critical, horizontal or adverse.
 
@@ -392,7 +442,7 @@ def slope_class(section, discharge, slope, roughness, units: UnitsLike = "SI",
     'mild'
     """
     positive_array(discharge, "discharge")
-    as_roughness(roughness)
+    section_roughness(section, roughness)
     s = float(finite_array(slope, "slope"))
     if s == 0:
         return "horizontal"
@@ -405,7 +455,7 @@ def slope_class(section, discharge, slope, roughness, units: UnitsLike = "SI",
     return "mild" if yn > yc else "steep"
 
 
-def uniform_discharge(section, depth, slope, roughness, units: UnitsLike = "SI"):
+def uniform_discharge(section, depth, slope, roughness=None, units: UnitsLike = "SI"):
     """Discharge carried in uniform flow at a depth: Q = K(y) sqrt(S0) [length³/s].
 
     Darcy-Weisbach roughness is solved for the Q whose friction factor matches.
@@ -419,7 +469,7 @@ def uniform_discharge(section, depth, slope, roughness, units: UnitsLike = "SI")
     1.2
     """
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     y = section._depth(depth)
     s = positive_array(slope, "slope")
     y, s = np.broadcast_arrays(y, s)
@@ -434,7 +484,7 @@ def uniform_discharge(section, depth, slope, roughness, units: UnitsLike = "SI")
     return scalar_or_array(q_new)
 
 
-def uniform_velocity(section, depth, slope, roughness, units: UnitsLike = "SI"):
+def uniform_velocity(section, depth, slope, roughness=None, units: UnitsLike = "SI"):
     """Mean velocity in uniform flow at a depth: V = K(y) sqrt(S0) / A [length/s].
 
     Examples
@@ -466,7 +516,7 @@ class ConduitCapacity(tuple):
                 "full_velocity={:.6g})".format(*self))
 
 
-def conduit_capacity(section, slope, roughness, units: UnitsLike = "SI") -> ConduitCapacity:
+def conduit_capacity(section, slope, roughness=None, units: UnitsLike = "SI") -> ConduitCapacity:
     """Uniform-flow capacity of a closed conduit flowing partly full.
 
     With constant Manning n the discharge peaks at y/D = 0.938 at 1.076 times
@@ -482,7 +532,7 @@ def conduit_capacity(section, slope, roughness, units: UnitsLike = "SI") -> Cond
     if not section.closed:
         raise InvalidInputError(f"conduit_capacity needs a closed conduit (e.g. gv.Circular); got {section!r}")
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     s = positive_array(slope, "slope")
     d = section.max_depth
     q_full = float(uniform_discharge(section, d, s, rough, u))

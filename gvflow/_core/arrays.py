@@ -8,10 +8,12 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from ._jit import kernel
-from .flow import critical_depth_single, normal_depth, peak_conveyance, specific_energy, specific_force
+from .flow import critical_depths, normal_depth, peak_conveyance, specific_energy, specific_force
 from .geometry import geometry
-from .resistance import colebrook, conveyance, froude_squared
+from .resistance import colebrook, conveyance, froude_squared, velocity_coefficients
 
 
 @kernel
@@ -40,9 +42,26 @@ def normal_depth_many(ch, fl, q, s0, out, status):
 
 
 @kernel
-def critical_depth_many(ch, fl, q, alpha, out, status):
+def critical_depth_many(ch, fl, q, alpha, out, status, count):
+    """The critical depth of least specific energy for each discharge; ``count`` says how many there are."""
+    buf = np.empty(64)
     for j in range(q.size):
-        out[j], status[j] = critical_depth_single(ch, fl, q[j], alpha)
+        n, st = critical_depths(ch, fl, q[j], alpha, buf)
+        status[j] = st
+        count[j] = n
+        out[j] = buf[0] if n > 0 else math.nan
+        best = math.inf
+        for i in range(n):
+            e = specific_energy(ch, fl, q[j], buf[i], alpha)
+            if e < best:
+                best = e
+                out[j] = buf[i]
+
+
+@kernel
+def all_critical_depths(ch, fl, q, alpha, out):
+    """Every critical depth of one discharge into ``out``; returns (count, status)."""
+    return critical_depths(ch, fl, q, alpha, out)
 
 
 @kernel
@@ -73,3 +92,10 @@ def colebrook_many(re, eps, out):
 def peak_conveyance_many(ch, fl, q, depth, out):
     for j in range(q.size):
         depth[j], out[j] = peak_conveyance(ch, fl, q[j])
+
+
+@kernel
+def coefficients_many(ch, fl, y, out):
+    """``out[:, j]`` = (alpha, beta) of the section's own zones at depth ``y[j]``."""
+    for j in range(y.size):
+        out[0, j], out[1, j] = velocity_coefficients(ch, fl, y[j], 1.0)

@@ -3,10 +3,9 @@
 from __future__ import annotations
 
 import numpy as np
-from pydantic import BaseModel, ConfigDict, ValidationError
 
+from .._models import FrozenModel  # noqa: F401  (the structures' models share the one error contract)
 from .._roots import bracketed_root, expand_upper
-from .._validate import invalid_input_from
 from ..units import Units
 
 #: Standard gravity in m/s² (CGPM 1901), used to express published metre constants in any unit system.
@@ -46,15 +45,3 @@ def solve_increasing(fun, target, lo, hi, *, what: str, limit: float = np.inf):
 
     hi = expand_upper(residual, lo, hi, limit=limit, what=what)
     return bracketed_root(residual, lo, hi, rtol=1e-13, what=what)
-
-
-class FrozenModel(BaseModel):
-    """Immutable pydantic model whose construction errors are InvalidInputError."""
-
-    model_config = ConfigDict(frozen=True, extra="forbid")
-
-    def __init__(self, /, **data):
-        try:
-            super().__init__(**data)
-        except ValidationError as exc:
-            raise invalid_input_from(exc, type(self).__name__) from None
