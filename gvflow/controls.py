@@ -21,6 +21,7 @@ from typing import ClassVar, Literal
 import numpy as np
 from pydantic import Field
 
+from . import coefficients
 from ._models import SingleValueModel
 from .errors import ControlError
 
@@ -230,7 +231,8 @@ class SluiceGate(Control):
         Gate opening a [length].
     contraction : float
         Contraction coefficient Cc [-]; 0.61 by default (Henderson 1966,
-        *Open Channel Flow*, §6.5; from memory), range about 0.598-0.611.
+        *Open Channel Flow*, §6.5, as given by Ponce's SDSU notes and Novak
+        et al. 2007, eq. 6.4), range about 0.598-0.611.
 
     Notes
     -----
@@ -249,7 +251,8 @@ class SluiceGate(Control):
     ends: ClassVar[tuple[str, ...]] = ("upstream",)
     kind: Literal["sluice_gate"] = "sluice_gate"
     opening: float = Field(gt=0, allow_inf_nan=False)
-    contraction: float = Field(default=0.61, gt=0, le=1, allow_inf_nan=False)
+    contraction: float = Field(default=coefficients.value("gate.contraction"), gt=0, le=1,
+                               allow_inf_nan=False)
 
     @property
     def jet_depth(self) -> float:

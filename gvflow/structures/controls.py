@@ -31,12 +31,13 @@ from typing import Annotated, ClassVar, Literal
 import numpy as np
 from pydantic import Field, ValidationError, model_validator
 
+from .. import coefficients
 from .._validate import invalid_input_from
 from ..controls import Control, EndState, rectangular_width
 from ..errors import ControlError, GVFlowError, InvalidInputError
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
-from .culverts import AnyBarrel, DownstreamChannel, culvert_headwater
-from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE
+from .culverts import EXIT_LOSS, AnyBarrel, DownstreamChannel, culvert_headwater
+from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE, CRITICAL_SECTION_FACTOR
 from .rating import RatingTable
 from .weirs import (
     BROAD_CRESTED_COEFFICIENT,
@@ -398,7 +399,7 @@ class Culvert(_StructureControl):
     tailwater_velocity: float = Field(default=0.0, ge=0, allow_inf_nan=False)
     invert_offset: float = Field(default=0.0, allow_inf_nan=False)
     allowable_headwater: float | None = Field(default=None, gt=0, allow_inf_nan=False)
-    exit_loss: float = Field(default=1.0, ge=0, le=1, allow_inf_nan=False)
+    exit_loss: float = Field(default=EXIT_LOSS, ge=0, le=1, allow_inf_nan=False)
     steps: int = Field(default=100, ge=1)
 
     @model_validator(mode="after")
@@ -501,7 +502,7 @@ class FreeOverfall(_StructureControl):
 
     ends: ClassVar[tuple[str, ...]] = ("downstream",)
     kind: Literal["free_overfall"] = "free_overfall"
-    distance_factor: float = Field(default=3.5, ge=CRITICAL_SECTION_DISTANCE_RANGE[0],
+    distance_factor: float = Field(default=CRITICAL_SECTION_FACTOR, ge=CRITICAL_SECTION_DISTANCE_RANGE[0],
                                    le=CRITICAL_SECTION_DISTANCE_RANGE[1], allow_inf_nan=False)
 
     def depth_at(self, state):
@@ -679,7 +680,7 @@ class Pool(_StructureControl):
     ends: ClassVar[tuple[str, ...]] = ("upstream",)
     kind: Literal["pool"] = "pool"
     level: float = Field(allow_inf_nan=False)
-    entrance_loss: float = Field(default=0.0, ge=0, allow_inf_nan=False)
+    entrance_loss: float = Field(default=coefficients.value("pool.entrance_loss"), ge=0, allow_inf_nan=False)
 
     def head(self, bed_elevation: float) -> float:
         """Pool level above a bed at ``bed_elevation`` [length]."""

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .. import coefficients
 from .._validate import positive_array, scalar_or_array
 from ..errors import InvalidInputError
 from ..units import UnitsLike, resolve_units
@@ -31,9 +32,11 @@ __all__ = [
 ]
 
 #: Brink depth over critical depth, rectangular channel, subcritical approach (Rouse 1936; from memory - verify).
-BRINK_DEPTH_RATIO = 0.715
+BRINK_DEPTH_RATIO = coefficients.value("overfall.brink_ratio")
 #: Distance of the critical section upstream of the brink, in critical depths (Rouse 1936; from memory - verify).
-CRITICAL_SECTION_DISTANCE_RANGE = (3.0, 4.0)
+CRITICAL_SECTION_DISTANCE_RANGE = coefficients.value("overfall.critical_section_distance")
+#: Default distance of the critical section upstream of the brink, the middle of that range (common practice).
+CRITICAL_SECTION_FACTOR = coefficients.value("overfall.critical_section_factor")
 
 
 def brink_depth(discharge, width, units: UnitsLike = "SI"):
@@ -78,7 +81,7 @@ def discharge_from_brink_depth(depth, width, units: UnitsLike = "SI"):
     return scalar_or_array(b * np.sqrt(u.g) * (yb / BRINK_DEPTH_RATIO) ** 1.5)
 
 
-def critical_section_distance(critical_depth, factor: float = 3.5):
+def critical_section_distance(critical_depth, factor: float = CRITICAL_SECTION_FACTOR):
     """Distance from the brink upstream to the critical section of a free overfall [length].
 
     ``factor`` times the critical depth; Rouse (1936) places the critical
