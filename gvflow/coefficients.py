@@ -136,10 +136,11 @@ class Coefficient:
         return self.provenance.status
 
     def line(self) -> str:
-        """One line for a report: ``name value: source; status``."""
+        """One line for a report: ``used by: name = value: source; status``."""
         unit = "" if self.unit == "-" else f" {self.unit}"
         who = f"{self.used_by}: " if self.used_by else ""
-        return f"{who}{self.name} {_fmt(self.value)}{unit}: {self.source}; {self.status}"
+        val = self.value[0] if isinstance(self.value, tuple) and len(self.value) == 1 else self.value
+        return f"{who}{self.name} = {_fmt(val)}{unit}: {self.source}; {self.status}"
 
 
 @dataclass(frozen=True)
@@ -251,7 +252,7 @@ def used(key: str, *, row: str | None = None, name: str | None = None, used_by: 
     if row is not None:
         item = table(key).row(row)
     if isinstance(item, Table):
-        return Coefficient(key=key, name=name or item.title, value=f"table of {len(item.rows)} rows",
+        return Coefficient(key=key, name=name or item.title, value=f"a table of {len(item.rows)} rows",
                            provenance=item.provenance, unit="-", used_by=used_by)
     return replace(item, name=name or item.name, used_by=used_by)
 
@@ -374,7 +375,7 @@ _INLET_NOTE = ("Table A.1 was not found in a stored copy of the manual; secondar
 INLET_CONTROL = _register(Table(
     "culvert.inlet_control", "culvert inlet-control coefficients (HDS-5 Table A.1)",
     ("shape", "form", "K", "M", "c", "Y", "Ks"),
-    {k: _row("culvert.inlet_control", k, f"inlet-control coefficients, {d}", v,
+    {k: _row("culvert.inlet_control", k, f"inlet-control coefficients (shape, form, K, M, c, Y, Ks) for {d}", v,
              f"{_HDS5_2012}, Appendix A, Table A.1", RECALLED, note=_INLET_NOTE)
      for k, (v, d) in _INLETS.items()},
 ))
@@ -400,7 +401,7 @@ _KE = {
 }
 ENTRANCE_LOSS = _register(Table(
     "culvert.entrance_loss", "culvert entrance loss coefficients ke (outlet control)", ("ke",),
-    {k: _row("culvert.entrance_loss", k, f"entrance loss ke, {_INLETS[k][1]}", (ke,), _HDS5_2001, READ,
+    {k: _row("culvert.entrance_loss", k, f"entrance loss ke ({_INLETS[k][1]})", (ke,), _HDS5_2001, READ,
              where=_HDS5_2001_AT, note=f"row: {row}")
      for k, (ke, row) in _KE.items()},
 ))

@@ -99,6 +99,19 @@ class Control(SingleValueModel):
         """
         return [[] for _ in range(state.seg.n)]
 
+    def coefficients(self) -> tuple:
+        """Empirical coefficients this control's depth rests on, for the result's report.
+
+        Returns
+        -------
+        tuple of gvflow.coefficients.Coefficient
+            Usage records (:func:`gvflow.coefficients.used` or
+            :func:`~gvflow.coefficients.given`), each naming its source and
+            status; a solved :class:`~gvflow.result.Profile` lists them. The
+            base class uses none.
+        """
+        return ()
+
     def plot_mark(self, bed_elevation: float) -> tuple[str, float] | None:
         """Label and top elevation [length] of a structure to mark on the long section, or None."""
         return None
@@ -327,6 +340,12 @@ class SluiceGate(Control):
                 out.append([f"free flow: depth behind the gate {y1[s]:.3f} {L}; the jump below stays clear of the "
                             f"gate while the tailwater there is under the jet's sequent depth {limit[s]:.3f} {L}"])
         return out
+
+    def coefficients(self):
+        key = "gate.contraction"
+        if self.contraction == coefficients.value(key):
+            return (coefficients.used(key, used_by="sluice gate"),)
+        return (coefficients.given(key, "contraction coefficient Cc", self.contraction, used_by="sluice gate"),)
 
     def describe(self, units):
         return (f"sluice gate, opening {self.opening:.3f} {units.length}, jet depth {self.jet_depth:.3f} "

@@ -25,7 +25,7 @@ discharge a channel draws from a pool at a given level.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Annotated, ClassVar, Literal
 
 import numpy as np
@@ -315,6 +315,31 @@ class Weir(_StructureControl):
             out.append([line])
         return out
 
+    def coefficients(self):
+        C = coefficients
+        f = self.formula
+        if f == "rehbock":
+            out = [C.used("weir.rehbock")]
+            if self.end_contractions:
+                out.append(C.used("weir.francis_contraction"))
+        elif f == "kindsvater_carter":
+            out = [C.used("weir.kindsvater_carter_ce"), C.used("weir.kindsvater_carter_kb"),
+                   C.used("weir.kindsvater_carter_kh")]
+        elif f == "v_notch":
+            out = [C.used("weir.kindsvater_shen")]
+        else:
+            cd = self.discharge_coefficient
+            out = [C.used("weir.broad_crested_cd") if cd is None or cd == BROAD_CRESTED_COEFFICIENT
+                   else C.given("weir.broad_crested_cd", C.get("weir.broad_crested_cd").name, cd)]
+        if self.tailwater_level is not None:
+            if f != "broad_crested":
+                out.append(C.used("weir.villemonte_exponent"))
+            key = "weir.broad_crested_modular_limit" if f == "broad_crested" else "weir.max_submergence"
+            limit = self.submergence_limit
+            out.append(C.used(key) if limit is None or limit == C.value(key)
+                       else C.given(key, C.get(key).name, limit))
+        return tuple(replace(r, used_by="weir") for r in out)
+
     def plot_mark(self, bed_elevation):
         return "weir", self.crest_elevation(bed_elevation)
 
@@ -454,6 +479,19 @@ class Culvert(_StructureControl):
             out.append(lines)
         return out
 
+    def coefficients(self):
+        C = coefficients
+        b = self.barrel
+        ke_default = C.table("culvert.entrance_loss").row(b.inlet).value[0]
+        out = [C.used("culvert.inlet_control", row=b.inlet),
+               C.used("culvert.unsubmerged_limit"), C.used("culvert.submerged_limit"),
+               C.used("culvert.entrance_loss", row=b.inlet) if b.entrance_loss is None or b.entrance_loss == ke_default
+               else C.given("culvert.entrance_loss", f"entrance loss ke ({b.inlet_coefficients.description})",
+                            b.entrance_loss),
+               C.used("culvert.exit_loss") if self.exit_loss == EXIT_LOSS
+               else C.given("culvert.exit_loss", C.get("culvert.exit_loss").name, self.exit_loss)]
+        return tuple(replace(r, used_by="culvert") for r in out)
+
     def plot_mark(self, bed_elevation):
         return "culvert", bed_elevation + self.invert_offset + self.barrel.height
 
@@ -533,6 +571,14 @@ class FreeOverfall(_StructureControl):
                 line += f"; brink depth {yb[s]:.3f} {L} ({BRINK_DEPTH_RATIO} yc, Rouse 1936)"
             out.append([line])
         return out
+
+    def coefficients(self):
+        C = coefficients
+        key = "overfall.critical_section_factor"
+        out = [C.used("overfall.brink_ratio"),
+               C.used(key) if self.distance_factor == CRITICAL_SECTION_FACTOR
+               else C.given(key, C.get(key).name, self.distance_factor)]
+        return tuple(replace(r, used_by="free overfall") for r in out)
 
     def plot_mark(self, bed_elevation):
         return "free overfall", bed_elevation
@@ -747,6 +793,12 @@ class Pool(_StructureControl):
                          "gvflow.solve_discharge_from_pool(reach) finds the discharge the channel draws")
             out.append([line])
         return out
+
+    def coefficients(self):
+        key = "pool.entrance_loss"
+        if self.entrance_loss == coefficients.value(key):
+            return (coefficients.used(key, used_by="pool"),)
+        return (coefficients.given(key, coefficients.get(key).name, self.entrance_loss, used_by="pool"),)
 
     def plot_mark(self, bed_elevation):
         return "pool", self.level
