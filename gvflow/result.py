@@ -34,16 +34,17 @@ class ControlNote:
 def _coefficients_used(reach, jumps, notes) -> list:
     """(x, usage record) of every empirical coefficient that shaped one scenario's profile.
 
-    The coefficients of the end controls that governed (an end with an "unused control" note is
-    left out), of every gate between segments, and the jump-length curve and jump types when the
-    profile holds a jump. ``notes`` are the scenario's (x, kind, text) control notes.
+    The coefficients of the end controls that governed (an end with an "unused control" or a
+    "jump swept out" note is left out), of every gate between segments, and the jump-length curve
+    and jump types when the profile holds a jump. ``notes`` are the scenario's (x, kind, text)
+    control notes.
     """
     from dataclasses import replace
 
     from .coefficients import used
 
     x_end = float(reach.boundaries[-1])
-    unused = {x for x, kind, _ in notes if kind == "unused control"}
+    unused = {x for x, kind, _ in notes if kind in ("unused control", "jump swept out")}
     places = [(0.0, "upstream control", reach.upstream), (x_end, "downstream control", reach.downstream)]
     places += [(float(reach.boundaries[k]), f"gate at the head of segment {k}", seg.gate)
                for k, seg in enumerate(reach.segments) if seg.gate is not None]

@@ -64,6 +64,8 @@ __all__ = [
 ]
 
 _Finite = Annotated[float, Field(allow_inf_nan=False)]
+#: Notch angles [degrees] of the Kindsvater-Shen table, the range a V-notch weir accepts.
+_NOTCH_ANGLES = coefficients.table("weir.kindsvater_shen").column("notch angle")
 
 
 class _StructureControl(Control):
@@ -218,7 +220,7 @@ class Weir(_StructureControl):
     formula: str = "rehbock"
     crest_length: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     end_contractions: int = Field(default=0, ge=0, le=2)
-    notch_angle: float | None = Field(default=None, ge=20, le=100, allow_inf_nan=False)
+    notch_angle: float | None = Field(default=None, ge=_NOTCH_ANGLES[0], le=_NOTCH_ANGLES[-1], allow_inf_nan=False)
     discharge_coefficient: float | None = Field(default=None, gt=0, le=1.5, allow_inf_nan=False)
     tailwater_level: float | None = Field(default=None, allow_inf_nan=False)
     submergence_limit: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)

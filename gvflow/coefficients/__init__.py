@@ -507,6 +507,8 @@ _c("overfall.critical_section_distance", "distance of the critical section upstr
    (3.0, 4.0), _ROUSE, RECALLED)
 _c("overfall.critical_section_factor", "default distance of the critical section upstream of the brink, in "
    "critical depths", 3.5, "gvflow default: the middle of Rouse's 3 to 4", COMMON_PRACTICE)
+_c("backwater.extent_tolerance", "relative distance from normal depth counted as normal depth in the backwater "
+   "extent", 0.01, "gvflow default: 1 % of the normal depth", COMMON_PRACTICE)
 _c("pool.entrance_loss", "entrance loss coefficient from a pool into a channel", 0.0,
    "gvflow default: no entrance loss unless one is given", COMMON_PRACTICE)
 
@@ -545,8 +547,9 @@ def _cell(text) -> str:
 def markdown() -> str:
     """The reference page of every registered coefficient and table (``docs/coefficients.md``)."""
     out = ["# Coefficients and their sources", "",
-           "Generated from `gvflow/coefficients.py` by `python -m gvflow.coefficients > docs/coefficients.md`;",
-           "a test regenerates it and compares. Do not edit by hand.", "",
+           "Generated from the registry in `gvflow.coefficients` by",
+           "`python -m gvflow.coefficients > docs/coefficients.md`; a test regenerates it and compares.",
+           "Do not edit by hand.", "",
            "Status of each value:", ""]
     meaning = {
         EXACT: "a definition or a conversion",
@@ -582,6 +585,3 @@ def markdown() -> str:
             out.append(f"| `{label}` | {vals} | {_cell(p.source)} | {p.status} | {_cell(p.where)} | {_cell(p.note)} |")
     return "\n".join(out) + "\n"
 
-
-if __name__ == "__main__":  # pragma: no cover - exercised by the docs test through markdown()
-    print(markdown(), end="")
