@@ -309,7 +309,7 @@ def _row(key, label, name, val, source, status, *, where="", note=""):
 # ---------------------------------------------------------------------------
 
 class CulvertInlet(NamedTuple):
-    """Inlet-control coefficients of one inlet type (HDS-5, 3rd ed., 2012, Table A.1 and Appendix C).
+    """Coefficients of one inlet type: inlet control (HDS-5, 3rd ed., 2012, Table A.1) and entrance loss.
 
     Attributes
     ----------
@@ -324,7 +324,7 @@ class CulvertInlet(NamedTuple):
     slope_factor : float
         Ks, multiplying the barrel slope: -0.5, or +0.7 for mitered inlets.
     entrance_loss : float
-        Entrance loss coefficient ke used in outlet control.
+        Entrance loss coefficient ke used in outlet control (HDS-5, 2001, Table 12).
     description : str
         Plain description of the inlet.
     """
@@ -478,12 +478,16 @@ _c("weir.kindsvater_carter_kh", "Kindsvater-Carter head correction kh", 0.001,
 
 _KS_SOURCE = ("Shen, J. (1981). Discharge characteristics of triangular-notch thin-plate weirs, USGS Water-Supply "
               "Paper 1617-B; as tabulated by Blevins, R. D. (1984). Applied Fluid Dynamics Handbook")
+_KS_NOTE = ("the same table as the general-purpose library fluids (a test compares them); Ponce's SDSU lab notes "
+            "(https://ponce.sdsu.edu/protected119/lab05_131025.html) read Ce = 0.578 and kh = 0.0029 ft (0.88 mm) at 90 "
+            "degrees from the USBR curves, against 0.5775 and 1.0 mm interpolated here; USBR (2001, ch. 7 §7) "
+            "gives the relation for 25 to 100 degrees")
 _KS = {20.0: (0.59, 0.0028), 40.0: (0.58, 0.0017), 60.0: (0.575, 0.0012), 80.0: (0.575, 0.001), 100.0: (0.58, 0.001)}
 _register(Table(
     "weir.kindsvater_shen", "Kindsvater-Shen coefficients of a fully contracted V-notch",
     ("notch angle", "Ce", "kh"),
     {f"{a:g}": _row("weir.kindsvater_shen", f"{a:g}", f"Kindsvater-Shen Ce, kh at {a:g} degrees", (a, *v),
-                    _KS_SOURCE, RECALLED)
+                    _KS_SOURCE, RECALLED, note=_KS_NOTE)
      for a, v in _KS.items()},
     unit="notch angle in degrees, kh in m",
 ))
