@@ -18,7 +18,8 @@ __all__ = ["Jump", "belanger_ratio", "jump_energy_loss_rectangular", "jump_lengt
            "JUMP_TYPES"]
 
 #: Jump types by upstream Froude number (USBR classification as given by
-#: Chow 1959, *Open-Channel Hydraulics*, §15-2): (lower bound, name).
+#: Chow 1959, *Open-Channel Hydraulics*, §15-2; bounds read in Hicks, *Civil
+#: Engineering Formulas*, fig. 12.17): (lower bound, name).
 JUMP_TYPES = tuple(zip(coefficients.value("jump.types"), ("undular", "weak", "oscillating", "steady", "strong"),
                        strict=True))
 #: Jump length curve L/y2 against F1 (Peterka 1958, fig. 7; from memory - verify): (F1 points, L/y2 points).
@@ -64,7 +65,8 @@ def jump_length(upstream_depth, downstream_depth, froude):
     1958, *Hydraulic Design of Stilling Basins and Energy Dissipators*, USBR
     Engineering Monograph 25, fig. 7; curve read from memory). An estimate
     for sizing a stilling reach, not a precise value: published curves differ
-    by about 10 %.
+    by about 10 %; a stored text gives L = 6 y2 for 4 < F1 < 20 (see
+    :mod:`gvflow.coefficients`, ``jump.length_curve``).
 
     Examples
     --------

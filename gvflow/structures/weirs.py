@@ -416,7 +416,10 @@ def kindsvater_carter_coefficients(width_ratio, units: UnitsLike = "SI"):
     Kindsvater, C. E. & Carter, R. W. (1957). Discharge characteristics of
     rectangular thin-plate weirs. *J. Hydraulics Div. ASCE* 83(HY6).
     USBR (2001). *Water Measurement Manual*, 3rd ed., ch. 7 (table of C1, C2
-    and kb against b/B; from memory - verify).
+    and kb against b/B; from memory - verify). The rows b/B = 1 (C2 0.602,
+    C1 0.075) and b/B = 0.5 (0.592, 0.011) were read in Novak et al. (2007),
+    *Hydraulic Structures*, 4th ed., Table 8.1; sources per row in
+    :mod:`gvflow.coefficients`.
 
     Examples
     --------
