@@ -281,6 +281,20 @@ def test_sluice_gate_contraction_matches_ponce_and_novak():
 
 
 @pytest.mark.reference
+def test_brink_ratio_matches_rouse_as_given_by_thandaveswara():
+    """Thandaveswara, IIT Madras hydraulics notes, 'Brink depth' (scribd.com/document/400243144):
+    Rouse showed yb = 0.715 yc; yc/yb = 1.4; the critical section 3 to 4 yc upstream."""
+    from gvflow.structures import brink_depth, critical_section_distance
+
+    assert C.value("overfall.brink_ratio") == 0.715
+    assert C.value("overfall.critical_section_distance") == (3.0, 4.0)
+    yc = (2.0 ** 2 / 9.80665) ** (1 / 3)
+    assert brink_depth(2.0, 1.0) == pytest.approx(0.715 * yc, rel=1e-12)
+    assert 1 / 0.715 == pytest.approx(1.4, abs=0.005)
+    assert critical_section_distance(yc, 3.0) == pytest.approx(3.0 * yc)
+
+
+@pytest.mark.reference
 def test_jump_types_match_hicks():
     """Hicks, Civil Engineering Formulas, fig. 12.17 (digilib.universitaspertamina.ac.id, page 395):
     F1 1-1.7 undular, 1.7-2.5 weak, 2.5-4.5 oscillating, 4.5-9.0 steady, above 9.0 strong."""
@@ -314,8 +328,6 @@ def test_glass_manning_n_matches_the_chow_table():
 def test_transcription_of_recalled_values():
     """Transcription check, not a reference: the recalled values (REFERENCES.md, marked from memory)
     as written in the registry. Confirm them against the sources before relying on them."""
-    assert C.value("overfall.brink_ratio") == 0.715
-    assert C.value("overfall.critical_section_distance") == (3.0, 4.0)
     assert C.value("weir.broad_crested_cd") == 0.848
     assert C.value("weir.broad_crested_modular_limit") == 0.66
     assert C.value("weir.villemonte_exponent") == 0.385
@@ -324,7 +336,7 @@ def test_transcription_of_recalled_values():
         "circular", 1, 0.0098, 2.0, 0.0398, 0.67, -0.5)
     assert C.table("culvert.inlet_control").row("box_wingwalls_30_to_75").value == (
         "box", 1, 0.026, 1.0, 0.0347, 0.81, -0.5)
-    for key in ("overfall.brink_ratio", "weir.broad_crested_cd", "weir.villemonte_exponent", "jump.length_curve"):
+    for key in ("weir.broad_crested_cd", "weir.villemonte_exponent", "jump.length_curve"):
         assert C.get(key).status == C.RECALLED
 
 

@@ -479,8 +479,8 @@ _c("weir.kindsvater_carter_kh", "Kindsvater-Carter head correction kh", 0.001,
 _KS_SOURCE = ("Shen, J. (1981). Discharge characteristics of triangular-notch thin-plate weirs, USGS Water-Supply "
               "Paper 1617-B; as tabulated by Blevins, R. D. (1984). Applied Fluid Dynamics Handbook")
 _KS_NOTE = ("the same table as the general-purpose library fluids (a test compares them); Ponce's SDSU lab notes "
-            "(https://ponce.sdsu.edu/protected119/lab05_131025.html) read Ce = 0.578 and kh = 0.0029 ft (0.88 mm) at 90 "
-            "degrees from the USBR curves, against 0.5775 and 1.0 mm interpolated here; USBR (2001, ch. 7 §7) "
+            "(https://ponce.sdsu.edu/protected119/lab05_131025.html) read Ce = 0.578 and kh = 0.0029 ft (0.88 mm) "
+            "at 90 degrees from the USBR curves, against 0.5775 and 1.0 mm interpolated here; USBR (2001, ch. 7 §7) "
             "gives the relation for 25 to 100 degrees")
 _KS = {20.0: (0.59, 0.0028), 40.0: (0.58, 0.0017), 60.0: (0.575, 0.0012), 80.0: (0.575, 0.001), 100.0: (0.58, 0.001)}
 _register(Table(
@@ -505,10 +505,15 @@ _c("gate.contraction_range", "range of Cc of a vertical sluice gate", (0.598, 0.
 
 _ROUSE = ("Rouse, H. (1936). Discharge characteristics of the free overfall. Civil Engineering 6(4), 257-260 "
           "(horizontal or mild rectangular channel, subcritical approach)")
-_c("overfall.brink_ratio", "brink depth over critical depth", 0.715, _ROUSE, RECALLED,
-   note="the end-depth ratio of later studies is close to 0.715 for smooth channels; not read in a stored copy")
+_THANDA = ("Thandaveswara, B. S. Hydraulics, lecture notes, Indian Institute of Technology Madras, 'Brink depth': "
+           "Rouse showed yb = 0.715 yc; yc/yb = 1.4, the critical section 3 to 4 yc upstream of the brink")
+_THANDA_AT = "https://www.scribd.com/document/400243144/15-2-pdf"
+_c("overfall.brink_ratio", "brink depth over critical depth", 0.715, f"{_ROUSE}, as given by {_THANDA}", READ,
+   where=_THANDA_AT,
+   note="the notes derive it for an unconfined nappe and give 0.705 for two-dimensional flow (confined nappe), "
+        "for canal slopes up to 0.0025 and widths of at least 3 yc")
 _c("overfall.critical_section_distance", "distance of the critical section upstream of the brink, in critical depths",
-   (3.0, 4.0), _ROUSE, RECALLED)
+   (3.0, 4.0), f"{_ROUSE}, as given by {_THANDA}", READ, where=_THANDA_AT)
 _c("overfall.critical_section_factor", "default distance of the critical section upstream of the brink, in "
    "critical depths", 3.5, "gvflow default: the middle of Rouse's 3 to 4", COMMON_PRACTICE)
 _c("backwater.extent_tolerance", "relative distance from normal depth counted as normal depth in the backwater "

@@ -523,7 +523,7 @@ class FreeOverfall(_StructureControl):
     (``distance_factor`` critical depths, 3 to 4 after Rouse 1936) upstream
     of the brink itself; the depth there is the critical depth. For a
     rectangular channel with subcritical approach the brink depth
-    0.715 yc (Rouse 1936; from memory - verify) is reported in the notes.
+    0.715 yc (Rouse 1936) is reported in the notes.
 
     Parameters
     ----------
