@@ -6,7 +6,7 @@
 1.51
 """
 
-from . import structures
+from . import coefficients, structures
 from .batch import SolveManyError, SweepResult, solve_many
 from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
 from .design import BestSection, best_hydraulic_section
@@ -95,6 +95,8 @@ __all__ = [
     # structures as controls
     "structures", "Weir", "Culvert", "FreeOverfall", "StageDischargeTable", "Pool", "solve_discharge_from_pool",
     "PoolDischarge", "backwater_extent", "BackwaterExtent",
+    # coefficients with their sources
+    "coefficients",
     # reach files, tables, plots
     "read_reach", "write_reach", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach", "plot_profile",
     # units and errors

@@ -21,6 +21,7 @@ from typing import ClassVar, Literal
 import numpy as np
 from pydantic import Field
 
+from . import coefficients
 from ._models import SingleValueModel
 from .errors import ControlError
 
@@ -97,6 +98,19 @@ class Control(SingleValueModel):
             of kind ``"control detail"``. The base class adds nothing.
         """
         return [[] for _ in range(state.seg.n)]
+
+    def coefficients(self) -> tuple:
+        """Empirical coefficients this control's depth rests on, for the result's report.
+
+        Returns
+        -------
+        tuple of gvflow.coefficients.Coefficient
+            Usage records (:func:`gvflow.coefficients.used` or
+            :func:`~gvflow.coefficients.given`), each naming its source and
+            status; a solved :class:`~gvflow.result.Profile` lists them. The
+            base class uses none.
+        """
+        return ()
 
     def plot_mark(self, bed_elevation: float) -> tuple[str, float] | None:
         """Label and top elevation [length] of a structure to mark on the long section, or None."""
@@ -230,7 +244,8 @@ class SluiceGate(Control):
         Gate opening a [length].
     contraction : float
         Contraction coefficient Cc [-]; 0.61 by default (Henderson 1966,
-        *Open Channel Flow*, §6.5; from memory), range about 0.598-0.611.
+        *Open Channel Flow*, §6.5, as given by Ponce's SDSU notes and Novak
+        et al. 2007, eq. 6.4), range about 0.598-0.611.
 
     Notes
     -----
@@ -249,7 +264,8 @@ class SluiceGate(Control):
     ends: ClassVar[tuple[str, ...]] = ("upstream",)
     kind: Literal["sluice_gate"] = "sluice_gate"
     opening: float = Field(gt=0, allow_inf_nan=False)
-    contraction: float = Field(default=0.61, gt=0, le=1, allow_inf_nan=False)
+    contraction: float = Field(default=coefficients.value("gate.contraction"), gt=0, le=1,
+                               allow_inf_nan=False)
 
     @property
     def jet_depth(self) -> float:
@@ -324,6 +340,12 @@ class SluiceGate(Control):
                 out.append([f"free flow: depth behind the gate {y1[s]:.3f} {L}; the jump below stays clear of the "
                             f"gate while the tailwater there is under the jet's sequent depth {limit[s]:.3f} {L}"])
         return out
+
+    def coefficients(self):
+        key = "gate.contraction"
+        if self.contraction == coefficients.value(key):
+            return (coefficients.used(key, used_by="sluice gate"),)
+        return (coefficients.given(key, "contraction coefficient Cc", self.contraction, used_by="sluice gate"),)
 
     def describe(self, units):
         return (f"sluice gate, opening {self.opening:.3f} {units.length}, jet depth {self.jet_depth:.3f} "

@@ -43,8 +43,8 @@ __all__ = [
     "CompositeMethod",
 ]
 
-#: smallest Manning's n accepted: about a hundredth of the smoothest real surfaces (glass, about 0.009;
-#: Chow 1959, *Open-Channel Hydraulics*, table 5-6, from memory)
+#: smallest Manning's n accepted, an input guard rather than a coefficient: about a hundredth of the smoothest
+#: real surfaces (glass, n 0.009 to 0.013 after Chow 1959, table 5-6; registry entry friction.manning_n_glass)
 MANNING_N_MIN = 1e-4
 
 KIND_MANNING = 0

@@ -11,14 +11,19 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from . import coefficients
 from ._validate import positive_array, scalar_or_array
 
 __all__ = ["Jump", "belanger_ratio", "jump_energy_loss_rectangular", "jump_length", "jump_type",
            "JUMP_TYPES"]
 
 #: Jump types by upstream Froude number (USBR classification as given by
-#: Chow 1959, *Open-Channel Hydraulics*, §15-2): (lower bound, name).
-JUMP_TYPES = ((1.0, "undular"), (1.7, "weak"), (2.5, "oscillating"), (4.5, "steady"), (9.0, "strong"))
+#: Chow 1959, *Open-Channel Hydraulics*, §15-2; bounds read in Hicks, *Civil
+#: Engineering Formulas*, fig. 12.17): (lower bound, name).
+JUMP_TYPES = tuple(zip(coefficients.value("jump.types"), ("undular", "weak", "oscillating", "steady", "strong"),
+                       strict=True))
+#: Jump length curve L/y2 against F1 (Peterka 1958, fig. 7; from memory - verify): (F1 points, L/y2 points).
+JUMP_LENGTH_CURVE = coefficients.value("jump.length_curve")
 
 
 def belanger_ratio(froude):
@@ -60,7 +65,8 @@ def jump_length(upstream_depth, downstream_depth, froude):
     1958, *Hydraulic Design of Stilling Basins and Energy Dissipators*, USBR
     Engineering Monograph 25, fig. 7; curve read from memory). An estimate
     for sizing a stilling reach, not a precise value: published curves differ
-    by about 10 %.
+    by about 10 %; a stored text gives L = 6 y2 for 4 < F1 < 20 (see
+    :mod:`gvflow.coefficients`, ``jump.length_curve``).
 
     Examples
     --------
@@ -76,7 +82,7 @@ def jump_length(upstream_depth, downstream_depth, froude):
 
 def _length_ratio(froude):
     """L / y2 of :func:`jump_length` at upstream Froude number ``froude`` (checked by the caller)."""
-    return np.interp(froude, [1.0, 1.7, 3.0, 4.5, 13.0], [3.0, 4.0, 5.0, 6.1, 6.1])
+    return np.interp(froude, *JUMP_LENGTH_CURVE)
 
 
 def jump_type(froude):

@@ -31,6 +31,36 @@ class ControlNote:
         return f"ControlNote(x={self.x:.2f}, {self.kind}: {self.text})"
 
 
+def _coefficients_used(reach, jumps, notes) -> list:
+    """(x, usage record) of every empirical coefficient that shaped one scenario's profile.
+
+    The coefficients of the end controls that governed (an end with an "unused control" or a
+    "jump swept out" note is left out), of every gate between segments, and the jump-length curve
+    and jump types when the profile holds a jump. ``notes`` are the scenario's (x, kind, text)
+    control notes.
+    """
+    from dataclasses import replace
+
+    from .coefficients import used
+
+    x_end = float(reach.boundaries[-1])
+    unused = {x for x, kind, _ in notes if kind in ("unused control", "jump swept out")}
+    places = [(0.0, "upstream control", reach.upstream), (x_end, "downstream control", reach.downstream)]
+    places += [(float(reach.boundaries[k]), f"gate at the head of segment {k}", seg.gate)
+               for k, seg in enumerate(reach.segments) if seg.gate is not None]
+    out = []
+    for x, where, ctrl in places:
+        if ctrl is None or (where.endswith("control") and x in unused):
+            continue
+        out += [(x, replace(rec, used_by=f"{where}, {rec.used_by}" if rec.used_by else where))
+                for rec in ctrl.coefficients()]
+    if jumps:
+        x = float(jumps[0].x)
+        out += [(x, used("jump.length_curve", used_by="hydraulic jump length")),
+                (x, used("jump.types", used_by="hydraulic jump type"))]
+    return out
+
+
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
     """(A, T, Sf, V, Fr, alpha V²/2g) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
     segs = sol.segs
@@ -61,7 +91,10 @@ class Profile:
     Other members: ``jumps`` (list of :class:`~gvflow.jumps.Jump`),
     ``profile_types`` (labels of the profile pieces, upstream to downstream),
     ``pieces`` (the pieces with their extents), ``controls`` (notes on what
-    governs where, unused controls, drowned or swept-out jumps),
+    governs where, unused controls, drowned or swept-out jumps, and one note
+    of kind ``"coefficient"`` for each empirical coefficient the result rests
+    on), ``coefficients`` (those coefficients as records with their sources,
+    see :mod:`gvflow.coefficients`),
     ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
     """
 
@@ -148,9 +181,25 @@ class Profile:
                               segment=int(k2[r]),
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
-        controls = sorted((ControlNote(float(a), b, c) for a, b, c in sol.notes[i]), key=lambda c: c.x)
+        notes = list(sol.notes[i])
+        notes += [(x, "coefficient", rec.line()) for x, rec in _coefficients_used(reach, jumps, sol.notes[i])]
+        controls = sorted((ControlNote(float(a), b, c) for a, b, c in notes), key=lambda c: c.x)
         return cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
                    pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes)
+
+    @property
+    def coefficients(self) -> tuple:
+        """The empirical coefficients that shaped this profile, with their sources and status.
+
+        A tuple of :class:`gvflow.coefficients.Coefficient` usage records:
+        ``used_by`` says where (e.g. "downstream control, culvert"), ``value``,
+        ``source`` and ``status`` (for example "recalled, not confirmed": check
+        it before signing). Coefficients of an end control that did not govern
+        are left out. The same records are the ``"coefficient"`` notes in
+        :attr:`controls` and a section of :meth:`summary`.
+        """
+        notes = [(c.x, c.kind, c.text) for c in self.controls]
+        return tuple(rec for _, rec in _coefficients_used(self.reach, self.jumps, notes))
 
     # -- queries -------------------------------------------------------------------------
     def depth_at(self, x):
@@ -226,7 +275,13 @@ class Profile:
         else:
             lines.append("Hydraulic jumps: none in the reach")
         for c in self.controls:
-            lines.append(f"Control at x = {c.x:.2f} {L}: {c.kind}: {c.text}")
+            if c.kind != "coefficient":
+                lines.append(f"Control at x = {c.x:.2f} {L}: {c.kind}: {c.text}")
+        used = [c for c in self.controls if c.kind == "coefficient"]
+        if used:
+            lines.append("")
+            lines.append("Coefficients this result rests on (source; status - check any not confirmed):")
+            lines += [f"  x = {c.x:.2f} {L}, {c.text}" for c in used]
         lines.append("")
         idx = np.unique(np.linspace(0, self.x.size - 1, min(stations, self.x.size)).round().astype(int))
         idx = np.union1d(idx, np.flatnonzero(np.diff(self.x) == 0))

@@ -14,10 +14,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .. import coefficients
 from .._validate import positive_float
 from ..errors import InvalidInputError
 
 __all__ = ["BackwaterExtent", "backwater_extent"]
+
+#: Default tolerance of the backwater extent, 1 % of normal depth (common practice).
+EXTENT_TOLERANCE = coefficients.value("backwater.extent_tolerance")
 
 
 @dataclass(frozen=True)
@@ -58,7 +62,7 @@ class BackwaterExtent:
                 f"depth={self.depth:.6g}, normal_depth={self.normal_depth:.6g}{where})")
 
 
-def backwater_extent(profile, tolerance: float = 0.01) -> BackwaterExtent:
+def backwater_extent(profile, tolerance: float = EXTENT_TOLERANCE) -> BackwaterExtent:
     """Extent of the backwater (or drawdown) upstream of a reach's downstream end.
 
     Walking upstream from the downstream end, the first point where

@@ -25,18 +25,19 @@ discharge a channel draws from a pool at a given level.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Annotated, ClassVar, Literal
 
 import numpy as np
 from pydantic import Field, ValidationError, model_validator
 
+from .. import coefficients
 from .._validate import invalid_input_from
 from ..controls import Control, EndState, rectangular_width
 from ..errors import ControlError, GVFlowError, InvalidInputError
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
-from .culverts import AnyBarrel, DownstreamChannel, culvert_headwater
-from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE
+from .culverts import EXIT_LOSS, AnyBarrel, DownstreamChannel, culvert_headwater
+from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE, CRITICAL_SECTION_FACTOR
 from .rating import RatingTable
 from .weirs import (
     BROAD_CRESTED_COEFFICIENT,
@@ -63,6 +64,8 @@ __all__ = [
 ]
 
 _Finite = Annotated[float, Field(allow_inf_nan=False)]
+#: Notch angles [degrees] of the Kindsvater-Shen table, the range a V-notch weir accepts.
+_NOTCH_ANGLES = coefficients.table("weir.kindsvater_shen").column("notch angle")
 
 
 class _StructureControl(Control):
@@ -217,7 +220,7 @@ class Weir(_StructureControl):
     formula: str = "rehbock"
     crest_length: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     end_contractions: int = Field(default=0, ge=0, le=2)
-    notch_angle: float | None = Field(default=None, ge=20, le=100, allow_inf_nan=False)
+    notch_angle: float | None = Field(default=None, ge=_NOTCH_ANGLES[0], le=_NOTCH_ANGLES[-1], allow_inf_nan=False)
     discharge_coefficient: float | None = Field(default=None, gt=0, le=1.5, allow_inf_nan=False)
     tailwater_level: float | None = Field(default=None, allow_inf_nan=False)
     submergence_limit: float | None = Field(default=None, gt=0, lt=1, allow_inf_nan=False)
@@ -314,6 +317,31 @@ class Weir(_StructureControl):
             out.append([line])
         return out
 
+    def coefficients(self):
+        C = coefficients
+        f = self.formula
+        if f == "rehbock":
+            out = [C.used("weir.rehbock")]
+            if self.end_contractions:
+                out.append(C.used("weir.francis_contraction"))
+        elif f == "kindsvater_carter":
+            out = [C.used("weir.kindsvater_carter_ce"), C.used("weir.kindsvater_carter_kb"),
+                   C.used("weir.kindsvater_carter_kh")]
+        elif f == "v_notch":
+            out = [C.used("weir.kindsvater_shen")]
+        else:
+            cd = self.discharge_coefficient
+            out = [C.used("weir.broad_crested_cd") if cd is None or cd == BROAD_CRESTED_COEFFICIENT
+                   else C.given("weir.broad_crested_cd", C.get("weir.broad_crested_cd").name, cd)]
+        if self.tailwater_level is not None:
+            if f != "broad_crested":
+                out.append(C.used("weir.villemonte_exponent"))
+            key = "weir.broad_crested_modular_limit" if f == "broad_crested" else "weir.max_submergence"
+            limit = self.submergence_limit
+            out.append(C.used(key) if limit is None or limit == C.value(key)
+                       else C.given(key, C.get(key).name, limit))
+        return tuple(replace(r, used_by="weir") for r in out)
+
     def plot_mark(self, bed_elevation):
         return "weir", self.crest_elevation(bed_elevation)
 
@@ -398,7 +426,7 @@ class Culvert(_StructureControl):
     tailwater_velocity: float = Field(default=0.0, ge=0, allow_inf_nan=False)
     invert_offset: float = Field(default=0.0, allow_inf_nan=False)
     allowable_headwater: float | None = Field(default=None, gt=0, allow_inf_nan=False)
-    exit_loss: float = Field(default=1.0, ge=0, le=1, allow_inf_nan=False)
+    exit_loss: float = Field(default=EXIT_LOSS, ge=0, le=1, allow_inf_nan=False)
     steps: int = Field(default=100, ge=1)
 
     @model_validator(mode="after")
@@ -453,6 +481,19 @@ class Culvert(_StructureControl):
             out.append(lines)
         return out
 
+    def coefficients(self):
+        C = coefficients
+        b = self.barrel
+        ke_default = C.table("culvert.entrance_loss").row(b.inlet).value[0]
+        out = [C.used("culvert.inlet_control", row=b.inlet),
+               C.used("culvert.unsubmerged_limit"), C.used("culvert.submerged_limit"),
+               C.used("culvert.entrance_loss", row=b.inlet) if b.entrance_loss is None or b.entrance_loss == ke_default
+               else C.given("culvert.entrance_loss", f"entrance loss ke ({b.inlet_coefficients.description})",
+                            b.entrance_loss),
+               C.used("culvert.exit_loss") if self.exit_loss == EXIT_LOSS
+               else C.given("culvert.exit_loss", C.get("culvert.exit_loss").name, self.exit_loss)]
+        return tuple(replace(r, used_by="culvert") for r in out)
+
     def plot_mark(self, bed_elevation):
         return "culvert", bed_elevation + self.invert_offset + self.barrel.height
 
@@ -482,7 +523,7 @@ class FreeOverfall(_StructureControl):
     (``distance_factor`` critical depths, 3 to 4 after Rouse 1936) upstream
     of the brink itself; the depth there is the critical depth. For a
     rectangular channel with subcritical approach the brink depth
-    0.715 yc (Rouse 1936; from memory - verify) is reported in the notes.
+    0.715 yc (Rouse 1936) is reported in the notes.
 
     Parameters
     ----------
@@ -501,7 +542,7 @@ class FreeOverfall(_StructureControl):
 
     ends: ClassVar[tuple[str, ...]] = ("downstream",)
     kind: Literal["free_overfall"] = "free_overfall"
-    distance_factor: float = Field(default=3.5, ge=CRITICAL_SECTION_DISTANCE_RANGE[0],
+    distance_factor: float = Field(default=CRITICAL_SECTION_FACTOR, ge=CRITICAL_SECTION_DISTANCE_RANGE[0],
                                    le=CRITICAL_SECTION_DISTANCE_RANGE[1], allow_inf_nan=False)
 
     def depth_at(self, state):
@@ -532,6 +573,14 @@ class FreeOverfall(_StructureControl):
                 line += f"; brink depth {yb[s]:.3f} {L} ({BRINK_DEPTH_RATIO} yc, Rouse 1936)"
             out.append([line])
         return out
+
+    def coefficients(self):
+        C = coefficients
+        key = "overfall.critical_section_factor"
+        out = [C.used("overfall.brink_ratio"),
+               C.used(key) if self.distance_factor == CRITICAL_SECTION_FACTOR
+               else C.given(key, C.get(key).name, self.distance_factor)]
+        return tuple(replace(r, used_by="free overfall") for r in out)
 
     def plot_mark(self, bed_elevation):
         return "free overfall", bed_elevation
@@ -679,7 +728,7 @@ class Pool(_StructureControl):
     ends: ClassVar[tuple[str, ...]] = ("upstream",)
     kind: Literal["pool"] = "pool"
     level: float = Field(allow_inf_nan=False)
-    entrance_loss: float = Field(default=0.0, ge=0, allow_inf_nan=False)
+    entrance_loss: float = Field(default=coefficients.value("pool.entrance_loss"), ge=0, allow_inf_nan=False)
 
     def head(self, bed_elevation: float) -> float:
         """Pool level above a bed at ``bed_elevation`` [length]."""
@@ -746,6 +795,12 @@ class Pool(_StructureControl):
                          "gvflow.solve_discharge_from_pool(reach) finds the discharge the channel draws")
             out.append([line])
         return out
+
+    def coefficients(self):
+        key = "pool.entrance_loss"
+        if self.entrance_loss == coefficients.value(key):
+            return (coefficients.used(key, used_by="pool"),)
+        return (coefficients.given(key, coefficients.get(key).name, self.entrance_loss, used_by="pool"),)
 
     def plot_mark(self, bed_elevation):
         return "pool", self.level

@@ -19,8 +19,8 @@ measured above the inlet invert, is the larger of two estimates:
   mitered inlets). Ku = 1.811 in SI and 1.0 in US units; in general
   Ku = sqrt(32.174 ft/s² / g), which reproduces both.
   Coefficients (form, K, M, c, Y) from the manual's Table A.1 (from memory -
-  verify), entrance loss coefficients ke from its Appendix C (from memory -
-  verify): :data:`INLET_TYPES`.
+  verify), entrance loss coefficients ke read in the 2001 edition's Table 12:
+  :data:`INLET_TYPES`, kept with their sources in :mod:`gvflow.coefficients`.
 
 * **Outlet control** (the barrel and tailwater limit the flow): the energy
   equation from the tailwater through the barrel to the headwater,
@@ -56,8 +56,10 @@ from typing import Annotated, Literal, NamedTuple
 import numpy as np
 from pydantic import Field
 
+from .. import coefficients
 from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
+from ..coefficients import INLET_TYPES, CulvertInlet
 from ..errors import InvalidInputError
 from ..friction import AnyRoughness
 from ..sections import AnySection, Circular
@@ -79,74 +81,11 @@ __all__ = [
 ]
 
 #: Upper limit of the unsubmerged inlet-control equations and lower limit of the submerged one (HDS-5, App. A).
-UNSUBMERGED_LIMIT = 3.5
-SUBMERGED_LIMIT = 4.0
-_G_US = 32.174  # ft/s², the gravity of the manual's US-unit equations
-
-
-class CulvertInlet(NamedTuple):
-    """Inlet-control coefficients of one inlet type (HDS-5, 3rd ed., 2012, Table A.1 and Appendix C).
-
-    Attributes
-    ----------
-    shape : str
-        ``"circular"`` or ``"box"``: the barrel the coefficients apply to.
-    form : int
-        1 or 2, the unsubmerged equation form.
-    K, M : float
-        Coefficients of the unsubmerged equation.
-    c, Y : float
-        Coefficients of the submerged equation.
-    slope_factor : float
-        Ks, multiplying the barrel slope: -0.5, or +0.7 for mitered inlets.
-    entrance_loss : float
-        Entrance loss coefficient ke used in outlet control.
-    description : str
-        Plain description of the inlet.
-    """
-
-    shape: str
-    form: int
-    K: float
-    M: float
-    c: float
-    Y: float
-    slope_factor: float
-    entrance_loss: float
-    description: str
-
-
-#: Coefficients for common inlets (HDS-5, 3rd ed., Table A.1; ke from Table C.1; from memory - verify).
-INLET_TYPES: dict[str, CulvertInlet] = {
-    "concrete_pipe_square_edge_headwall": CulvertInlet(
-        "circular", 1, 0.0098, 2.0, 0.0398, 0.67, -0.5, 0.5, "concrete pipe, square edge with headwall"),
-    "concrete_pipe_groove_end_headwall": CulvertInlet(
-        "circular", 1, 0.0018, 2.0, 0.0292, 0.74, -0.5, 0.2, "concrete pipe, groove end with headwall"),
-    "concrete_pipe_groove_end_projecting": CulvertInlet(
-        "circular", 1, 0.0045, 2.0, 0.0317, 0.69, -0.5, 0.2, "concrete pipe, groove end projecting"),
-    "corrugated_pipe_headwall": CulvertInlet(
-        "circular", 1, 0.0078, 2.0, 0.0379, 0.69, -0.5, 0.5, "corrugated metal pipe with headwall"),
-    "corrugated_pipe_mitered": CulvertInlet(
-        "circular", 1, 0.0210, 1.33, 0.0463, 0.75, 0.7, 0.7, "corrugated metal pipe mitered to the slope"),
-    "corrugated_pipe_projecting": CulvertInlet(
-        "circular", 1, 0.0340, 1.50, 0.0553, 0.54, -0.5, 0.9, "corrugated metal pipe projecting"),
-    "pipe_beveled_ring_45": CulvertInlet(
-        "circular", 1, 0.0018, 2.50, 0.0300, 0.74, -0.5, 0.2, "pipe with 45-degree beveled ring"),
-    "pipe_beveled_ring_33": CulvertInlet(
-        "circular", 1, 0.0018, 2.50, 0.0243, 0.83, -0.5, 0.2, "pipe with 33.7-degree beveled ring"),
-    "box_wingwalls_30_to_75": CulvertInlet(
-        "box", 1, 0.026, 1.0, 0.0347, 0.81, -0.5, 0.4, "box with wingwalls flared 30 to 75 degrees"),
-    "box_wingwalls_90_or_15": CulvertInlet(
-        "box", 1, 0.061, 0.75, 0.0400, 0.80, -0.5, 0.5, "box with wingwalls flared 90 or 15 degrees"),
-    "box_wingwalls_0": CulvertInlet(
-        "box", 1, 0.061, 0.75, 0.0423, 0.82, -0.5, 0.7, "box with wingwalls parallel to the barrel"),
-    "box_headwall_chamfered": CulvertInlet(
-        "box", 2, 0.515, 0.667, 0.0375, 0.79, -0.5, 0.5, "box with headwall, 19 mm (3/4 in) chamfers"),
-    "box_headwall_beveled_45": CulvertInlet(
-        "box", 2, 0.495, 0.667, 0.0314, 0.82, -0.5, 0.2, "box with headwall, 45-degree bevels"),
-    "box_headwall_beveled_33": CulvertInlet(
-        "box", 2, 0.486, 0.667, 0.0252, 0.865, -0.5, 0.2, "box with headwall, 33.7-degree bevels"),
-}
+UNSUBMERGED_LIMIT = coefficients.value("culvert.unsubmerged_limit")
+SUBMERGED_LIMIT = coefficients.value("culvert.submerged_limit")
+_G_US = coefficients.value("culvert.gravity_us")  # ft/s², the gravity of the manual's US-unit equations
+#: Default exit loss coefficient kx of outlet control.
+EXIT_LOSS = coefficients.value("culvert.exit_loss")
 
 _Pos = Annotated[float, Field(gt=0, allow_inf_nan=False)]
 _Finite = Annotated[float, Field(allow_inf_nan=False)]
@@ -556,7 +495,7 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
     return hw, h_out, h_in, flow
 
 
-def outlet_control_headwater(barrel, discharge, tailwater, *, tailwater_velocity=0.0, exit_loss: float = 1.0,
+def outlet_control_headwater(barrel, discharge, tailwater, *, tailwater_velocity=0.0, exit_loss: float = EXIT_LOSS,
                              steps: int = 100, units: UnitsLike = "SI") -> OutletControl:
     """Headwater depth above the inlet invert under outlet control.
 
@@ -667,7 +606,7 @@ class CulvertHeadwater:
 
 
 def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: DownstreamChannel | None = None,
-                      tailwater_velocity=0.0, allowable_headwater=None, exit_loss: float = 1.0, steps: int = 100,
+                      tailwater_velocity=0.0, allowable_headwater=None, exit_loss: float = EXIT_LOSS, steps: int = 100,
                       units: UnitsLike = "SI") -> CulvertHeadwater:
     """Governing headwater of a culvert: the larger of inlet and outlet control.
 

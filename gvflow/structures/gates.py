@@ -2,8 +2,8 @@
 
 Free flow: the jet leaves under the gate and contracts to the vena contracta
 depth y2 = Cc a; energy is conserved from the upstream section to the vena
-contracta (Henderson 1966, *Open Channel Flow*, ch. 6, sluice gates; from
-memory - verify), which gives
+contracta (Henderson 1966, *Open Channel Flow*, ch. 6, sluice gates; the
+relation as read in Ponce's notes and Novak et al. 2007, eq. 6.4), which gives
 
     q = Cd a sqrt(2 g y1),  Cd = Cc / sqrt(1 + Cc a / y1).
 
@@ -28,9 +28,11 @@ single-valued and continuous across the limit; :func:`gate_discharge`
 (upstream depth given) returns the free flow while the tailwater does not
 exceed the sequent depth of the free jet, and the submerged root above it.
 
-Contraction coefficient: Cc = 0.61 by default (Henderson 1966 gives about
-0.61 for a vertical sharp-edged gate over the usual range of y1/a, 0.598 to
-0.611; from memory - verify); user-settable.
+Contraction coefficient: Cc = 0.61 by default, user-settable. Ponce (SDSU
+online notes on the sluice-gate equation) gives Cc between 0.598 and 0.611
+and recommends 0.61 after Henderson (1966); Novak et al. (2007, *Hydraulic
+Structures*, 4th ed., eq. 6.4) give 0.6 to 0.61 for a vertical gate. Stored
+addresses in :mod:`gvflow.coefficients`.
 """
 
 from __future__ import annotations
@@ -39,6 +41,7 @@ import math
 
 import numpy as np
 
+from .. import coefficients
 from .._roots import bracketed_root
 from .._validate import positive_array, scalar_or_array
 from ..errors import InvalidInputError, NoSolutionError
@@ -55,8 +58,9 @@ __all__ = [
     "gate_upstream_depth",
 ]
 
-#: Default contraction coefficient of a vertical sluice gate (Henderson 1966; from memory - verify).
-DEFAULT_CONTRACTION = 0.61
+#: Default contraction coefficient of a vertical sluice gate, 0.61 (Henderson 1966, as given by Ponce, SDSU notes,
+#: and Novak et al. 2007, *Hydraulic Structures*, eq. 6.4; sources in gvflow.coefficients).
+DEFAULT_CONTRACTION = coefficients.value("gate.contraction")
 
 
 def _contraction(contraction) -> float:
@@ -96,8 +100,8 @@ def gate_discharge_coefficient(upstream_depth, opening, contraction: float = DEF
     """Free-flow discharge coefficient of a sluice gate, Cd = Cc / sqrt(1 + Cc a / y1) [-].
 
     From energy conservation between the upstream section and the vena
-    contracta, with q = Cd a sqrt(2 g y1) (Henderson 1966, ch. 6; from
-    memory - verify).
+    contracta, with q = Cd a sqrt(2 g y1) (Henderson 1966, ch. 6; as given by
+    Ponce's SDSU notes and Novak et al. 2007, eq. 6.4).
 
     Parameters
     ----------

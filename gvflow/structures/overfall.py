@@ -7,7 +7,9 @@ hydrostatic. For a horizontal or mild rectangular channel Rouse (1936)
 measured a brink depth of about 0.715 times the critical depth, with the
 critical section roughly 3 to 4 critical depths upstream of the brink
 (Rouse, H. (1936). Discharge characteristics of the free overfall. *Civil
-Engineering* 6(4), 257-260; from memory - verify). The relation also serves
+Engineering* 6(4), 257-260; as given by Thandaveswara, IIT Madras lecture
+notes on hydraulics, which add 0.705 for a confined nappe; stored address in
+:mod:`gvflow.coefficients`). The relation also serves
 as a rough discharge measurement (the end-depth method).
 
 For profile computations the control is the critical depth at the critical
@@ -18,6 +20,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .. import coefficients
 from .._validate import positive_array, scalar_or_array
 from ..errors import InvalidInputError
 from ..units import UnitsLike, resolve_units
@@ -30,17 +33,19 @@ __all__ = [
     "critical_section_distance",
 ]
 
-#: Brink depth over critical depth, rectangular channel, subcritical approach (Rouse 1936; from memory - verify).
-BRINK_DEPTH_RATIO = 0.715
-#: Distance of the critical section upstream of the brink, in critical depths (Rouse 1936; from memory - verify).
-CRITICAL_SECTION_DISTANCE_RANGE = (3.0, 4.0)
+#: Brink depth over critical depth, rectangular channel, subcritical approach (Rouse 1936).
+BRINK_DEPTH_RATIO = coefficients.value("overfall.brink_ratio")
+#: Distance of the critical section upstream of the brink, in critical depths (Rouse 1936).
+CRITICAL_SECTION_DISTANCE_RANGE = coefficients.value("overfall.critical_section_distance")
+#: Default distance of the critical section upstream of the brink, the middle of that range (common practice).
+CRITICAL_SECTION_FACTOR = coefficients.value("overfall.critical_section_factor")
 
 
 def brink_depth(discharge, width, units: UnitsLike = "SI"):
     """Depth at the brink of a free overfall in a rectangular channel [length].
 
     yb = 0.715 yc with yc = (q²/g)^(1/3), q = Q/b; for a horizontal or mild
-    channel with subcritical approach flow (Rouse 1936; from memory - verify).
+    channel with subcritical approach flow (Rouse 1936).
 
     Parameters
     ----------
@@ -64,7 +69,7 @@ def brink_depth(discharge, width, units: UnitsLike = "SI"):
 def discharge_from_brink_depth(depth, width, units: UnitsLike = "SI"):
     """Discharge of a rectangular free overfall from its measured brink depth (end-depth method).
 
-    Q = b sqrt(g) (yb / 0.715)^1.5 [length³/s] (Rouse 1936; from memory - verify).
+    Q = b sqrt(g) (yb / 0.715)^1.5 [length³/s] (Rouse 1936).
 
     Examples
     --------
@@ -78,11 +83,11 @@ def discharge_from_brink_depth(depth, width, units: UnitsLike = "SI"):
     return scalar_or_array(b * np.sqrt(u.g) * (yb / BRINK_DEPTH_RATIO) ** 1.5)
 
 
-def critical_section_distance(critical_depth, factor: float = 3.5):
+def critical_section_distance(critical_depth, factor: float = CRITICAL_SECTION_FACTOR):
     """Distance from the brink upstream to the critical section of a free overfall [length].
 
     ``factor`` times the critical depth; Rouse (1936) places the critical
-    section about 3 to 4 critical depths upstream (from memory - verify);
+    section about 3 to 4 critical depths upstream;
     the default 3.5 is the middle of that range (common practice).
 
     Parameters

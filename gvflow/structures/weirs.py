@@ -29,6 +29,7 @@ import math
 
 import numpy as np
 
+from .. import coefficients
 from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
 from ..errors import InvalidInputError, NoSolutionError
@@ -56,31 +57,33 @@ __all__ = [
 ]
 
 #: Exponent 0.385 of Villemonte's submergence relation (Villemonte 1947).
-VILLEMONTE_EXPONENT = 0.385
+VILLEMONTE_EXPONENT = coefficients.value("weir.villemonte_exponent")
 #: Largest tailwater/upstream head ratio at which the Villemonte reduction is applied (common practice).
-DEFAULT_MAX_SUBMERGENCE = 0.9
+DEFAULT_MAX_SUBMERGENCE = coefficients.value("weir.max_submergence")
 #: Discharge coefficient of a rectangular-profile (square-edged) broad-crested weir, valid for
 #: 0.08 <= H1/L <= 0.33 (Bos 1989, *Discharge Measurement Structures*, §4; from memory - verify).
-BROAD_CRESTED_COEFFICIENT = 0.848
+BROAD_CRESTED_COEFFICIENT = coefficients.value("weir.broad_crested_cd")
 #: Modular limit h2/h1 of a rectangular-profile broad-crested weir (Bos 1989; from memory - verify).
-BROAD_CRESTED_MODULAR_LIMIT = 0.66
+BROAD_CRESTED_MODULAR_LIMIT = coefficients.value("weir.broad_crested_modular_limit")
+# Rehbock's Cd = a + b h/P (Henderson 1966; from memory - verify) and Francis's contraction factor.
+_REHBOCK_A, _REHBOCK_B = coefficients.value("weir.rehbock")
+_FRANCIS = coefficients.value("weir.francis_contraction")
 
 # Kindsvater-Carter coefficients against the contraction ratio b/B: Ce = C2 + C1 h1/P and the
 # width correction kb [m]; head correction kh = 0.001 m. As tabulated in USBR (2001), *Water
-# Measurement Manual*, 3rd ed., ch. 7 and ISO 1438 (from memory - verify).
-_KC_RATIO = np.array([0.0, 0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 1.0])
-_KC_C2 = np.array([0.587, 0.588, 0.589, 0.590, 0.591, 0.592, 0.593, 0.595, 0.597, 0.599, 0.602])
-_KC_C1 = np.array([-0.0020, -0.0023, -0.0018, 0.0020, 0.0058, 0.011, 0.018, 0.030, 0.045, 0.064, 0.075])
-_KC_KB_M = np.array([0.0024, 0.0024, 0.0024, 0.0025, 0.0027, 0.0030, 0.0036, 0.0042, 0.0041, 0.0029,
-                     -0.0009])
-_KC_KH_M = 0.001
+# Measurement Manual*, 3rd ed., ch. 7 and ISO 1438; rows and their sources in gvflow.coefficients.
+_KC_RATIO = np.array(coefficients.table("weir.kindsvater_carter_ce").column("b/B"))
+_KC_C2 = np.array(coefficients.table("weir.kindsvater_carter_ce").column("C2"))
+_KC_C1 = np.array(coefficients.table("weir.kindsvater_carter_ce").column("C1"))
+_KC_KB_M = np.array(coefficients.table("weir.kindsvater_carter_kb").column("kb"))
+_KC_KH_M = coefficients.value("weir.kindsvater_carter_kh")
 
 # Kindsvater-Shen coefficients of fully contracted V-notch weirs against the notch angle [deg]:
 # effective discharge coefficient Ce and head correction kh [m] (Shen 1981, USGS Water-Supply
 # Paper, as tabulated by Blevins 1984, *Applied Fluid Dynamics Handbook*).
-_KS_ANGLE = np.array([20.0, 40.0, 60.0, 80.0, 100.0])
-_KS_CE = np.array([0.59, 0.58, 0.575, 0.575, 0.58])
-_KS_KH_M = np.array([0.0028, 0.0017, 0.0012, 0.001, 0.001])
+_KS_ANGLE = np.array(coefficients.table("weir.kindsvater_shen").column("notch angle"))
+_KS_CE = np.array(coefficients.table("weir.kindsvater_shen").column("Ce"))
+_KS_KH_M = np.array(coefficients.table("weir.kindsvater_shen").column("kh"))
 
 
 # ---------------------------------------------------------------------------
@@ -249,12 +252,12 @@ def rehbock_coefficient(head, crest_height):
     """
     h = positive_array(head, "head")
     p = _crest_height(crest_height)
-    return scalar_or_array(0.611 + 0.08 * h / p)
+    return scalar_or_array(_REHBOCK_A + _REHBOCK_B * h / p)
 
 
 def _rehbock_free(h, p, b, nc, g):
-    le = b - 0.1 * nc * h
-    return (0.611 + 0.08 * h / p) * (2.0 / 3.0) * math.sqrt(2.0 * g) * le * h ** 1.5
+    le = b - _FRANCIS * nc * h
+    return (_REHBOCK_A + _REHBOCK_B * h / p) * (2.0 / 3.0) * math.sqrt(2.0 * g) * le * h ** 1.5
 
 
 def _contractions(end_contractions) -> int:
@@ -264,7 +267,7 @@ def _contractions(end_contractions) -> int:
 
 
 def _check_effective_length(b, nc, h):
-    le = b - 0.1 * nc * h
+    le = b - _FRANCIS * nc * h
     if np.any(le <= 0):
         raise NoSolutionError(
             f"the head {float(np.max(h)):g} is too large for a crest {float(np.min(b)):g} wide with {nc} end "
@@ -377,8 +380,8 @@ def rectangular_weir_head(discharge, crest_width, crest_height, *, end_contracti
     def free(h):
         return _rehbock_free(h, p, b, nc, u.g)
 
-    # With contractions Q(h) peaks where d/dh[(b - 0.1 n h) h^1.5] = 0, at h = 6 b / n.
-    hmax = None if nc == 0 else 6.0 * b / nc
+    # With contractions Q(h) peaks where d/dh[(b - f n h) h^1.5] = 0, at h = 0.6 b / (f n) (6 b / n for f = 0.1).
+    hmax = None if nc == 0 else 0.6 * b / (_FRANCIS * nc)
     h = _head_from_discharge(free, q, tw, 1.5, max_submergence, "rectangular weir head", hmax=hmax)
     _check_effective_length(b, nc, h)
     return scalar_or_array(h)
@@ -413,7 +416,10 @@ def kindsvater_carter_coefficients(width_ratio, units: UnitsLike = "SI"):
     Kindsvater, C. E. & Carter, R. W. (1957). Discharge characteristics of
     rectangular thin-plate weirs. *J. Hydraulics Div. ASCE* 83(HY6).
     USBR (2001). *Water Measurement Manual*, 3rd ed., ch. 7 (table of C1, C2
-    and kb against b/B; from memory - verify).
+    and kb against b/B; from memory - verify). The rows b/B = 1 (C2 0.602,
+    C1 0.075) and b/B = 0.5 (0.592, 0.011) were read in Novak et al. (2007),
+    *Hydraulic Structures*, 4th ed., Table 8.1; sources per row in
+    :mod:`gvflow.coefficients`.
 
     Examples
     --------
