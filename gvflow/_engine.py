@@ -51,7 +51,13 @@ def mode() -> str:
 
 
 def _cache_is_warm() -> bool:
-    cache = Path(__file__).with_name("_core") / "__pycache__"
+    """Whether numba's on-disk cache already holds kernels of the core (a cheap look for index files)."""
+    here = Path(__file__).with_name("_core")
+    override = os.environ.get("NUMBA_CACHE_DIR")
+    if override:  # numba mirrors the source folder's path under the cache folder
+        cache = Path(override) / here.resolve().relative_to(here.resolve().anchor)
+    else:
+        cache = here / "__pycache__"
     try:
         return any(name.endswith(".nbi") for name in os.listdir(cache))
     except OSError:

@@ -23,7 +23,7 @@ from typing import Annotated, ClassVar, Literal
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, PrivateAttr, ValidationError, field_validator
 
-from ._core.geometry import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed
+from ._core.codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed
 from ._core.records import Fluid
 from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array

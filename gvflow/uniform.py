@@ -13,7 +13,7 @@ from typing import Literal
 
 import numpy as np
 
-from ._core.flow import NO_ROOT, NOT_CONVERGED
+from ._core.codes import NO_ROOT, NOT_CONVERGED
 from ._core.records import fluid
 from ._engine import core
 from ._roots import bracketed_root, expand_upper

@@ -18,12 +18,9 @@ import math
 import numpy as np
 
 from ._jit import kernel
+from .codes import NO_ROOT, NOT_CONVERGED, SOLVED
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
 from .resistance import conveyance, dlnsf_dy, friction_slope, froude_squared, velocity_coefficients
-
-SOLVED = 0
-NO_ROOT = 1
-NOT_CONVERGED = 2
 
 _RTOL = 1e-14
 

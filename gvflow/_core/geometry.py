@@ -43,12 +43,7 @@ import math
 import numpy as np
 
 from ._jit import kernel
-
-TRAPEZOID = 0
-WIDE = 1
-CIRCLE = 2
-PARABOLA = 3
-SURVEYED = 4
+from .codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed  # noqa: F401
 
 # d_k = c_k * 2/((2k+3)(2k+5)), c_k the coefficients of sqrt(1 - s) = sum c_k s^k: the series
 # of a shallow circular segment's first moment (see _circle_moment).
@@ -270,16 +265,3 @@ def breakpoint_depths(kind, par):
             out[k] = z[j]
             k += 1
     return out[:k]
-
-
-def pack_surveyed(offset, elevation, zone_edges=()) -> np.ndarray:
-    """Parameter array of a surveyed section (see the module notes); inputs already validated.
-
-    ``elevation`` is absolute; the packed ground is measured above its lowest point.
-    """
-    x = np.asarray(offset, dtype=float)
-    z = np.asarray(elevation, dtype=float)
-    z = z - z.min()
-    edges = np.asarray(zone_edges, dtype=float).reshape(-1)
-    bounds = np.concatenate(([x[0]], edges, [x[-1]]))
-    return np.concatenate(([x.size, bounds.size - 1], x, z, bounds)).astype(float)

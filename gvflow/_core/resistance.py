@@ -26,20 +26,8 @@ from __future__ import annotations
 import math
 
 from ._jit import kernel
+from .codes import AVERAGES, AVG_ARITHMETIC, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
-
-MANNING = 0
-CHEZY = 1
-DARCY = 2
-
-# friction-slope averages between two stations
-AVG_ARITHMETIC = 0
-AVG_GEOMETRIC = 1
-AVG_HARMONIC = 2
-AVG_CONVEYANCE = 3
-#: Public names of the friction-slope averages; "conveyance" is the default everywhere.
-AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
-            "conveyance": AVG_CONVEYANCE}
 
 LAMINAR_LIMIT = 2000.0
 

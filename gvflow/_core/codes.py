@@ -1,0 +1,48 @@
+"""Codes and parameter layouts shared by the core and its callers (private, plain Python).
+
+Importing this module compiles nothing, so the public classes can name kinds,
+laws and statuses without loading numba.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+# section kinds (parameter layouts in gvflow._core.geometry)
+TRAPEZOID = 0
+WIDE = 1
+CIRCLE = 2
+PARABOLA = 3
+SURVEYED = 4
+
+# resistance laws
+MANNING = 0
+CHEZY = 1
+DARCY = 2
+
+# friction-slope averages between two stations
+AVG_ARITHMETIC = 0
+AVG_GEOMETRIC = 1
+AVG_HARMONIC = 2
+AVG_CONVEYANCE = 3
+#: Public names of the friction-slope averages; "conveyance" is the default everywhere.
+AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
+            "conveyance": AVG_CONVEYANCE}
+
+# status of a root
+SOLVED = 0
+NO_ROOT = 1
+NOT_CONVERGED = 2
+
+
+def pack_surveyed(offset, elevation, zone_edges=()) -> np.ndarray:
+    """Parameter array of a surveyed section (layout in :mod:`gvflow._core.geometry`); inputs already validated.
+
+    ``elevation`` is absolute; the packed ground is measured above its lowest point.
+    """
+    x = np.asarray(offset, dtype=float)
+    z = np.asarray(elevation, dtype=float)
+    z = z - z.min()
+    edges = np.asarray(zone_edges, dtype=float).reshape(-1)
+    bounds = np.concatenate(([x[0]], edges, [x[-1]]))
+    return np.concatenate(([x.size, bounds.size - 1], x, z, bounds)).astype(float)
