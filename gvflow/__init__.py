@@ -57,6 +57,7 @@ from .structures import (
     backwater_extent,
     solve_discharge_from_pool,
 )
+from .survey import read_section_csv
 from .uncertainty import MonteCarloResult, Uncertain, monte_carlo
 from .uniform import (
     CRITICAL_SLOPE_TOLERANCE,
@@ -98,7 +99,7 @@ __all__ = [
     # coefficients with their sources
     "coefficients",
     # reach files, tables, plots
-    "read_reach", "write_reach", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach", "plot_profile",
+    "read_reach", "write_reach", "read_section_csv", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach", "plot_profile",
     # units and errors
     "Units", "SI", "US",
     "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",

@@ -339,6 +339,20 @@ class Parabolic(Section):
         return PARABOLA, np.array([self._c()])
 
 
+class _Packed:
+    """A parameter array held by a model: compared by value, so models compare by their fields."""
+
+    __slots__ = ("array",)
+
+    def __init__(self, array: np.ndarray):
+        self.array = array
+
+    def __eq__(self, other):
+        return isinstance(other, _Packed) and np.array_equal(self.array, other.array)
+
+    __hash__ = None
+
+
 class Surveyed(Section):
     """Cross-section given by surveyed ground points, with zones of different roughness.
 
@@ -383,7 +397,7 @@ class Surveyed(Section):
     roughness: list[Manning | Chezy]
     zone_edges: list[Annotated[float, Field(allow_inf_nan=False)]] = Field(default_factory=list)
 
-    _packed: np.ndarray = PrivateAttr()
+    _packed: _Packed = PrivateAttr()
 
     @field_validator("roughness", mode="before")
     @classmethod
@@ -427,7 +441,7 @@ class Surveyed(Section):
         if len({type(r) for r in self.roughness}) > 1:
             raise InvalidInputError("Surveyed: every zone's roughness must use the same law (all Manning's n or "
                                     "all Chezy's C)")
-        self._packed = pack_surveyed(x, z, edges)
+        self._packed = _Packed(pack_surveyed(x, z, edges))
 
     @property
     def invert(self) -> float:
@@ -445,7 +459,7 @@ class Surveyed(Section):
         return len(self.roughness)
 
     def core_params(self):
-        return SURVEYED, self._packed
+        return SURVEYED, self._packed.array
 
     def _coefficients(self, y):
         y = self._depth(y)

@@ -1,0 +1,147 @@
+"""Surveyed sections in the public functions, and section files.
+
+References: prismatic equivalence (a trapezoid entered as points is the same channel,
+exact); Chow's trapezoid (Chow 1959, Examples 10-1/10-2: yn 3.36 ft, yc 2.15 ft with
+alpha 1; from memory) in US units; the rectangle's closed-form critical depth; the
+defining equations of normal depth, critical flow and the coefficients.
+"""
+
+import math
+
+import numpy as np
+import pytest
+
+import gvflow as gv
+
+TRAP = gv.Trapezoidal(bottom_width=3.0, side_slope=1.5)
+TRAP_POINTS = gv.Surveyed(offset=[-15, 0, 3, 18], elevation=[110, 100, 100, 110], roughness=0.018)
+COMPOUND = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
+                       roughness=[0.05, 0.03, 0.05], zone_edges=[0, 10])
+
+
+def test_trapezoid_as_points_reproduces_every_prismatic_result():
+    y = np.linspace(0.05, 9.0, 40)
+    for name in ("area", "wetted_perimeter", "top_width", "hydraulic_radius", "first_moment"):
+        np.testing.assert_allclose(getattr(TRAP_POINTS, name)(y), getattr(TRAP, name)(y), rtol=1e-12)
+    for q in (0.5, 12.0, 150.0):
+        assert gv.normal_depth(TRAP_POINTS, q, 0.0008) == pytest.approx(gv.normal_depth(TRAP, q, 0.0008, 0.018),
+                                                                         rel=1e-12)
+        assert gv.critical_depth(TRAP_POINTS, q) == pytest.approx(gv.critical_depth(TRAP, q), rel=1e-12)
+        assert gv.froude_number(TRAP_POINTS, q, 1.0) == pytest.approx(gv.froude_number(TRAP, q, 1.0), rel=1e-12)
+        assert gv.specific_force(TRAP_POINTS, q, 1.0) == pytest.approx(gv.specific_force(TRAP, q, 1.0), rel=1e-12)
+    assert gv.critical_slope(TRAP_POINTS, 12.0) == pytest.approx(gv.critical_slope(TRAP, 12.0, 0.018), rel=1e-11)
+
+
+def test_chows_trapezoid_entered_as_points_in_us_units():
+    # Chow 1959, Examples 10-1/10-2 (from memory): b = 20 ft, z = 2, n = 0.025, S0 = 0.0016,
+    # Q = 400 cfs; yn 3.36 ft, yc 2.15 ft (alpha 1, g = 32.174 ft/s²)
+    sec = gv.Surveyed(offset=[0, 20, 40, 60], elevation=[10, 0, 0, 10], roughness=0.025)
+    assert gv.normal_depth(sec, 400.0, 0.0016, units="US") == pytest.approx(3.36, abs=0.005)
+    assert gv.critical_depth(sec, 400.0, units="US") == pytest.approx(2.15, abs=0.005)
+
+
+def test_compound_section_critical_depths():
+    # two minima of specific energy at 80 m³/s; the lower one in the rectangular main channel
+    # equals (q²/g)^(1/3) exactly (closed form)
+    ycs = gv.critical_depths(COMPOUND, 80.0)
+    assert len(ycs) == 2
+    assert ycs[0] == pytest.approx((8.0 ** 2 / 9.80665) ** (1 / 3), rel=1e-12)
+    for y in ycs:
+        assert gv.froude_number(COMPOUND, 80.0, y) == pytest.approx(1.0, abs=1e-9)
+    with pytest.warns(gv.GVFlowWarning, match="2 critical depths"):
+        yc = gv.critical_depth(COMPOUND, 80.0)
+    # the one returned has the least specific energy
+    e = gv.specific_energy(COMPOUND, 80.0, ycs)
+    assert yc == ycs[int(np.argmin(e))]
+    assert len(gv.critical_depths(COMPOUND, 20.0)) == 1
+
+
+def test_specific_energy_uses_the_sections_own_alpha():
+    y, q = 2.6, 80.0
+    alpha = COMPOUND.energy_coefficient(y)
+    a = COMPOUND.area(y)
+    assert alpha > 1.5  # near bankfull the zone velocities differ widely
+    assert gv.specific_energy(COMPOUND, q, y) == pytest.approx(y + alpha * q * q / (2 * 9.80665 * a * a), rel=1e-14)
+    assert gv.specific_force(COMPOUND, q, y) == pytest.approx(
+        COMPOUND.momentum_coefficient(y) * q * q / (9.80665 * a) + COMPOUND.first_moment(y), rel=1e-14)
+
+
+def test_coefficients_from_measured_zone_velocities():
+    # alpha = sum V_i² Q_i A²/Q³ and beta = sum V_i Q_i A/Q² (Chow 1959, §2-7): the conveyance form
+    # equals this with Q_i = Q K_i/K and V_i = Q_i/A_i (exact identity)
+    y = 3.0
+    zones = [gv.Surveyed(offset=o, elevation=e, roughness=n) for o, e, n in (
+        ([-100, -100, 0], [5, 2, 2], 0.05), ([0, 0, 10, 10], [2, 0, 0, 2], 0.03), ([10, 110, 110], [2, 2, 5], 0.05))]
+    # each zone on its own, walls that are division lines removed by hand: areas and perimeters exact
+    a = [100.0 * 1.0, 10.0 * 3.0, 100.0 * 1.0]
+    p = [100.0 + 1.0, 10.0 + 2 * 2.0, 100.0 + 1.0]
+    n = [0.05, 0.03, 0.05]
+    k = [ai ** (5 / 3) / pi ** (2 / 3) / ni for ai, pi, ni in zip(a, p, n, strict=True)]
+    q = sum(k)  # discharge at Sf = 1; any value gives the same coefficients
+    v = [ki / ai for ki, ai in zip(k, a, strict=True)]
+    at = sum(a)
+    alpha = sum(vi * vi * ki for vi, ki in zip(v, k, strict=True)) * at ** 2 / q ** 3
+    beta = sum(vi * ki for vi, ki in zip(v, k, strict=True)) * at / q ** 2
+    assert COMPOUND.energy_coefficient(y) == pytest.approx(alpha, rel=1e-12)
+    assert COMPOUND.momentum_coefficient(y) == pytest.approx(beta, rel=1e-12)
+    assert all(z.energy_coefficient(1.5) == 1.0 for z in zones)
+
+
+def test_roughness_belongs_to_the_section():
+    with pytest.raises(gv.InvalidInputError, match="carries its own roughness"):
+        gv.normal_depth(TRAP_POINTS, 12.0, 0.001, 0.02)
+    with pytest.raises(gv.InvalidInputError, match="roughness is required"):
+        gv.normal_depth(TRAP, 12.0, 0.001)
+
+
+@pytest.mark.parametrize("kwargs, match", [
+    (dict(offset=[0, 1], elevation=[1, 0], roughness=0.03), "at least 3"),
+    (dict(offset=[0, 2, 1], elevation=[1, 0, 1], roughness=0.03), r"offset\[2\] = 1 is less than"),
+    (dict(offset=[0, 1, 2], elevation=[1, 0], roughness=0.03), "one value per offset"),
+    (dict(offset=[0, 1, 2], elevation=[1, 0, 1], roughness=[0.03, 0.04]), "one value per zone"),
+    (dict(offset=[0, 1, 2], elevation=[1, 0, 1], roughness=[0.03, 0.04], zone_edges=[2.0]), "strictly inside"),
+    (dict(offset=[0, 1, 2], elevation=[1, 0, 1], roughness=[0.03, gv.Chezy(40.0)], zone_edges=[1.0]), "same law"),
+    (dict(offset=[0, 1, 2], elevation=[1, 0, 1], roughness=gv.DarcyWeisbach(0.001)), "not Darcy"),
+    (dict(offset=[0, 1, 2], elevation=[1, 1, 1], roughness=0.03), "flat line"),
+    (dict(offset=[0, 1, 2], elevation=[1, math.nan, 1], roughness=0.03), "elevation"),
+])
+def test_bad_surveyed_input_names_the_field(kwargs, match):
+    with pytest.raises(gv.InvalidInputError, match=match):
+        gv.Surveyed(**kwargs)
+
+
+def test_section_csv_with_a_roughness_column(tmp_path):
+    path = tmp_path / "xs.csv"
+    path.write_text("Offset [m],Elevation [m],Roughness\n-100,5,0.05\n-100,2,0.05\n0,2,0.03\n0,0,0.03\n"
+                    "10,0,0.03\n10,2,0.05\n110,2,0.05\n110,5,\n")
+    sec = gv.read_section_csv(path)
+    assert sec.zone_edges == [0.0, 10.0]
+    assert [r.n for r in sec.roughness] == [0.05, 0.03, 0.05]
+    assert sec.area(3.0) == pytest.approx(COMPOUND.area(3.0))
+    assert gv.normal_depth(sec, 80.0, 0.001) == pytest.approx(gv.normal_depth(COMPOUND, 80.0, 0.001), rel=1e-13)
+
+
+def test_section_csv_with_a_zone_column_and_without():
+    text = "offset,elevation,zone\n0,3,bank\n4,1,bank\n6,0,main\n9,0.2,main\n12,3,bank\n"
+    sec = gv.read_section_csv(text, roughness={"bank": 0.06, "main": 0.035})
+    assert sec.zone_edges == [6.0]
+    assert [r.n for r in sec.roughness] == [0.06, 0.035]
+    plain = gv.read_section_csv("offset,elevation\n0,3\n4,1\n6,0\n9,0.2\n12,3\n", roughness=0.04)
+    assert plain.zone_count == 1
+
+
+@pytest.mark.parametrize("text, match", [
+    ("offset,height\n0,1\n1,0\n2,1\n", "no 'elevation' column"),
+    ("offset,elevation\n0,1\n2,0\n1,1\n", "line 4: offset 1 is less than the 2"),
+    ("offset,elevation\n0,1\n1,x\n2,1\n", "line 3: elevation 'x' is not a number"),
+    ("offset,elevation\n0,1\n1,0\n", "at least 3 ground points"),
+    ("offset,elevation\n0,1\n1,0\n2,1\n", "no roughness or zone column"),
+])
+def test_section_csv_errors_name_the_line(text, match):
+    with pytest.raises(gv.InvalidInputError, match=match):
+        gv.read_section_csv(text)
+
+
+def test_surveyed_round_trips_through_json():
+    back = gv.Surveyed.model_validate_json(COMPOUND.model_dump_json())
+    assert back == COMPOUND and back.area(2.5) == COMPOUND.area(2.5)
