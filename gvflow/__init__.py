@@ -99,7 +99,8 @@ __all__ = [
     # coefficients with their sources
     "coefficients",
     # reach files, tables, plots
-    "read_reach", "write_reach", "read_section_csv", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach", "plot_profile",
+    "read_reach", "write_reach", "read_section_csv", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach",
+    "plot_profile",
     # units and errors
     "Units", "SI", "US",
     "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",
