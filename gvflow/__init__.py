@@ -32,6 +32,7 @@ from .friction import (
 from .io import demo_reach, parse_reach, reach_schema, read_reach, write_profile_csv, write_reach
 from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
 from .plot import plot_profile
+from .section_plot import plot_section
 from .profiles import (
     PROFILE_SHAPES,
     ProfileTrace,
@@ -100,7 +101,7 @@ __all__ = [
     "coefficients",
     # reach files, tables, plots
     "read_reach", "write_reach", "read_section_csv", "parse_reach", "reach_schema", "write_profile_csv", "demo_reach",
-    "plot_profile",
+    "plot_profile", "plot_section",
     # units and errors
     "Units", "SI", "US",
     "GVFlowError", "InvalidInputError", "NoSolutionError", "ConvergenceError", "ControlError",

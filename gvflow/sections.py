@@ -24,7 +24,7 @@ import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, PrivateAttr, ValidationError, field_validator
 
 from ._core.codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed
-from ._core.records import Fluid
+from ._core.records import Fluid, fluid
 from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array
 from .errors import InvalidInputError
@@ -468,6 +468,26 @@ class Surveyed(Section):
         core("arrays", flat.size * self.zone_count).coefficients_many(
             core_channel(self, None), Fluid(1.0, 1.0, 1e-6), flat, out)
         return out[0].reshape(y.shape), out[1].reshape(y.shape)
+
+    def zone_flow(self, depth: float, discharge: float, units="SI") -> dict:
+        """How the discharge divides among the zones at one depth (vertical division lines).
+
+        Each zone carries Q_i = Q K_i/K, in proportion to its conveyance (Chow 1959, §6-7).
+
+        Returns
+        -------
+        dict of ndarray
+            One value per zone, left to right: ``area``, ``wetted_perimeter``, ``top_width``,
+            ``conveyance``, ``discharge`` and ``velocity``.
+        """
+        from .units import resolve_units
+
+        y = float(self._depth(depth))
+        q = float(positive_array(discharge, "discharge"))
+        out = np.empty((self.zone_count, 6))
+        core("arrays", self.zone_count).zone_table(core_channel(self, None), fluid(resolve_units(units)), q, y, out)
+        names = ("area", "wetted_perimeter", "top_width", "conveyance", "discharge", "velocity")
+        return {name: out[:, i].copy() for i, name in enumerate(names)}
 
     def energy_coefficient(self, y):
         """Energy (Coriolis) coefficient alpha at depth ``y`` from the zone conveyances [-].

@@ -145,3 +145,28 @@ def test_section_csv_errors_name_the_line(text, match):
 def test_surveyed_round_trips_through_json():
     back = gv.Surveyed.model_validate_json(COMPOUND.model_dump_json())
     assert back == COMPOUND and back.area(2.5) == COMPOUND.area(2.5)
+
+
+def test_zone_flow_divides_the_discharge_by_conveyance():
+    flow = COMPOUND.zone_flow(3.0, 80.0)
+    assert flow["discharge"].sum() == pytest.approx(80.0, rel=1e-14)  # continuity (exact)
+    np.testing.assert_allclose(flow["area"], [100.0, 30.0, 100.0], rtol=1e-14)  # hand areas
+    np.testing.assert_allclose(flow["wetted_perimeter"], [101.0, 14.0, 101.0], rtol=1e-14)
+    np.testing.assert_allclose(flow["velocity"] * flow["area"], flow["discharge"], rtol=1e-14)
+    # Manning per zone by hand: K_i = A_i^(5/3) P_i^(-2/3) / n_i
+    np.testing.assert_allclose(flow["conveyance"], [100 ** (5 / 3) / 101 ** (2 / 3) / 0.05,
+                                                    30 ** (5 / 3) / 14 ** (2 / 3) / 0.03,
+                                                    100 ** (5 / 3) / 101 ** (2 / 3) / 0.05], rtol=1e-13)
+
+
+def test_section_plot_draws_levels_and_zone_velocities():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    ax = gv.plot_section(COMPOUND, 3.0, discharge=80.0)
+    texts = [t.get_text() for t in ax.texts]
+    assert len(texts) == 3 and all(t.startswith("V = ") for t in texts)
+    labels = ax.get_legend_handles_labels()[1]
+    assert "water level 3.000 m" in labels and any(lab.startswith("energy level") for lab in labels)
+    ax = gv.plot_section(gv.Circular(diameter=1.2), 0.7, units="US")
+    assert ax.get_xlabel() == "Offset [ft]"

@@ -12,8 +12,8 @@ import numpy as np
 
 from ._jit import kernel
 from .flow import critical_depths, normal_depth, peak_conveyance, specific_energy, specific_force
-from .geometry import geometry
-from .resistance import colebrook, conveyance, froude_squared, velocity_coefficients
+from .geometry import SURVEYED, geometry, zone_count, zone_geometry
+from .resistance import _zone_k, colebrook, conveyance, froude_squared, velocity_coefficients
 
 
 @kernel
@@ -99,3 +99,18 @@ def coefficients_many(ch, fl, y, out):
     """``out[:, j]`` = (alpha, beta) of the section's own zones at depth ``y[j]``."""
     for j in range(y.size):
         out[0, j], out[1, j] = velocity_coefficients(ch, fl, y[j], 1.0)
+
+
+@kernel
+def zone_table(ch, fl, q, y, out):
+    """``out[i]`` = (A_i, P_i, T_i, K_i, Q_i, V_i) of zone i at depth y for discharge q (Q_i = Q K_i/K)."""
+    kk = conveyance(ch, fl, q, y)
+    for i in range(zone_count(ch.kind, ch.par)):
+        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
+        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p) if ch.kind == SURVEYED else kk
+        out[i, 0] = a
+        out[i, 1] = p
+        out[i, 2] = t
+        out[i, 3] = ki
+        out[i, 4] = q * ki / kk
+        out[i, 5] = q * ki / kk / a if a > 0.0 else 0.0
