@@ -32,7 +32,6 @@ from .friction import (
 from .io import demo_reach, parse_reach, reach_schema, read_reach, write_profile_csv, write_reach
 from .jumps import Jump, belanger_ratio, jump_energy_loss_rectangular, jump_length, jump_type
 from .plot import plot_profile
-from .section_plot import plot_section
 from .profiles import (
     PROFILE_SHAPES,
     ProfileTrace,
@@ -46,6 +45,7 @@ from .profiles import (
 )
 from .reach import Reach, Segment
 from .result import ControlNote, Profile, ProfilePiece
+from .section_plot import plot_section
 from .sections import Circular, Parabolic, Rectangular, Section, Surveyed, Trapezoidal, Triangular, WideRectangular
 from .structures import (
     BackwaterExtent,

@@ -10,6 +10,8 @@ import math
 import numpy as np
 
 from .plot import _COLOURS, _TEXT_BOX
+from .uniform import specific_energy
+from .units import resolve_units
 
 __all__ = ["plot_section"]
 
@@ -74,9 +76,6 @@ def plot_section(section, depth: float, discharge: float | None = None, ax=None,
     >>> gv.plot_section(sec, 1.0, discharge=3.0).get_ylabel()
     'Elevation [m]'
     """
-    from .units import resolve_units
-    from .uniform import specific_energy
-
     u = resolve_units(units)
     y = float(section._depth(depth))
     if ax is None:
