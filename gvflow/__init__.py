@@ -46,7 +46,17 @@ from .profiles import (
 from .reach import Reach, Segment
 from .result import ControlNote, Profile, ProfilePiece
 from .section_plot import plot_section
-from .sections import Circular, Parabolic, Rectangular, Section, Surveyed, Trapezoidal, Triangular, WideRectangular
+from .sections import (
+    Circular,
+    IneffectiveArea,
+    Parabolic,
+    Rectangular,
+    Section,
+    Surveyed,
+    Trapezoidal,
+    Triangular,
+    WideRectangular,
+)
 from .structures import (
     BackwaterExtent,
     Culvert,
@@ -108,6 +118,7 @@ __all__ = [
     "ReachFileError", "GVFlowWarning",
     # sections
     "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular", "Surveyed",
+    "IneffectiveArea",
     # friction
     "Manning", "Chezy", "DarcyWeisbach", "conveyance", "friction_slope", "colebrook_friction_factor",
     "composite_manning", "COMPOSITE_ROUGHNESS_METHODS",

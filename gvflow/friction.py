@@ -189,7 +189,7 @@ def section_roughness(section, roughness):
     InvalidInputError
         When a surveyed section is given a roughness too, or a geometric section none.
     """
-    if getattr(section, "roughness", None) is not None:
+    if hasattr(section, "core_roughness"):
         if roughness is not None:
             raise InvalidInputError(f"roughness: {section!r} carries its own roughness per zone; leave roughness "
                                     "out (None), or change the section's roughness")
@@ -269,9 +269,8 @@ def core_channel(section, roughness=None) -> Channel:
     energy and force) the record carries a placeholder Manning's n of 1.
     """
     kind, par = section.core_params()
-    own = getattr(section, "roughness", None)
-    if own is not None:  # a surveyed section carries one roughness per zone
-        return channel(kind, par, own[0].kernel_spec()[0], [r.kernel_spec()[1] for r in own])
+    if hasattr(section, "core_roughness"):  # a surveyed section carries one roughness per zone
+        return channel(kind, par, *section.core_roughness())
     law, value = (KIND_MANNING, 1.0) if roughness is None else roughness.kernel_spec()
     return channel(kind, par, law, value)
 

@@ -353,6 +353,30 @@ class _Packed:
     __hash__ = None
 
 
+class IneffectiveArea(BaseModel):
+    """Part of a surveyed section that holds water but conveys none until the water rises above a level.
+
+    Water standing beside a culvert or bridge opening, or behind a levee until it is
+    overtopped. Convention: while the water surface is below ``elevation`` the ground
+    between ``left`` and ``right`` is left out of the flow area, top width, wetted
+    perimeter and conveyance (its water is still, so it carries no discharge and no
+    velocity head); from ``elevation`` up it counts in full, as part of its roughness zone.
+
+    Parameters
+    ----------
+    left, right : float
+        Offsets bounding the area [length], left < right.
+    elevation : float
+        Water-surface elevation from which the area conveys [length].
+    """
+
+    model_config = ConfigDict(frozen=True, extra="forbid")
+
+    left: Annotated[float, Field(allow_inf_nan=False)]
+    right: Annotated[float, Field(allow_inf_nan=False)]
+    elevation: Annotated[float, Field(allow_inf_nan=False)]
+
+
 class Surveyed(Section):
     """Cross-section given by surveyed ground points, with zones of different roughness.
 
@@ -368,6 +392,9 @@ class Surveyed(Section):
     zone_edges : sequence of float, optional
         Offsets of the vertical lines dividing the zones, increasing and strictly inside the
         section; ``len(roughness) == len(zone_edges) + 1``. Omit for one zone.
+    ineffective : sequence of IneffectiveArea, optional
+        Areas that hold water but convey none until the water rises above their elevation
+        (see :class:`IneffectiveArea`). Their bounds divide the zones further, like zone edges.
 
     Notes
     -----
@@ -396,8 +423,10 @@ class Surveyed(Section):
     elevation: list[Annotated[float, Field(allow_inf_nan=False)]]
     roughness: list[Manning | Chezy]
     zone_edges: list[Annotated[float, Field(allow_inf_nan=False)]] = Field(default_factory=list)
+    ineffective: list[IneffectiveArea] = Field(default_factory=list)
 
     _packed: _Packed = PrivateAttr()
+    _zone_roughness: tuple = PrivateAttr()
 
     @field_validator("roughness", mode="before")
     @classmethod
@@ -441,7 +470,21 @@ class Surveyed(Section):
         if len({type(r) for r in self.roughness}) > 1:
             raise InvalidInputError("Surveyed: every zone's roughness must use the same law (all Manning's n or "
                                     "all Chezy's C)")
-        self._packed = _Packed(pack_surveyed(x, z, edges))
+        for i, area in enumerate(self.ineffective):
+            if not (x[0] <= area.left < area.right <= x[-1]):
+                raise InvalidInputError(f"Surveyed: ineffective[{i}] must have offsets with left < right inside the "
+                                        f"section ({x[0]:g} to {x[-1]:g}); got {area.left:g} to {area.right:g}")
+        # core zones: the roughness zones, divided further at the bounds of ineffective areas
+        cuts = sorted({*edges, *(v for a in self.ineffective for v in (a.left, a.right) if x[0] < v < x[-1])})
+        bounds = [x[0], *cuts, x[-1]]
+        rough, active = [], []
+        for lo, hi in zip(bounds[:-1], bounds[1:], strict=True):
+            mid = 0.5 * (lo + hi)
+            rough.append(self.roughness[int(np.searchsorted(edges, mid))])
+            levels = [a.elevation - min(z) for a in self.ineffective if a.left <= mid <= a.right]
+            active.append(max([0.0, *levels]))
+        self._zone_roughness = tuple(rough)
+        self._packed = _Packed(pack_surveyed(x, z, cuts, active))
 
     @property
     def invert(self) -> float:
@@ -455,8 +498,13 @@ class Surveyed(Section):
 
     @property
     def zone_count(self) -> int:
-        """Number of roughness zones."""
-        return len(self.roughness)
+        """Number of zones the section is divided into: the roughness zones, divided further at the bounds of
+        ineffective areas."""
+        return len(self._zone_roughness)
+
+    def core_roughness(self) -> tuple[int, list[float]]:
+        """(law code, roughness value of each zone) for the physics core."""
+        return self._zone_roughness[0].kernel_spec()[0], [r.kernel_spec()[1] for r in self._zone_roughness]
 
     def core_params(self):
         return SURVEYED, self._packed.array

@@ -170,3 +170,24 @@ def test_section_plot_draws_levels_and_zone_velocities():
     assert "water level 3.000 m" in labels and any(lab.startswith("energy level") for lab in labels)
     ax = gv.plot_section(gv.Circular(diameter=1.2), 0.7, units="US")
     assert ax.get_xlabel() == "Offset [ft]"
+
+
+def test_ineffective_area_conveys_nothing_until_the_water_rises_above_it():
+    # a rectangular opening 10 wide with ponded areas either side, ineffective below elevation 3.5
+    ground = dict(offset=[-50, -50, 0, 0, 10, 10, 60, 60], elevation=[6, 2, 2, 0, 0, 2, 2, 6], roughness=0.03)
+    plain = gv.Surveyed(**ground)
+    ponded = gv.Surveyed(**ground, ineffective=[gv.IneffectiveArea(left=-50, right=0, elevation=3.5),
+                                                 gv.IneffectiveArea(left=10, right=60, elevation=3.5)])
+    # below 3.5 only the opening's own area, width and conveyance count: a 10-wide channel whose walls
+    # are wetted up to the ponds' floor at 2 (above it the zone edges are division lines, not perimeter)
+    for y in (2.5, 3.0, 3.49):
+        assert ponded.area(y) == pytest.approx(10 * y)
+        assert ponded.top_width(y) == pytest.approx(10.0)
+        assert plain.area(y) > ponded.area(y)
+    q = gv.uniform_discharge(ponded, 3.0, 0.001)
+    assert q == pytest.approx(30.0 * (30.0 / 14.0) ** (2 / 3) * 0.001 ** 0.5 / 0.03, rel=1e-12)  # Manning by hand
+    # from 3.5 up it conveys like the rest of its zone (counts in full)
+    assert ponded.area(3.6) == pytest.approx(plain.area(3.6))
+    assert ponded.zone_count == 3
+    with pytest.raises(gv.InvalidInputError, match="ineffective"):
+        gv.Surveyed(**ground, ineffective=[gv.IneffectiveArea(left=5, right=-5, elevation=3.0)])

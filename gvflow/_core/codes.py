@@ -35,14 +35,18 @@ NO_ROOT = 1
 NOT_CONVERGED = 2
 
 
-def pack_surveyed(offset, elevation, zone_edges=()) -> np.ndarray:
+def pack_surveyed(offset, elevation, zone_edges=(), active_from=None) -> np.ndarray:
     """Parameter array of a surveyed section (layout in :mod:`gvflow._core.geometry`); inputs already validated.
 
     ``elevation`` is absolute; the packed ground is measured above its lowest point.
+    ``active_from`` gives, per zone, the depth below which the zone conveys nothing
+    and is left out of the flow area (0, the default, for a zone always active).
     """
     x = np.asarray(offset, dtype=float)
     z = np.asarray(elevation, dtype=float)
     z = z - z.min()
     edges = np.asarray(zone_edges, dtype=float).reshape(-1)
     bounds = np.concatenate(([x[0]], edges, [x[-1]]))
-    return np.concatenate(([x.size, bounds.size - 1], x, z, bounds)).astype(float)
+    nz = bounds.size - 1
+    act = np.zeros(nz) if active_from is None else np.asarray(active_from, dtype=float).reshape(nz)
+    return np.concatenate(([x.size, nz], x, z, bounds, act)).astype(float)

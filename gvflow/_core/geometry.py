@@ -13,9 +13,10 @@ Kinds and parameter arrays
 ``CIRCLE``     ``[D]``: circular conduit of diameter D, 0 <= y <= D.
 ``PARABOLA``   ``[c]``: parabola with top width T = c sqrt(y).
 ``SURVEYED``   ground polyline with roughness zones, packed by :func:`pack_surveyed`:
-               ``[n, nz, x_0..x_{n-1}, z_0..z_{n-1}, e_0..e_nz]`` with offsets x
-               non-decreasing, ground z measured above the lowest point, and zone
-               bounds e (e_0 = x_0, e_nz = x_{n-1}, the interior ones the zone edges).
+               ``[n, nz, x_0..x_{n-1}, z_0..z_{n-1}, e_0..e_nz, h_0..h_{nz-1}]`` with
+               offsets x non-decreasing, ground z measured above the lowest point, zone
+               bounds e (e_0 = x_0, e_nz = x_{n-1}, the interior ones the zone edges), and
+               per zone the depth h below which it is ineffective (0: always effective).
 
 Geometry of every kind is exact (Chow, *Open-Channel Hydraulics*, 1959,
 table 2-1 for the geometric shapes; for a polyline the wetted area is the
@@ -31,6 +32,9 @@ Conventions of the surveyed kind
   foot (the deeper side).
 - Above an end point the section is closed by a vertical wall (the end point
   extended upwards), counted as wetted perimeter of the end zone.
+- A zone that is ineffective below a depth h (water standing beside a culvert opening or
+  behind a levee, holding water without conveying it) is left out of the flow area, top
+  width, wetted perimeter and conveyance while y < h, and counts in full from y = h.
 - At a breakpoint elevation, where the top width jumps (a flat floodplain at the
   water level), every property takes its value from above: ground lying exactly
   at the water level counts as wetted.
@@ -144,6 +148,8 @@ def _surveyed_zone(par, y, i):
     lo = par[2 + 2 * n + i]
     hi = par[3 + 2 * n + i]
     a = p = t = m = dt = dp = 0.0
+    if y < par[3 + 2 * n + nz + i]:
+        return a, p, t, m, dt, dp  # ineffective below its activation depth
     for j in range(n - 1):
         xa = par[xs + j]
         xb = par[xs + j + 1]
@@ -249,7 +255,7 @@ def max_depth(kind, par):
 
 @kernel
 def breakpoint_depths(kind, par):
-    """Depths at which the geometry changes form (ground breakpoints), ascending, unique.
+    """Depths at which the geometry changes form (ground breakpoints, zones becoming effective), ascending.
 
     Between two of these depths a surveyed section's top width is linear and
     its area quadratic; root finders bracket on them. Geometric shapes have none.
@@ -257,10 +263,11 @@ def breakpoint_depths(kind, par):
     if kind != SURVEYED:
         return np.empty(0)
     n = int(par[0])
-    z = np.sort(par[2 + n:2 + 2 * n].copy())
-    out = np.empty(n)
+    nz = int(par[1])
+    z = np.sort(np.concatenate((par[2 + n:2 + 2 * n], par[3 + 2 * n + nz:3 + 2 * n + 2 * nz])))
+    out = np.empty(z.size)
     k = 0
-    for j in range(n):
+    for j in range(z.size):
         if z[j] > 0.0 and (k == 0 or z[j] > out[k - 1]):
             out[k] = z[j]
             k += 1
