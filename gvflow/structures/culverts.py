@@ -58,11 +58,12 @@ from pydantic import Field
 
 from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
-from ..errors import InvalidInputError
+from ..errors import ConvergenceError, InvalidInputError
 from ..friction import AnyRoughness
 from ..sections import AnySection, Circular
-from ..uniform import critical_depth, normal_depth
+from ..uniform import normal_depth
 from ..units import UnitsLike, resolve_units
+from ._barrel_kernel import barrel_critical_depth, run_march
 from ._common import FrozenModel
 
 __all__ = [
@@ -262,7 +263,7 @@ class CircularBarrel(_Barrel):
         return a, p
 
     def _critical_depth(self, q, u):
-        return np.asarray(critical_depth(Circular(diameter=self.diameter), q, u), dtype=float)
+        return barrel_critical_depth(self, q, u)
 
 
 class BoxBarrel(_Barrel):
@@ -515,36 +516,10 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
     sf_low = area_sf(h_low, q)[1]
     sf_full = area_sf(np.full(q.shape, d), q)[1]
     sf_max = np.maximum(sf_low, sf_full)
-    failed = np.zeros(q.shape, dtype=bool)
-    full_all = h >= d
-
-    def step_residual(z, qq, rr):
-        a1, sf1 = area_sf(z, qq)
-        return z + qq * qq / (2.0 * g * a1 * a1) - 0.5 * dx * sf1 - rr
-
-    for _ in range(steps):
-        a2, sf2 = area_sf(h, q)
-        rhs = h + q * q / (2.0 * g * a2 * a2) + dx * (0.5 * sf2 - s0)
-        idx = np.flatnonzero(~failed)
-        ok = step_residual(h_low[idx], q[idx], rhs[idx]) <= 0
-        failed[idx[~ok]] = True
-        sel = idx[ok]
-        if sel.size:
-            qs, rs, ls = q[sel], rhs[sel], h_low[sel]
-            top = np.maximum(rs + dx * sf_max[sel], ls) + 1e-9 * d
-            # The residual rises with depth on the subcritical branch at a rate near 1 away from
-            # critical depth: try a tight bracket around the previous depth first.
-            hp = h[sel]
-            fp = step_residual(hp, qs, rs)
-            w = 4.0 * np.abs(fp) + 1e-12 * d
-            lo_t = np.maximum(hp - w, ls)
-            hi_t = np.minimum(hp + w, top)
-            tight = (step_residual(lo_t, qs, rs) <= 0) & (step_residual(hi_t, qs, rs) >= 0)
-            lo_b = np.where(tight, lo_t, ls)
-            hi_b = np.where(tight, hi_t, top)
-            h[sel] = bracketed_root(lambda z, qs=qs, rs=rs: step_residual(z, qs, rs), lo_b, hi_b, rtol=1e-15,
-                                    what="barrel profile")
-        full_all &= h >= d
+    # march upstream by the standard step method (compiled: gvflow.structures._barrel_kernel)
+    h, failed, full_all, bad = run_march(barrel, q, h, h_low, sf_max, dx, steps, u)
+    if bad:
+        raise ConvergenceError(f"barrel profile: {bad} standard steps did not converge", iterations=200)
     a_in = barrel._area_perimeter(h)[0]
     hw = h + (1.0 + ke) * q * q / (2.0 * g * a_in * a_in)
     # supercritical barrel: critical depth at the entrance
