@@ -18,7 +18,8 @@ import math
 import numpy as np
 from numba import njit
 
-from ..profiles._kernel import critical_depth, geom
+from ..friction import KIND_MANNING
+from ..profiles._kernel import critical_depth, geom, normal_depth
 from ..sections import Circular, Rectangular
 
 
@@ -48,39 +49,34 @@ def _residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, q, rhs, z):
 
 
 @njit(cache=True)
-def _illinois(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, q, rhs, lo, hi, rtol, max_iter):
-    """Scalar Illinois iteration on a bracket (residual <= 0 at lo, >= 0 at hi); (root, converged)."""
-    flo = _residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, q, rhs, lo)
-    fhi = _residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, q, rhs, hi)
-    if flo == 0.0:
-        return lo, True
-    if fhi == 0.0:
-        return hi, True
-    x = 0.5 * (lo + hi)
-    side = 0
-    for _ in range(max_iter):
-        if abs(hi - lo) <= rtol * abs(x):
-            return x, True
-        denom = fhi - flo
-        xs = hi - fhi * (hi - lo) / denom if denom != 0.0 else math.nan
-        if not math.isfinite(xs) or xs <= min(lo, hi) or xs >= max(lo, hi):
-            xs = 0.5 * (lo + hi)
-        fx = _residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, q, rhs, xs)
-        x = xs
-        if fx == 0.0:
-            return x, True
-        if (fx < 0.0) == (fhi < 0.0):
-            # the new point replaces hi; lo survives
-            if side == -1:
-                flo *= 0.5
-            side = -1
+def _solve_step(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, q, rhs, lo, hi, z):
+    """Depth z in [lo, hi] with residual(z) = 0 (residual <= 0 at lo, >= 0 at hi): Newton from the previous
+    depth, safeguarded by bisection; (root, converged)."""
+    z = min(max(z, lo), hi)
+    for _ in range(200):
+        if z >= d:
+            a, p, t, dp = a_full, p_full, 0.0, 0.0
         else:
-            if side == 1:
-                fhi *= 0.5
-            side = 1
-            lo, flo = hi, fhi
-        hi, fhi = xs, fx
-    return x, False
+            zz = min(max(z, 1e-12 * d), d)
+            a, p, t, _m, dp = geom(kind, p0, p1, p2, zz)
+        conv = kn * a * (a / p) ** (2.0 / 3.0)
+        sf = (q / conv) ** 2
+        f = z + q * q / (2.0 * g * a * a) - 0.5 * dx * sf - rhs
+        if f == 0.0:
+            return z, True
+        if f > 0.0:
+            hi = z
+        else:
+            lo = z
+        # d/dz [z + Q²/2gA² - dx Sf/2], with dSf/dz = -Sf (10/3 T/A - 4/3 P'/P)
+        df = 1.0 - q * q * t / (g * a * a * a) + 0.5 * dx * sf * (10.0 / 3.0 * t / a - 4.0 / 3.0 * dp / p)
+        zn = z - f / df if df > 0.0 else 0.5 * (lo + hi)
+        if not (lo < zn < hi):
+            zn = 0.5 * (lo + hi)
+        if abs(zn - z) <= 1e-13 * abs(z) or hi - lo <= 1e-15 * abs(hi):
+            return zn, True
+        z = zn
+    return z, False
 
 
 @njit(cache=True)
@@ -105,16 +101,7 @@ def march_barrel(kind, p0, p1, p2, d, a_full, p_full, kn, s0, g, dx, steps, q, h
                 fail = True
                 break
             top = max(rhs + dx * sf_max[i], h_low[i]) + 1e-9 * d
-            # tight bracket around the previous depth first (the residual rises at a rate near 1)
-            fp = _residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, qi, rhs, h)
-            w = 4.0 * abs(fp) + 1e-12 * d
-            lo = max(h - w, h_low[i])
-            hi = min(h + w, top)
-            if not (_residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, qi, rhs, lo) <= 0.0
-                    and _residual(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, qi, rhs, hi) >= 0.0):
-                lo = h_low[i]
-                hi = top
-            h, ok = _illinois(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, qi, rhs, lo, hi, 1e-15, 200)
+            h, ok = _solve_step(kind, p0, p1, p2, d, a_full, p_full, kn, g, dx, qi, rhs, h_low[i], top, h)
             if not ok:
                 bad += 1
             full = full and h >= d
@@ -154,3 +141,42 @@ def barrel_critical_depth(barrel, q, u):
     out = np.empty_like(flat)
     _critical_depths(int(kind), float(p0), float(p1), float(p2), flat, float(u.g), float(barrel.height), out)
     return out.reshape(qa.shape)
+
+
+@njit(cache=True)
+def _normal_depths(kind, p0, p1, p2, law, n, q, s0, k, g, ymax, out):
+    for i in range(q.size):
+        out[i] = normal_depth(kind, p0, p1, p2, law, n, q[i], s0, k, g, 1e-6, ymax)
+
+
+def barrel_normal_depth(barrel, q, u):
+    """Manning normal depth in a barrel for each discharge per barrel; NaN where none exists below the
+    soffit (adverse or flat barrel, or more than the barrel carries partly full). Compiled."""
+    kind, p0, p1, p2 = barrel_spec(barrel)
+    qa = np.asarray(q, dtype=float)
+    flat = np.ascontiguousarray(qa).ravel()
+    out = np.empty_like(flat)
+    ymax = float(barrel.height) if barrel.shape == "circular" else math.inf
+    _normal_depths(int(kind), float(p0), float(p1), float(p2), KIND_MANNING, float(barrel.roughness), flat,
+                   float(barrel.slope), float(u.manning_k), float(u.g), ymax, out)
+    out[out > barrel.height] = np.nan
+    return out.reshape(qa.shape)
+
+
+@njit(cache=True)
+def _areas_perimeters(kind, p0, p1, p2, h, a_out, p_out):
+    for i in range(h.size):
+        a, p, _t, _m, _dp = geom(kind, p0, p1, p2, h[i])
+        a_out[i] = a
+        p_out[i] = p
+
+
+def barrel_partial_geometry(barrel, h):
+    """Flow area and wetted perimeter of a partly full barrel at depths h (0 < h <= rise), compiled."""
+    kind, p0, p1, p2 = barrel_spec(barrel)
+    ha = np.asarray(h, dtype=float)
+    flat = np.ascontiguousarray(ha).ravel()
+    a = np.empty_like(flat)
+    p = np.empty_like(flat)
+    _areas_perimeters(int(kind), float(p0), float(p1), float(p2), flat, a, p)
+    return a.reshape(ha.shape), p.reshape(ha.shape)

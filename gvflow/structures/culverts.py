@@ -60,10 +60,10 @@ from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
 from ..errors import ConvergenceError, InvalidInputError
 from ..friction import AnyRoughness
-from ..sections import AnySection, Circular
+from ..sections import AnySection
 from ..uniform import normal_depth
 from ..units import UnitsLike, resolve_units
-from ._barrel_kernel import barrel_critical_depth, run_march
+from ._barrel_kernel import barrel_critical_depth, barrel_partial_geometry, run_march
 from ._common import FrozenModel
 
 __all__ = [
@@ -259,8 +259,7 @@ class CircularBarrel(_Barrel):
         return math.pi * self.diameter
 
     def _partial(self, h):
-        a, p = Circular(diameter=self.diameter)._geometry(h)[:2]
-        return a, p
+        return barrel_partial_geometry(self, h)
 
     def _critical_depth(self, q, u):
         return barrel_critical_depth(self, q, u)
@@ -610,7 +609,8 @@ class CulvertHeadwater:
     tailwater : float or ndarray
         Tailwater depth used [length].
     outlet_depth, inlet_depth : float or ndarray
-        Barrel depths at the outlet and the entrance under outlet control [length].
+        Barrel depths at the outlet and at the entrance under outlet control
+        [length].
     barrel_flow : str or ndarray of str
         Barrel state under outlet control (see :class:`OutletControl`).
     above_allowable : bool or ndarray of bool
@@ -618,6 +618,23 @@ class CulvertHeadwater:
         when none was given).
     allowable_headwater : float or None
         The allowable headwater depth above the inlet invert [length].
+    barrel_discharge, road_discharge : float or ndarray
+        Discharge through all barrels and over the road [length³/s]; they
+        add up to ``discharge`` exactly (road 0 without a road crest or
+        below it).
+    outlet_flow_depth, outlet_velocity : float or ndarray
+        Depth and mean velocity of the flow leaving the barrel [length,
+        length/s], what the scour protection below needs: the barrel
+        profile's outlet depth, or the barrel's normal depth when it runs
+        supercritical from its entrance (:mod:`gvflow.structures.overtopping`).
+    reason : str or ndarray of str
+        Which control governs in the barrel and why, in words.
+    road : RoadCrest or None
+        The road crest given.
+    road_submergence : float or ndarray
+        Submergence factor kt applied to the flow over the road (1: free).
+    units : Units
+        The unit system of the figures.
     """
 
     discharge: object
@@ -631,6 +648,29 @@ class CulvertHeadwater:
     barrel_flow: object
     above_allowable: object
     allowable_headwater: float | None
+    barrel_discharge: object = None
+    road_discharge: object = None
+    outlet_flow_depth: object = None
+    outlet_velocity: object = None
+    reason: object = None
+    road: object = None
+    road_submergence: object = None
+    units: object = None
+
+    def table(self):
+        """Performance table, one row per discharge (pandas DataFrame): discharge, headwater, control,
+        barrel and road discharge, tailwater, outlet depth and velocity, whether above the allowable
+        headwater, and why the control governs."""
+        from .overtopping import performance_table
+
+        return performance_table(self)
+
+    def plot(self, ax=None):
+        """Performance curve (headwater against discharge) marking the road crest and the allowable
+        headwater; returns the matplotlib Axes (draws on ``ax`` when given)."""
+        from .overtopping import plot_performance
+
+        return plot_performance(self, ax=ax, units=self.units if self.units is not None else "SI")
 
     def __repr__(self) -> str:
         if np.ndim(self.headwater) == 0:
@@ -643,8 +683,14 @@ class CulvertHeadwater:
 
 def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: DownstreamChannel | None = None,
                       tailwater_velocity=0.0, allowable_headwater=None, exit_loss: float = 1.0, steps: int = 100,
-                      units: UnitsLike = "SI") -> CulvertHeadwater:
+                      road=None, units: UnitsLike = "SI") -> CulvertHeadwater:
     """Governing headwater of a culvert: the larger of inlet and outlet control.
+
+    Over an array of discharges this is the culvert's performance table
+    (:meth:`CulvertHeadwater.table`, :meth:`CulvertHeadwater.plot`). With a
+    ``road`` the discharge that would raise the headwater above the road
+    crest is split between the barrels and the road at one headwater
+    (:mod:`gvflow.structures.overtopping`).
 
     Parameters
     ----------
@@ -667,6 +713,8 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
         Exit loss coefficient, 0 to 1.
     steps : int
         Standard-step intervals along the barrel.
+    road : RoadCrest, optional
+        The road over the culvert; flow over it once the headwater rises above its crest.
     units : "SI", "US" or Units
 
     Returns
@@ -703,6 +751,16 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
     allowable = None
     if allowable_headwater is not None:
         allowable = float(positive_array(allowable_headwater, "allowable_headwater"))
+    if road is not None and not hasattr(road, "low_point"):
+        raise InvalidInputError(f"road must be a RoadCrest; got {road!r}")
+    res = barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u)
+    from .overtopping import finish_culvert_result
+
+    return finish_culvert_result(barrel, res, road=road, tw=tw, vd=vd, exit_loss=exit_loss, steps=steps, units=u)
+
+
+def barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u) -> CulvertHeadwater:
+    """Governing headwater with all of ``q_total`` through the barrels (inputs already checked)."""
     hw_in = np.asarray(inlet_control_headwater(barrel, q_total, u), dtype=float)
     out = outlet_control_headwater(barrel, q_total, tw, tailwater_velocity=vd, exit_loss=exit_loss, steps=steps,
                                    units=u)
@@ -728,4 +786,5 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
         barrel_flow=out.barrel_flow,
         above_allowable=bool(above) if above.ndim == 0 else above,
         allowable_headwater=allowable,
+        units=u,
     )
