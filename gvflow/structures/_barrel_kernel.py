@@ -6,7 +6,10 @@ few hundred discharges (and the repeated barrel solutions of a road-overtopping
 split) costs milliseconds. The step is the one documented in
 :mod:`gvflow.structures.culverts`: the energy equation between stations with
 the average of the end Manning friction slopes, full-barrel area and perimeter
-at and above the soffit. Barrel geometry comes from the profile kernel's
+at and above the soffit; each step's depth by Newton iteration from the
+previous depth, safeguarded by bisection on the step's bracket (critical
+depth to the highest depth the step can reach). Barrel geometry comes from
+the profile kernel's
 ``geom`` (the section shapes' compiled mirror, checked against
 :mod:`gvflow.sections` by the test suite).
 """

@@ -41,7 +41,8 @@ measured above the inlet invert, is the larger of two estimates:
   depth at the inlet, dc + (1 + ke) Vc²/2g, for information only.
 
 The approach velocity in the headwater pool is neglected, as in the manual.
-Road overtopping is not modelled. Just after the barrel entrance leaves
+Flow over the road when the headwater rises above it: ``road=`` of
+:func:`culvert_headwater` and :mod:`gvflow.structures.overtopping`. Just after the barrel entrance leaves
 critical depth as the tailwater rises, the outlet-control headwater dips
 slightly before it rises: y + (1 + ke) V²/2g is least where
 Fr² = 1/(1 + ke), a little above critical depth.
