@@ -83,6 +83,10 @@ class Profile:
     ``pieces`` (the pieces with their extents), ``controls`` (notes on what
     governs where, unused controls, drowned or swept-out jumps),
     ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
+    Computed on request, one value per station: ``area``, ``top_width``,
+    ``hydraulic_radius``, ``shear_stress`` (gamma R Sf), ``bank_height`` and
+    ``freeboard`` (to the segment's ``bank_height``); all are columns of
+    :meth:`table`.
     """
 
     def __init__(self, *, reach, method, stations, regime, segment, jumps, pieces, controls, normal_depths,

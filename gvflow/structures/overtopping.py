@@ -389,15 +389,23 @@ def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units)
                 merged[name] = merged[name].astype(str)
             hw = merged["headwater"]
             above = hw > res.allowable_headwater if res.allowable_headwater is not None else np.zeros(shape, bool)
-            res = replace(res, **{k: scalar_or_array(v) if v.dtype.kind == "f" else (str(v[0]) if scalar else v)
-                                  for k, v in merged.items()},
+            res = replace(res, **{k: _shaped(v, scalar) for k, v in merged.items()},
                           above_allowable=bool(above[0]) if scalar else above)
     depth, velocity = _outlet_state(barrel, res, q_barrel, u)
     reasons = _reasons(res, u)
-    return replace(res, barrel_discharge=scalar_or_array(q_barrel), road_discharge=scalar_or_array(q_road),
-                   outlet_flow_depth=scalar_or_array(depth), outlet_velocity=scalar_or_array(velocity),
+    return replace(res, barrel_discharge=_shaped(q_barrel, scalar), road_discharge=_shaped(q_road, scalar),
+                   outlet_flow_depth=_shaped(depth, scalar), outlet_velocity=_shaped(velocity, scalar),
                    reason=reasons[0] if scalar else np.array(reasons), road=road,
-                   road_submergence=scalar_or_array(kt))
+                   road_submergence=_shaped(kt, scalar))
+
+
+def _shaped(v, scalar):
+    """A float or str for a single discharge given as a scalar, else the array."""
+    v = np.asarray(v)
+    if not scalar:
+        return v
+    item = np.ravel(v)[0]
+    return str(item) if v.dtype.kind in "USO" else float(item)
 
 
 def _first_guess(road, q, down, grid_q, grid_hw, u):
