@@ -26,6 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from numba import njit
 
+from ._near_critical import near_critical_notes
 from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
@@ -496,6 +497,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         sup_state = nxt
 
     _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
+    near_critical_notes(notes, segs, bounds, x, depth, units)
     for k, jet in gate_jet.items():
         i0 = bounds[k][0]
         gate = segments[k].gate

@@ -49,6 +49,16 @@ REGIME_CODES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_S
 # -- progress ---------------------------------------------------------------------------------------
 
 
+def import_xarray():
+    """The xarray module, or an ImportError that says how to get it (it is an optional dependency)."""
+    try:
+        import xarray
+    except ImportError:
+        raise ImportError("to_xarray() needs the optional xarray package: pip install 'gvflow[xarray]' "
+                          "(or pip install xarray)") from None
+    return xarray
+
+
 def _in_notebook() -> bool:
     shell = sys.modules.get("IPython")
     if shell is None:
@@ -366,6 +376,47 @@ class SweepResult:
         for name in ("discharge", "roughness", "depth", "regime", "normal_depths", "critical_depths",
                      "jump_count", "first_jump_x"):
             getattr(self, name).setflags(write=False)
+
+    def to_xarray(self):
+        """The scenarios as an xarray Dataset (needs the optional xarray: ``pip install 'gvflow[xarray]'``).
+
+        Dimensions ``scenario`` and ``station`` (plus ``segment_index`` for
+        per-segment inputs); coordinates ``discharge`` (per scenario), ``x``,
+        ``bed`` and ``segment`` (per station; x repeats at a segment junction,
+        so select stations by ``station``, or by ``x`` after dropping
+        duplicates). Variables ``depth``, ``stage``, ``velocity``, ``froude``,
+        ``regime`` (scenario, station), ``roughness``, ``normal_depth``,
+        ``critical_depth`` (scenario, segment_index) and ``jump_count``,
+        ``first_jump_x`` (scenario).
+        """
+        xr = import_xarray()
+        L = self.units.length
+        station = {"dims": ("scenario", "station")}
+        per_seg = ("scenario", "segment_index")
+        return xr.Dataset(
+            data_vars={
+                "depth": (station["dims"], np.asarray(self.depth), {"units": L}),
+                "stage": (station["dims"], np.asarray(self.stage), {"units": L}),
+                "velocity": (station["dims"], np.asarray(self.velocity), {"units": self.units.velocity}),
+                "froude": (station["dims"], np.asarray(self.froude), {"units": "1"}),
+                "regime": (station["dims"], np.asarray(self.regime),
+                           {"meaning": "+1 subcritical, 0 critical, -1 supercritical"}),
+                "roughness": (per_seg, np.asarray(self.roughness)),
+                "normal_depth": (per_seg, np.asarray(self.normal_depths), {"units": L}),
+                "critical_depth": (per_seg, np.asarray(self.critical_depths), {"units": L}),
+                "jump_count": ("scenario", np.asarray(self.jump_count)),
+                "first_jump_x": ("scenario", np.asarray(self.first_jump_x), {"units": L}),
+            },
+            coords={
+                "scenario": np.arange(self.discharge.size),
+                "station": np.arange(self.x.size),
+                "discharge": ("scenario", np.asarray(self.discharge), {"units": self.units.discharge}),
+                "x": ("station", np.asarray(self.x), {"units": L}),
+                "bed": ("station", np.asarray(self.bed), {"units": L}),
+                "segment": ("station", np.asarray(self.segment)),
+            },
+            attrs={"method": self.method, "units": self.units.name},
+        )
 
     # -- derived arrays -------------------------------------------------------------------------
     @cached_property

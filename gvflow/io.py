@@ -20,6 +20,7 @@ import re
 from importlib import resources
 from pathlib import Path
 
+import numpy as np
 from pydantic import ValidationError
 
 from .errors import InvalidInputError, ReachFileError
@@ -39,6 +40,11 @@ PROFILE_COLUMNS = (
     ("specific_energy", "length"),
     ("energy_grade", "length"),
     ("friction_slope", "-"),
+    ("area", "area"),
+    ("top_width", "length"),
+    ("hydraulic_radius", "length"),
+    ("shear_stress", "stress"),
+    ("freeboard", "length"),
     ("segment", None),
     ("regime", None),
 )
@@ -245,7 +251,8 @@ def write_profile_csv(profile, path) -> Path:
     units = profile.units
     header = []
     for name, kind in PROFILE_COLUMNS:
-        unit = {"length": units.length, "velocity": units.velocity, "-": "-"}.get(kind)
+        unit = {"length": units.length, "velocity": units.velocity, "-": "-", "area": f"{units.length}²",
+                "stress": _stress_unit(units)}.get(kind)
         header.append(f"{name} [{unit}]" if unit else name)
     path = Path(path)
     with path.open("w", newline="", encoding="utf-8") as fh:
@@ -253,8 +260,15 @@ def write_profile_csv(profile, path) -> Path:
         writer.writerow(header)
         floats = [name for name, kind in PROFILE_COLUMNS if kind is not None]
         for row in table:
-            writer.writerow([f"{row[n]:.10g}" for n in floats] + [int(row["segment"]), str(row["regime"])])
+            writer.writerow([f"{row[n]:.10g}" if np.isfinite(row[n]) else "" for n in floats]
+                            + [int(row["segment"]), str(row["regime"])])
     return path
+
+
+def _stress_unit(units) -> str:
+    """Unit of the boundary shear stress column: N/m² (SI), lb/ft² (US), else weight per area."""
+    label = units.length.strip().lower()
+    return {"m": "N/m²", "ft": "lb/ft²"}.get(label, f"force/{units.length}²")
 
 
 # -- error messages -------------------------------------------------------------------------

@@ -57,6 +57,10 @@ class Segment(FrozenModel):
         It holds the water upstream at the depth its discharge needs and
         releases a jet below it; the water below may drown it (submerged
         flow), which the result reports.
+    bank_height : float, optional
+        Height of the bank or lining top above the bed [length]: the
+        profile's station table reports the freeboard to it, and a warning
+        says where the water surface rises above it.
     """
 
     length: float = Field(gt=0, allow_inf_nan=False)
@@ -65,6 +69,7 @@ class Segment(FrozenModel):
     roughness: AnyRoughness
     name: str | None = None
     gate: SluiceGate | None = None
+    bank_height: float | None = Field(default=None, gt=0, allow_inf_nan=False)
 
     @field_validator("section")
     @classmethod

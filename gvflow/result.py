@@ -12,7 +12,27 @@ from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, _length_ratio, jump_type
 from .profiles import _kernel as K
 
-__all__ = ["Profile", "ProfilePiece", "ControlNote"]
+__all__ = ["Profile", "ProfilePiece", "ControlNote", "WATER_DENSITY", "water_unit_weight"]
+
+#: Density of water used for the boundary shear stress: 1000 kg/m³ in SI units (fresh water near
+#: 4-20 °C, 998-1000 kg/m³; common practice), 1.94 slug/ft³ in US units (the same water, rounded as
+#: in US practice, from memory). A unit system whose length is neither metres nor feet takes the
+#: SI value expressed with its own gravity (see :func:`water_unit_weight`).
+WATER_DENSITY = {"m": 1000.0, "ft": 1.94}
+
+
+def water_unit_weight(units) -> float:
+    """Unit weight of water gamma = density x g in the reach's units (N/m³ in SI, lb/ft³ in US).
+
+    >>> import gvflow as gv
+    >>> water_unit_weight(gv.SI), round(water_unit_weight(gv.US), 2)
+    (9806.65, 62.42)
+    """
+    rho = WATER_DENSITY.get(units.length.strip().lower())
+    if rho is None:
+        # a custom system: 1000 kg/m³ with its gravity in place of 9.80665 m/s²
+        return 1000.0 * units.g
+    return rho * units.g
 
 _REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
 _STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head")
@@ -96,6 +116,10 @@ class Profile:
     on), ``coefficients`` (those coefficients as records with their sources,
     see :mod:`gvflow.coefficients`),
     ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
+    Computed on request, one value per station: ``area``, ``top_width``,
+    ``hydraulic_radius``, ``shear_stress`` (gamma R Sf), ``bank_height`` and
+    ``freeboard`` (to the segment's ``bank_height``); all are columns of
+    :meth:`table`.
     """
 
     def __init__(self, *, reach, method, stations, regime, segment, jumps, pieces, controls, normal_depths,
@@ -184,8 +208,11 @@ class Profile:
         notes = list(sol.notes[i])
         notes += [(x, "coefficient", rec.line()) for x, rec in _coefficients_used(reach, jumps, sol.notes[i])]
         controls = sorted((ControlNote(float(a), b, c) for a, b, c in notes), key=lambda c: c.x)
-        return cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
-                   pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes)
+        profile = cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
+                      pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes)
+        if any(s.bank_height is not None for s in reach.segments):
+            profile._warn_overbank()
+        return profile
 
     @property
     def coefficients(self) -> tuple:
@@ -224,10 +251,89 @@ class Profile:
         """True: a Profile only exists for a solved reach (failures raise)."""
         return True
 
+    # -- section properties at the stations, for the station table ------------------------------
+    def _section_rows(self):
+        a = np.empty(self.x.size)
+        p = np.empty(self.x.size)
+        t = np.empty(self.x.size)
+        for k, seg in enumerate(self.reach.segments):
+            sel = self.segment == k
+            if np.any(sel):
+                sec = seg.section
+                y = np.minimum(self.depth[sel], sec.max_depth)
+                a[sel], p[sel], t[sel] = sec._geometry(y)[:3]
+        return a, p, t
+
+    @property
+    def area(self) -> np.ndarray:
+        """Flow area A at each station [length²]."""
+        return self._section_rows()[0]
+
+    @property
+    def top_width(self) -> np.ndarray:
+        """Water-surface width T at each station [length] (0 where a closed conduit runs just full)."""
+        return self._section_rows()[2]
+
+    @property
+    def hydraulic_radius(self) -> np.ndarray:
+        """Hydraulic radius R = A/P at each station [length]."""
+        a, p, _ = self._section_rows()
+        return a / p
+
+    @property
+    def shear_stress(self) -> np.ndarray:
+        """Mean boundary shear stress tau = gamma R Sf at each station [N/m² in SI, lb/ft² in US].
+
+        gamma = density x g, the unit weight of water (:func:`water_unit_weight`;
+        density 1000 kg/m³ in SI, 1.94 slug/ft³ in US units). Sf is the friction
+        slope, R the hydraulic radius (Chow 1959, *Open-Channel Hydraulics*,
+        §7-5; Henderson 1966, §4.2).
+        """
+        return water_unit_weight(self.units) * self.hydraulic_radius * self.friction_slope
+
+    @property
+    def bank_height(self) -> np.ndarray:
+        """Height of the bank or lining top above the bed at each station [length] (NaN where the
+        segment gives none)."""
+        h = np.array([np.nan if s.bank_height is None else s.bank_height for s in self.reach.segments])
+        return h[self.segment]
+
+    @property
+    def freeboard(self) -> np.ndarray:
+        """Bank or lining top above the water surface at each station [length]: negative where the
+        water rises above it, NaN where the segment gives no ``bank_height``."""
+        return self.bank_height - self.depth
+
+    def _warn_overbank(self):
+        fb = self.freeboard
+        over = fb < 0
+        if not np.any(over):
+            return
+        import warnings
+
+        from .errors import GVFlowWarning
+
+        L = self.units.length
+        parts = []
+        for k in np.unique(self.segment[over]):
+            sel = over & (self.segment == k)
+            parts.append(f"segment {k} from x = {self.x[sel].min():.2f} to {self.x[sel].max():.2f} {L} (up to "
+                         f"{-fb[sel].min():.3f} {L} above its bank_height {self.reach.segments[k].bank_height:g} "
+                         f"{L})")
+        warnings.warn("the water surface rises above the bank or lining top in " + "; ".join(parts)
+                      + ": the channel overflows there, and the profile beyond the banks is not modelled",
+                      GVFlowWarning, stacklevel=4)
+
     def table(self) -> np.ndarray:
-        """Station table as a NumPy structured array (one row per station)."""
+        """Station table as a NumPy structured array (one row per station).
+
+        Columns: x, bed, depth, stage, velocity, froude, specific_energy,
+        energy_grade, friction_slope, area, top_width, hydraulic_radius,
+        shear_stress (gamma R Sf, see :attr:`shear_stress`), freeboard (to the
+        segment's ``bank_height``, NaN where none), segment, regime.
+        """
         names = ["x", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
-                 "friction_slope"]
+                 "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
         dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
         out = np.empty(self.x.size, dtype=dt)
         for n in names:
@@ -237,11 +343,9 @@ class Profile:
         return out
 
     def to_pandas(self):
-        """Station table as a pandas DataFrame (needs the optional pandas dependency)."""
-        try:
-            import pandas as pd
-        except ImportError:  # pragma: no cover - depends on the environment
-            raise ImportError("to_pandas() needs pandas: pip install 'gvflow[pandas]'") from None
+        """Station table (:meth:`table`) as a pandas DataFrame."""
+        import pandas as pd
+
         return pd.DataFrame(self.table())
 
     def plot(self, ax=None, **kwargs):

@@ -299,6 +299,19 @@ class MonteCarloResult:
         self.jump_x_percentiles = (np.percentile(self.jump_x[has], self.percentiles) if np.any(has)
                                    else np.full(self.percentiles.shape, np.nan))
 
+    def to_xarray(self):
+        """Every sample as an xarray Dataset (:meth:`gvflow.batch.SweepResult.to_xarray`, one scenario per
+        sample) with the envelopes added: ``depth_envelope`` and ``stage_envelope`` on dimensions
+        (``percentile``, ``station``). Needs the optional xarray (``pip install 'gvflow[xarray]'``)."""
+        ds = self.sweep.to_xarray()
+        L = self.units.length
+        ds = ds.assign_coords(percentile=("percentile", self.percentiles, {"units": "%"}))
+        ds["depth_envelope"] = (("percentile", "station"), self.depth_envelope, {"units": L})
+        ds["stage_envelope"] = (("percentile", "station"), self.stage_envelope, {"units": L})
+        ds.attrs["samples"] = self.samples
+        ds.attrs["correlated"] = int(bool(self.correlated))
+        return ds
+
     @property
     def samples(self) -> int:
         """Number of samples."""

@@ -203,8 +203,12 @@ ALLOWED_LITERALS = {
                                    8.0: "8/15 of the V-notch law", 15.0: "8/15 of the V-notch law",
                                    9.0: "4/9 of the broad-crested relation", 90.0: "default notch angle",
                                    200: "iteration cap"},
-    "gvflow/structures/culverts.py": {100: "default number of barrel steps"},
+    "gvflow/structures/culverts.py": {100: "default number of barrel steps", 200: "iteration cap"},
     "gvflow/structures/gates.py": {8.0: "Belanger's 8 F²"},
+    "gvflow/structures/overtopping.py": {32.174: "standard gravity in ft/s² (9.80665 m/s² exactly)",
+                                         100: "iteration cap", 0.3: "plot style", 0.99: "plot label position",
+                                         1.02: "plot axis margin", 1.2: "plot line width", 5: "figure size",
+                                         8: "figure size / font size", 25: "plot marker spacing"},
     "gvflow/jumps.py": {8.0: "Belanger's 8 F²"},
     "gvflow/structures/controls.py": {0.1: "bracket step", 0.8: "bracket step", 15: "bracket iterations",
                                       40: "bracket iterations",
@@ -216,7 +220,8 @@ ALLOWED_LITERALS = {
 @pytest.mark.parametrize("path", sorted(["gvflow/structures/weirs.py", "gvflow/structures/culverts.py",
                                          "gvflow/structures/gates.py", "gvflow/structures/overfall.py",
                                          "gvflow/structures/pool.py", "gvflow/structures/backwater.py",
-                                         "gvflow/structures/controls.py", "gvflow/jumps.py", "gvflow/controls.py"]))
+                                         "gvflow/structures/controls.py", "gvflow/jumps.py", "gvflow/controls.py",
+                                         "gvflow/structures/overtopping.py"]))
 def test_no_unregistered_coefficient_is_written_into_the_code(path):
     """A number in the code of a module that uses coefficients is either generic (a small integer, a
     half, a tolerance, a documented default) or comes from the registry."""

@@ -193,13 +193,16 @@ def test_csv_one_row_per_station_with_units(tmp_path):
     with path.open(newline="") as fh:
         rows = list(csv.reader(fh))
     assert rows[0] == ["x [m]", "bed [m]", "depth [m]", "stage [m]", "velocity [m/s]", "froude [-]",
-                       "specific_energy [m]", "energy_grade [m]", "friction_slope [-]", "segment", "regime"]
+                       "specific_energy [m]", "energy_grade [m]", "friction_slope [-]", "area [m²]",
+                       "top_width [m]", "hydraulic_radius [m]", "shear_stress [N/m²]", "freeboard [m]", "segment",
+                       "regime"]
     assert len(rows) == profile.x.size + 1
     body = rows[1:]
-    for j, (name, _) in enumerate(PROFILE_COLUMNS[:9]):
+    for j, (name, _) in enumerate(PROFILE_COLUMNS[:13]):
         np.testing.assert_allclose([float(r[j]) for r in body], getattr(profile, name), rtol=1e-9, err_msg=name)
-    assert [int(r[9]) for r in body] == profile.segment.tolist()
-    assert [r[10] for r in body] == profile.regime.tolist()
+    assert all(r[13] == "" for r in body)  # no bank_height in the demo reach: freeboard left blank
+    assert [int(r[14]) for r in body] == profile.segment.tolist()
+    assert [r[15] for r in body] == profile.regime.tolist()
 
 
 def test_csv_header_in_us_units(tmp_path):

@@ -423,6 +423,25 @@ _c("culvert.exit_loss", "exit loss coefficient kx", 1.0, f"{_HDS5_2012}, ch. 3 (
 
 
 # ---------------------------------------------------------------------------
+# road overtopping at a culvert
+# ---------------------------------------------------------------------------
+
+_HDS5_1985 = ("Normann, J. M., Houghtalen, R. J. & Johnston, W. J. (1985). Hydraulic Design of Highway Culverts, "
+              "HDS-5, US Federal Highway Administration, Figure III-11 (flow over roadway embankments)")
+_HDS5_1985_AT = "dnrweblink.state.co.us (scanned copy of HDS-5, 1985)"
+_c("road.overtopping_cr", "weir coefficient Cr of a paved road overtopped deeply (HWr/Lr > 0.15) in Q = Cr L HWr^1.5",
+   3.0, _HDS5_1985 + ", part A", RECALLED, unit="ft^0.5/s",
+   note=f"the form Q = kt Cr L HWr^1.5 and its range read in a scanned copy ({_HDS5_1985_AT}); the value 3.0 recalled")
+_c("road.submergence_paved", "submergence factor kt against ht/HWr of a paved road, ((ht/HWr...), (kt...))",
+   ((0.0, 0.80, 0.85, 0.90, 0.93, 0.95, 0.97, 0.98), (1.0, 1.00, 0.97, 0.91, 0.85, 0.78, 0.66, 0.58)),
+   _HDS5_1985 + ", part C", RECALLED, note=f"the chart's axes read in a scanned copy ({_HDS5_1985_AT}); "
+   "the points recalled - verify against the chart")
+_c("road.submergence_gravel", "submergence factor kt against ht/HWr of a gravel road, ((ht/HWr...), (kt...))",
+   ((0.0, 0.75, 0.80, 0.85, 0.90, 0.95, 0.98), (1.0, 1.00, 0.98, 0.93, 0.85, 0.70, 0.55)),
+   _HDS5_1985 + ", part C", RECALLED, note=f"the chart's axes read in a scanned copy ({_HDS5_1985_AT}); "
+   "the points recalled - verify against the chart")
+
+# ---------------------------------------------------------------------------
 # weirs
 # ---------------------------------------------------------------------------
 

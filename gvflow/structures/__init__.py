@@ -51,6 +51,13 @@ from .overfall import (
     critical_section_distance,
     discharge_from_brink_depth,
 )
+from .overtopping import (
+    ROAD_OVERTOPPING_COEFFICIENT,
+    ROAD_SUBMERGENCE_CURVES,
+    RoadCrest,
+    road_overtopping_discharge,
+    road_submergence_factor,
+)
 from .pool import PoolOutflow, critical_entry_head, entrance_depth, pool_discharge
 from .rating import RatingTable
 from .weirs import (
@@ -84,6 +91,9 @@ __all__ = [
     "CircularBarrel", "BoxBarrel", "DownstreamChannel", "CulvertInlet", "INLET_TYPES",
     "inlet_control_headwater", "outlet_control_headwater", "culvert_headwater",
     "OutletControl", "CulvertHeadwater",
+    # road overtopping
+    "RoadCrest", "road_overtopping_discharge", "road_submergence_factor", "ROAD_OVERTOPPING_COEFFICIENT",
+    "ROAD_SUBMERGENCE_CURVES",
     # gates
     "DEFAULT_CONTRACTION", "gate_jet_depth", "gate_discharge_coefficient", "gate_free_flow_limit",
     "gate_flows_free", "gate_contracted_depth", "gate_discharge", "gate_upstream_depth",

@@ -38,6 +38,7 @@ from ..errors import ControlError, GVFlowError, InvalidInputError
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from .culverts import EXIT_LOSS, AnyBarrel, DownstreamChannel, culvert_headwater
 from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE, CRITICAL_SECTION_FACTOR
+from .overtopping import RoadCrest
 from .rating import RatingTable
 from .weirs import (
     BROAD_CRESTED_COEFFICIENT,
@@ -372,6 +373,21 @@ class Weir(_StructureControl):
 # culvert
 # ---------------------------------------------------------------------------
 
+def _culvert_extra_notes(r, s, n, L):
+    """Why the control governs, the road's share and the outlet velocity of scenario s."""
+    def pick(v):
+        return np.broadcast_to(np.asarray(v), (n,))[s]
+
+    lines = [str(pick(r.reason))]
+    q_road = float(pick(r.road_discharge))
+    if q_road > 0:
+        lines.append(f"the road overtops: {q_road:.3f} {L}³/s over the road, {float(pick(r.barrel_discharge)):.3f} "
+                     f"{L}³/s through the barrels")
+    lines.append(f"outlet depth {float(pick(r.outlet_flow_depth)):.3f} {L}, outlet velocity "
+                 f"{float(pick(r.outlet_velocity)):.2f} {L}/s")
+    return lines
+
+
 class Culvert(_StructureControl):
     """A culvert at the downstream end of the reach (the reach ends at its inlet).
 
@@ -403,6 +419,10 @@ class Culvert(_StructureControl):
         Exit loss coefficient, 0 to 1 (default 1).
     steps : int
         Standard-step intervals along the barrel (outlet control).
+    road : RoadCrest, optional
+        The road over the culvert: once the headwater rises above its crest
+        the discharge is split between the barrels and the road at one
+        headwater (:mod:`gvflow.structures.overtopping`).
 
     Notes
     -----
@@ -428,6 +448,7 @@ class Culvert(_StructureControl):
     allowable_headwater: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     exit_loss: float = Field(default=EXIT_LOSS, ge=0, le=1, allow_inf_nan=False)
     steps: int = Field(default=100, ge=1)
+    road: RoadCrest | None = None
 
     @model_validator(mode="after")
     def _check_tailwater(self):
@@ -447,7 +468,7 @@ class Culvert(_StructureControl):
                                      downstream_channel=self.downstream_channel,
                                      tailwater_velocity=self.tailwater_velocity if self.tailwater is not None else 0.0,
                                      allowable_headwater=self.allowable_headwater, exit_loss=self.exit_loss,
-                                     steps=self.steps, units=state.units)
+                                     steps=self.steps, road=self.road, units=state.units)
         except GVFlowError as exc:
             raise self._fail(exc, state) from None
 
@@ -478,6 +499,7 @@ class Culvert(_StructureControl):
                      f"{L})"]
             if above[s]:
                 lines.append(f"headwater {hw[s]:.2f} {L} above the allowable {self.allowable_headwater:g} {L}")
+            lines.extend(_culvert_extra_notes(r, s, n, L))
             out.append(lines)
         return out
 
@@ -492,10 +514,17 @@ class Culvert(_StructureControl):
                             b.entrance_loss),
                C.used("culvert.exit_loss") if self.exit_loss == EXIT_LOSS
                else C.given("culvert.exit_loss", C.get("culvert.exit_loss").name, self.exit_loss)]
+        road = self.road
+        if road is not None:
+            out.append(C.used("road.overtopping_cr") if road.coefficient is None
+                       else C.given("road.overtopping_cr", "road weir coefficient (dimensionless form)",
+                                    road.coefficient))
+            out.append(C.used(f"road.submergence_{road.surface}"))
         return tuple(replace(r, used_by="culvert") for r in out)
 
     def plot_mark(self, bed_elevation):
         return "culvert", bed_elevation + self.invert_offset + self.barrel.height
+
 
     def describe(self, units):
         L = units.length
@@ -504,7 +533,8 @@ class Culvert(_StructureControl):
         count = f"{b.barrels} x " if b.barrels > 1 else ""
         tail = (f"tailwater {self.tailwater:.3f} {L}" if self.tailwater is not None
                 else "tailwater at normal depth downstream")
-        return f"culvert, {count}{size}, {b.length:.1f} {L} long, {tail}"
+        road = f", {self.road.describe(units)}" if self.road is not None else ""
+        return f"culvert, {count}{size}, {b.length:.1f} {L} long, {tail}{road}"
 
     def __repr__(self):
         tail = (f"tailwater={self.tailwater:g}" if self.tailwater is not None

@@ -41,7 +41,8 @@ measured above the inlet invert, is the larger of two estimates:
   depth at the inlet, dc + (1 + ke) Vc²/2g, for information only.
 
 The approach velocity in the headwater pool is neglected, as in the manual.
-Road overtopping is not modelled. Just after the barrel entrance leaves
+Flow over the road when the headwater rises above it: ``road=`` of
+:func:`culvert_headwater` and :mod:`gvflow.structures.overtopping`. Just after the barrel entrance leaves
 critical depth as the tailwater rises, the outlet-control headwater dips
 slightly before it rises: y + (1 + ke) V²/2g is least where
 Fr² = 1/(1 + ke), a little above critical depth.
@@ -60,11 +61,12 @@ from .. import coefficients
 from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
 from ..coefficients import INLET_TYPES, CulvertInlet
-from ..errors import InvalidInputError
+from ..errors import ConvergenceError, InvalidInputError
 from ..friction import AnyRoughness
-from ..sections import AnySection, Circular
-from ..uniform import critical_depth, normal_depth
+from ..sections import AnySection
+from ..uniform import normal_depth
 from ..units import UnitsLike, resolve_units
+from ._barrel_kernel import barrel_critical_depth, barrel_partial_geometry, run_march
 from ._common import FrozenModel
 
 __all__ = [
@@ -197,11 +199,10 @@ class CircularBarrel(_Barrel):
         return math.pi * self.diameter
 
     def _partial(self, h):
-        a, p = Circular(diameter=self.diameter)._geometry(h)[:2]
-        return a, p
+        return barrel_partial_geometry(self, h)
 
     def _critical_depth(self, q, u):
-        return np.asarray(critical_depth(Circular(diameter=self.diameter), q, u), dtype=float)
+        return barrel_critical_depth(self, q, u)
 
 
 class BoxBarrel(_Barrel):
@@ -422,7 +423,6 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
     d = barrel.height
     n = barrel.roughness
     k = u.manning_k
-    s0 = barrel.slope
     ke = barrel.ke
     q, tw, vd = (np.atleast_1d(np.array(v, dtype=float)) for v in np.broadcast_arrays(q, tw, vd))
 
@@ -449,41 +449,14 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
         h = np.where(r_low >= 0, h_low, bracketed_root(exit_residual, h_low, hi, rtol=1e-15, what="outlet depth"))
     h_out = h.copy()
 
-    # march upstream by the standard step method
     dx = barrel.length / steps
     sf_low = area_sf(h_low, q)[1]
     sf_full = area_sf(np.full(q.shape, d), q)[1]
     sf_max = np.maximum(sf_low, sf_full)
-    failed = np.zeros(q.shape, dtype=bool)
-    full_all = h >= d
-
-    def step_residual(z, qq, rr):
-        a1, sf1 = area_sf(z, qq)
-        return z + qq * qq / (2.0 * g * a1 * a1) - 0.5 * dx * sf1 - rr
-
-    for _ in range(steps):
-        a2, sf2 = area_sf(h, q)
-        rhs = h + q * q / (2.0 * g * a2 * a2) + dx * (0.5 * sf2 - s0)
-        idx = np.flatnonzero(~failed)
-        ok = step_residual(h_low[idx], q[idx], rhs[idx]) <= 0
-        failed[idx[~ok]] = True
-        sel = idx[ok]
-        if sel.size:
-            qs, rs, ls = q[sel], rhs[sel], h_low[sel]
-            top = np.maximum(rs + dx * sf_max[sel], ls) + 1e-9 * d
-            # The residual rises with depth on the subcritical branch at a rate near 1 away from
-            # critical depth: try a tight bracket around the previous depth first.
-            hp = h[sel]
-            fp = step_residual(hp, qs, rs)
-            w = 4.0 * np.abs(fp) + 1e-12 * d
-            lo_t = np.maximum(hp - w, ls)
-            hi_t = np.minimum(hp + w, top)
-            tight = (step_residual(lo_t, qs, rs) <= 0) & (step_residual(hi_t, qs, rs) >= 0)
-            lo_b = np.where(tight, lo_t, ls)
-            hi_b = np.where(tight, hi_t, top)
-            h[sel] = bracketed_root(lambda z, qs=qs, rs=rs: step_residual(z, qs, rs), lo_b, hi_b, rtol=1e-15,
-                                    what="barrel profile")
-        full_all &= h >= d
+    # march upstream by the standard step method (compiled: gvflow.structures._barrel_kernel)
+    h, failed, full_all, bad = run_march(barrel, q, h, h_low, sf_max, dx, steps, u)
+    if bad:
+        raise ConvergenceError(f"barrel profile: {bad} standard steps did not converge", iterations=200)
     a_in = barrel._area_perimeter(h)[0]
     hw = h + (1.0 + ke) * q * q / (2.0 * g * a_in * a_in)
     # supercritical barrel: critical depth at the entrance
@@ -574,7 +547,8 @@ class CulvertHeadwater:
     tailwater : float or ndarray
         Tailwater depth used [length].
     outlet_depth, inlet_depth : float or ndarray
-        Barrel depths at the outlet and the entrance under outlet control [length].
+        Barrel depths at the outlet and at the entrance under outlet control
+        [length].
     barrel_flow : str or ndarray of str
         Barrel state under outlet control (see :class:`OutletControl`).
     above_allowable : bool or ndarray of bool
@@ -582,6 +556,23 @@ class CulvertHeadwater:
         when none was given).
     allowable_headwater : float or None
         The allowable headwater depth above the inlet invert [length].
+    barrel_discharge, road_discharge : float or ndarray
+        Discharge through all barrels and over the road [length³/s]; they
+        add up to ``discharge`` exactly (road 0 without a road crest or
+        below it).
+    outlet_flow_depth, outlet_velocity : float or ndarray
+        Depth and mean velocity of the flow leaving the barrel [length,
+        length/s], what the scour protection below needs: the barrel
+        profile's outlet depth, or the barrel's normal depth when it runs
+        supercritical from its entrance (:mod:`gvflow.structures.overtopping`).
+    reason : str or ndarray of str
+        Which control governs in the barrel and why, in words.
+    road : RoadCrest or None
+        The road crest given.
+    road_submergence : float or ndarray
+        Submergence factor kt applied to the flow over the road (1: free).
+    units : Units
+        The unit system of the figures.
     """
 
     discharge: object
@@ -595,6 +586,29 @@ class CulvertHeadwater:
     barrel_flow: object
     above_allowable: object
     allowable_headwater: float | None
+    barrel_discharge: object = None
+    road_discharge: object = None
+    outlet_flow_depth: object = None
+    outlet_velocity: object = None
+    reason: object = None
+    road: object = None
+    road_submergence: object = None
+    units: object = None
+
+    def table(self):
+        """Performance table, one row per discharge (pandas DataFrame): discharge, headwater, control,
+        barrel and road discharge, tailwater, outlet depth and velocity, whether above the allowable
+        headwater, and why the control governs."""
+        from .overtopping import performance_table
+
+        return performance_table(self)
+
+    def plot(self, ax=None):
+        """Performance curve (headwater against discharge) marking the road crest and the allowable
+        headwater; returns the matplotlib Axes (draws on ``ax`` when given)."""
+        from .overtopping import plot_performance
+
+        return plot_performance(self, ax=ax, units=self.units if self.units is not None else "SI")
 
     def __repr__(self) -> str:
         if np.ndim(self.headwater) == 0:
@@ -607,8 +621,14 @@ class CulvertHeadwater:
 
 def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: DownstreamChannel | None = None,
                       tailwater_velocity=0.0, allowable_headwater=None, exit_loss: float = EXIT_LOSS, steps: int = 100,
-                      units: UnitsLike = "SI") -> CulvertHeadwater:
+                      road=None, units: UnitsLike = "SI") -> CulvertHeadwater:
     """Governing headwater of a culvert: the larger of inlet and outlet control.
+
+    Over an array of discharges this is the culvert's performance table
+    (:meth:`CulvertHeadwater.table`, :meth:`CulvertHeadwater.plot`). With a
+    ``road`` the discharge that would raise the headwater above the road
+    crest is split between the barrels and the road at one headwater
+    (:mod:`gvflow.structures.overtopping`).
 
     Parameters
     ----------
@@ -631,6 +651,8 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
         Exit loss coefficient, 0 to 1.
     steps : int
         Standard-step intervals along the barrel.
+    road : RoadCrest, optional
+        The road over the culvert; flow over it once the headwater rises above its crest.
     units : "SI", "US" or Units
 
     Returns
@@ -667,6 +689,16 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
     allowable = None
     if allowable_headwater is not None:
         allowable = float(positive_array(allowable_headwater, "allowable_headwater"))
+    if road is not None and not hasattr(road, "low_point"):
+        raise InvalidInputError(f"road must be a RoadCrest; got {road!r}")
+    res = barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u)
+    from .overtopping import finish_culvert_result
+
+    return finish_culvert_result(barrel, res, road=road, tw=tw, vd=vd, exit_loss=exit_loss, steps=steps, units=u)
+
+
+def barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u) -> CulvertHeadwater:
+    """Governing headwater with all of ``q_total`` through the barrels (inputs already checked)."""
     hw_in = np.asarray(inlet_control_headwater(barrel, q_total, u), dtype=float)
     out = outlet_control_headwater(barrel, q_total, tw, tailwater_velocity=vd, exit_loss=exit_loss, steps=steps,
                                    units=u)
@@ -692,4 +724,5 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
         barrel_flow=out.barrel_flow,
         above_allowable=bool(above) if above.ndim == 0 else above,
         allowable_headwater=allowable,
+        units=u,
     )

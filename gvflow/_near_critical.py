@@ -1,0 +1,76 @@
+"""Notes on long stretches of near-critical flow (private).
+
+Where the Froude number stays between 0.85 and 1.15 the depth is close to
+critical depth, where a small change of energy changes the depth a lot: the
+water surface is unstable and wavy (undular), and small changes of
+roughness or discharge move it noticeably (Chow 1959, *Open-Channel
+Hydraulics*, ch. 3, the specific-energy curve near critical depth; design
+manuals advise against designing for Froude numbers near 1, common
+practice). The profile's notes say where this happens over a long stretch.
+
+"Long" here means at least :data:`NEAR_CRITICAL_MIN_LENGTH` critical depths
+along the channel (the stations of one segment, first to last within the
+band). A profile passing through critical depth at a control or a brink
+leaves the band within a few depths and is not reported; a channel laid
+near the critical slope, whose normal flow sits in the band, is.
+
+The band is tested on depths, not on Froude numbers: Fr = Q sqrt(T)/(sqrt(g) A^1.5)
+falls as the depth rises in any section whose critical depth is unique, so
+Fr = F exactly at the critical depth of the discharge Q/F, and the band is
+yc(Q/1.15) <= y <= yc(Q/0.85). That costs two critical depths per segment and
+scenario instead of a Froude number at every station.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from .profiles import _kernel as K
+
+#: Froude numbers bounding near-critical flow (Chow 1959, ch. 3; common practice).
+NEAR_CRITICAL_FROUDE = (0.85, 1.15)
+#: Shortest stretch reported, in critical depths (a choice of this library: several wave lengths of the
+#: undular surface, well beyond the few depths over which a profile passes through critical depth).
+NEAR_CRITICAL_MIN_LENGTH = 10.0
+
+
+@njit(cache=True)
+def _band_depths(kind, p0, p1, p2, q, g, ymax, lo_fr, hi_fr, y_lo, y_hi):
+    for i in range(q.size):
+        y_lo[i] = K.critical_depth(kind, p0, p1, p2, q[i] / hi_fr, g, 1.0, ymax)
+        y_hi[i] = K.critical_depth(kind, p0, p1, p2, q[i] / lo_fr, g, 1.0, ymax)
+
+
+def near_critical_notes(notes, segs, bounds, x, depth, units) -> None:
+    """Append a note to each scenario for every long near-critical stretch of each segment."""
+    lo_fr, hi_fr = NEAR_CRITICAL_FROUDE
+    L = units.length
+    for k, seg in enumerate(segs):
+        i0, m = bounds[k]
+        q = np.ascontiguousarray(seg.discharge, dtype=float)
+        y_lo = np.empty_like(q)
+        y_hi = np.empty_like(q)
+        kind, p0, p1, p2 = seg.spec
+        ymax = float(seg.section.max_depth)
+        _band_depths(int(kind), float(p0), float(p1), float(p2), q, float(units.g), ymax, lo_fr, hi_fr, y_lo, y_hi)
+        y = depth[:, i0:i0 + m]
+        inside = (y >= y_lo[:, None]) & (y <= y_hi[:, None])
+        if not np.any(inside):
+            continue
+        edges = np.diff(np.pad(inside.astype(np.int8), ((0, 0), (1, 1))), axis=1)
+        s_start, j_start = np.nonzero(edges == 1)
+        s_end, j_end = np.nonzero(edges == -1)  # one past the last station inside, same order as the starts
+        xs = x[i0:i0 + m]
+        length = xs[j_end - 1] - xs[j_start]
+        yc = seg.yc[s_start]
+        for r in np.flatnonzero(length >= NEAR_CRITICAL_MIN_LENGTH * yc):
+            s = int(s_start[r])
+            a, b = float(xs[j_start[r]]), float(xs[j_end[r] - 1])
+            notes[s].append((a, "near-critical flow",
+                             f"the Froude number stays between {lo_fr:g} and {hi_fr:g} from x = {a:.2f} to "
+                             f"{b:.2f} {L} in segment {k} ({b - a:.0f} {L}, {(b - a) / yc[r]:.0f} critical "
+                             "depths): near critical depth the water surface is unstable and wavy, and small "
+                             "changes of roughness or discharge move it noticeably (Chow 1959, ch. 3); allow "
+                             "extra freeboard, or change the slope or section to move the Froude number out "
+                             "of this band"))
