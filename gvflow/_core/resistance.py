@@ -76,21 +76,57 @@ def _exponents(law):
 
 
 @kernel
-def conveyance(ch, fl, q, y):
-    """Conveyance K [length³/s] at depth y, so that Q = K sqrt(Sf); ``q`` matters only for Darcy."""
-    if ch.law == DARCY:
-        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
-        r = a / p
-        f = colebrook(4.0 * r * abs(q) / (a * fl.nu), ch.rough[0] / (4.0 * r))
-        return math.sqrt(8.0 * fl.g / f) * a * math.sqrt(r)
+def hydraulics(ch, fl, q, y, alpha):
+    """Everything a step of a profile needs at depth y, in one pass over the section.
+
+    Returns (A, T, M, K, dK/dy / K, alpha, beta, Fr²): area, top width, first moment
+    about the surface, conveyance and its logarithmic derivative (Darcy: friction factor
+    held fixed), the energy and momentum coefficients (a geometric section takes the
+    given ``alpha`` and beta = 1; a surveyed one its own from the zone conveyances),
+    and the square of the Froude number that decides the regime, 1 - dE/dy (for several
+    zones the compound Froude number; module notes).
+    """
+    ea, eb = _exponents(ch.law)
     if ch.kind != SURVEYED:
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
-        return _zone_k(ch.law, ch.rough[0], fl.k, a, p)
-    kk = 0.0
+        if ch.law == DARCY:
+            r = a / p
+            f = colebrook(4.0 * r * abs(q) / (a * fl.nu), ch.rough[0] / (4.0 * r))
+            kk = math.sqrt(8.0 * fl.g / f) * a * math.sqrt(r)
+        else:
+            kk = _zone_k(ch.law, ch.rough[0], fl.k, a, p)
+        return a, t, m, kk, ea * t / a - eb * dp / p, alpha, 1.0, alpha * q * q * t / (fl.g * a * a * a)
+    a_tot = t_tot = m_tot = 0.0
+    kk = dk = s2 = s3 = sig1 = 0.0
     for i in range(zone_count(ch.kind, ch.par)):
         a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
-        kk += _zone_k(ch.law, ch.rough[i], fl.k, a, p)
-    return kk
+        a_tot += a
+        t_tot += t
+        m_tot += m
+        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
+        if ki <= 0.0:
+            continue
+        # dK_i/dy = K_i (ea T_i/A_i - eb P_i'/P_i); d(K_i³/A_i²)/dy = K_i³/A_i² (3 dK_i/K_i - 2 T_i/A_i)
+        g_i = ea * t / a - eb * dp / p
+        c3 = ki * ki * ki / (a * a)
+        kk += ki
+        dk += ki * g_i
+        s2 += ki * ki / a
+        s3 += c3
+        sig1 += c3 * (3.0 * g_i - 2.0 * t / a)
+    if kk <= 0.0:
+        return a_tot, t_tot, m_tot, 0.0, math.inf, 1.0, 1.0, math.inf
+    al = s3 * a_tot * a_tot / (kk * kk * kk)
+    be = s2 * a_tot / (kk * kk)
+    # dE/dy = 1 + Q²/(2g) d(sigma3/K³)/dy = 1 + Q²/(2g K³) (sigma1 - 3 sigma3 K'/K)
+    fr2 = -q * q / (2.0 * fl.g * kk * kk * kk) * (sig1 - 3.0 * s3 * dk / kk)
+    return a_tot, t_tot, m_tot, kk, dk / kk, al, be, fr2
+
+
+@kernel
+def conveyance(ch, fl, q, y):
+    """Conveyance K [length³/s] at depth y, so that Q = K sqrt(Sf); ``q`` matters only for Darcy."""
+    return hydraulics(ch, fl, q, y, 1.0)[3]
 
 
 @kernel
@@ -103,19 +139,7 @@ def friction_slope(ch, fl, q, y):
 @kernel
 def dlnsf_dy(ch, fl, q, y):
     """d ln(Sf)/dy at fixed discharge, -2 dK/dy / K (Darcy: friction factor held fixed)."""
-    ea, eb = _exponents(ch.law)
-    if ch.kind != SURVEYED or ch.law == DARCY:
-        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
-        return -2.0 * (ea * t / a - eb * dp / p)
-    kk = 0.0
-    dk = 0.0
-    for i in range(zone_count(ch.kind, ch.par)):
-        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
-        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
-        if ki > 0.0:
-            kk += ki
-            dk += ki * (ea * t / a - eb * dp / p)
-    return -2.0 * dk / kk
+    return -2.0 * hydraulics(ch, fl, q, y, 1.0)[4]
 
 
 @kernel
@@ -147,56 +171,11 @@ def velocity_coefficients(ch, fl, y, alpha):
     A surveyed section's own coefficients from its zone conveyances (1 and 1 for
     one zone); a geometric section takes the given ``alpha`` and beta = 1.
     """
-    if ch.kind != SURVEYED:
-        return alpha, 1.0
-    nz = zone_count(ch.kind, ch.par)
-    if nz == 1:
-        return 1.0, 1.0
-    a_tot = 0.0
-    kk = 0.0
-    s3 = 0.0
-    s2 = 0.0
-    for i in range(nz):
-        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
-        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
-        if ki > 0.0:
-            a_tot += a
-            kk += ki
-            s3 += ki * ki * ki / (a * a)
-            s2 += ki * ki / a
-    if kk <= 0.0:
-        return 1.0, 1.0
-    return s3 * a_tot * a_tot / (kk * kk * kk), s2 * a_tot / (kk * kk)
+    h = hydraulics(ch, fl, 1.0, y, alpha)
+    return h[5], h[6]
 
 
 @kernel
 def froude_squared(ch, fl, q, y, alpha):
-    """Square of the Froude number that decides the regime: 1 - dE/dy at depth y.
-
-    One zone: alpha Q² T/(g A³). Several zones: the compound Froude number
-    (module notes), exactly 1 where the specific energy with depth-varying alpha
-    is stationary.
-    """
-    if ch.kind != SURVEYED or zone_count(ch.kind, ch.par) == 1:
-        a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
-        al, be = velocity_coefficients(ch, fl, y, alpha)
-        return al * q * q * t / (fl.g * a * a * a)
-    ea, eb = _exponents(ch.law)
-    kk = 0.0
-    sig1 = 0.0
-    sig2 = 0.0
-    sig3 = 0.0
-    for i in range(zone_count(ch.kind, ch.par)):
-        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
-        ki = _zone_k(ch.law, ch.rough[i], fl.k, a, p)
-        if ki <= 0.0:
-            continue
-        kk += ki
-        # dK_i/dy = K_i (ea T_i/A_i - eb P_i'/P_i); d(K_i³/A_i²)/dy = K_i³/A_i² (3 dK_i/K_i - 2 T_i/A_i)
-        g_i = ea * t / a - eb * dp / p
-        c3 = ki * ki * ki / (a * a)
-        sig3 += c3
-        sig2 += ki * g_i
-        sig1 += c3 * (3.0 * g_i - 2.0 * t / a)
-    # dE/dy = 1 + Q²/(2g) d(sigma3/K³)/dy = 1 + Q²/(2g K³) (sigma1 - 3 sigma3 sigma2 / K)
-    return -q * q / (2.0 * fl.g * kk * kk * kk) * (sig1 - 3.0 * sig3 * sig2 / kk)
+    """Square of the Froude number that decides the regime: 1 - dE/dy at depth y (see :func:`hydraulics`)."""
+    return hydraulics(ch, fl, q, y, alpha)[7]
