@@ -22,6 +22,9 @@ AVG_HARMONIC = 2
 AVG_CONVEYANCE = 3
 AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
             "conveyance": AVG_CONVEYANCE}
+# the friction slope at the step's far end only (a backward-Euler step): first order, but it damps any
+# stiffness, so the march uses it for sub-steps far longer than the relaxation length (never a user option)
+AVG_END = 4
 
 SUB = 1  # subcritical branch, traced upstream
 SUPER = -1  # supercritical branch, traced downstream
@@ -109,6 +112,8 @@ def sf_average(avg, s1, s2):
         return m, 0.5 * m / s2
     elif avg == 2:
         return 2.0 * s1 * s2 / (s1 + s2), 2.0 * s1 * s1 / ((s1 + s2) * (s1 + s2))
+    elif avg == AVG_END:
+        return s2, 1.0
     a1 = 1.0 / math.sqrt(s1)
     a2 = 1.0 / math.sqrt(s2)
     den = a1 + a2
@@ -339,6 +344,178 @@ def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k,
     return (e1 - ec) / den
 
 
+#: relative band about critical depth inside which a march interval is integrated in the x(y) form
+CRITICAL_BAND = 0.05
+#: most sub-steps one station interval may be split into where the profile is stiff
+MAX_SUBSTEPS = 256
+
+# Gauss-Legendre nodes and weights on [-1, 1], 8 points (Abramowitz & Stegun 1964, table 25.4)
+_GL_X = np.array([-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498,
+                  0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363])
+_GL_W = np.array([0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620,
+                  0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763])
+
+
+@njit(cache=True)
+def gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
+    """Numerator and denominator of the GVF equation dy/dx = (S0 - Sf)/(1 - alpha Q² T/(g A³)) at depth y
+    (Chow 1959, *Open-Channel Hydraulics*, eq. 9-10, x downstream)."""
+    a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+    sf = fslope(law, coef, k, g, nu, q, a, p)
+    return s0 - sf, 1.0 - alpha * q * q * t / (g * a * a * a)
+
+
+@njit(cache=True)
+def relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y):
+    """Rate [1/length] at which a profile near depth y relaxes toward normal depth: |dSf/dy| / |1 - Fr²|,
+    the stiffness of the GVF equation (its Jacobian where S0 = Sf). A trapezoidal energy step longer than
+    2/rate overshoots normal depth; the march keeps its sub-steps within 1/rate."""
+    a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+    sf = fslope(law, coef, k, g, nu, q, a, p)
+    den = abs(1.0 - alpha * q * q * t / (g * a * a * a))
+    return sf * abs(dlnsf_dy(law, a, p, t, dp)) / max(den, 1e-3)
+
+
+@njit(cache=True)
+def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y):
+    """dx/dy of the energy equation with eddy loss: ((1 - Fr²) + sxy Ce Fr²)/(S0 - Sf), sxy = sign(dx dy)."""
+    num, den = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
+    return (den + sxy * ce * (1.0 - den)) / num
+
+
+@njit(cache=True)
+def x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, ya, yb):
+    """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by 8-point Gauss-Legendre
+    quadrature (the x(y) form is regular at critical depth, where dy/dx is infinite)."""
+    h = 0.5 * (yb - ya)
+    c = 0.5 * (yb + ya)
+    tot = 0.0
+    for i in range(8):
+        tot += _GL_W[i] * _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, c + h * _GL_X[i])
+    return tot * h
+
+
+@njit(cache=True)
+def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, k, g, nu, ymax):
+    """March near critical depth in the x(y) form, where the depth changes as the square root of distance.
+
+    From depth y1 (within :data:`CRITICAL_BAND` of yc) over signed distance d. Returns (y, dist, code):
+    code 0, the depth y after the full distance; code 1, the profile reaches critical depth after ``dist``;
+    code 5, the leg ended after ``dist`` < |d| at depth y, where the x(y) form stops being the better one
+    (the standard step takes over); code 6, the x(y) form does not apply (normal depth too close).
+    """
+    sgn_d = 1.0 if d > 0 else -1.0
+    # which way the depth moves: dy/dx at y1, nudged onto the branch if y1 is critical depth itself
+    probe = y1
+    if abs(y1 - yc) <= 1e-9 * yc:
+        probe = yc * (1.0 + branch * 1e-6)
+    num0, den0 = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, probe)
+    if num0 == 0.0 or den0 * branch < 0.0:
+        return y1, 0.0, 6
+    sdy = sgn_d * (1.0 if num0 / den0 > 0 else -1.0)  # sign of the depth change
+    toward = (sdy > 0) == (branch == -1)
+    if toward:
+        yb = yc
+    else:
+        yb = yc * (1.0 + branch * 3.0 * CRITICAL_BAND)
+        if branch == 1 and yb >= ymax:
+            yb = y1 + 0.5 * (ymax - y1)
+        # keep the leg where S0 - Sf stays at least half its starting size (away from normal depth)
+        for _ in range(40):
+            nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
+            if nb * num0 > 0.0 and abs(nb) >= 0.5 * abs(num0) and db * branch > 0.0:
+                break
+            yb = y1 + 0.5 * (yb - y1)
+        else:
+            return y1, 0.0, 6
+        if abs(yb - y1) <= 1e-12 * yc:
+            return y1, 0.0, 6
+    sxy = sgn_d * sdy
+    xb = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, yb)
+    if not (xb * sgn_d >= 0.0) or not math.isfinite(xb):
+        return y1, 0.0, 6
+    if abs(xb) <= abs(d):
+        return yb, abs(xb), (1 if toward else 5)
+    # solve x_of_y(y1, y) = d for y between y1 and yb: safeguarded Newton (x(y) is monotone there)
+    lo, hi = y1, yb  # x(lo) - d has the sign opposite to x(hi) - d
+    flo = -d
+    y = y1 + (yb - y1) * (d / xb if toward else math.sqrt(d / xb))
+    for _ in range(100):
+        f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y) - d
+        if (f > 0.0) == (flo > 0.0):
+            lo, flo = y, f
+        else:
+            hi = y
+        df = _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y)
+        yn = y - f / df if df != 0.0 and math.isfinite(df) else 0.5 * (lo + hi)
+        if not (min(lo, hi) < yn < max(lo, hi)):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= 1e-14 * yc or abs(f) <= 1e-13 * abs(d):
+            return yn, abs(d), 0
+        y = yn
+    return y, abs(d), 0
+
+
+@njit(cache=True)
+def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol, guess):
+    """Depth one station interval (signed length d) from depth y1 on ``branch``: (depth, code, dist).
+
+    Near critical depth (within :data:`CRITICAL_BAND`) the interval is integrated in the x(y) form
+    (:func:`critical_leg`), so the square-root behaviour there costs no accuracy; elsewhere it is one
+    standard step (:func:`step`), cut into sub-steps no longer than the relaxation length
+    1/:func:`relaxation_rate` where the profile is stiff, so the depth approaches normal depth
+    monotonically at any station spacing. Codes as :func:`step`; with code 1, ``dist`` is the distance
+    from y1 at which the profile reaches critical depth.
+    """
+    y = y1
+    done = 0.0
+    total = abs(d)
+    sgn = 1.0 if d > 0 else -1.0
+    first = True
+    legs = 0
+    for _ in range(4 * MAX_SUBSTEPS):
+        rest = total - done
+        if rest <= 1e-12 * total:
+            return y, 0, done
+        if legs < 60 and abs(y - yc) <= CRITICAL_BAND * yc:
+            legs += 1
+            yl, dist, code = critical_leg(kind, p0, p1, p2, law, coef, q, s0, y, sgn * rest, yc, branch, alpha, ce,
+                                          k, g, nu, ymax)
+            if code == 0:
+                return yl, 0, total
+            if code == 1:
+                return yc, 1, done + dist
+            if code == 5:
+                y = yl
+                done += dist
+                first = False
+                continue
+        rate = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y)
+        h = rest
+        how = avg
+        if rate * rest > 1.0:
+            # stiff: sub-steps of one relaxation length; past MAX_SUBSTEPS of them, damped (end-slope) steps
+            h = min(max(1.0 / rate, total / MAX_SUBSTEPS), rest)
+            if rate * h > 1.5:
+                how = AVG_END
+        y2, code = step(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, how, k, g, nu,
+                        ymax, tol, guess if first and h >= rest else y)
+        if code == 1:
+            # near critical depth a long step can miss a root the profile really has (the discrete
+            # energy equation loses it before the profile does): retry with sub-steps first
+            y2, code = substeps(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, how, k, g,
+                                nu, ymax, tol)
+        if code != 0:
+            if code == 1:
+                dc = critical_distance(kind, p0, p1, p2, law, coef, q, s0, y, yc, alpha, avg, k, g, nu)
+                return yc, 1, done + min(max(dc * sgn, 0.0), h)
+            return y2, code, done
+        y = y2
+        done += h
+        first = False
+    return y, 3, done
+
+
 @njit(cache=True)
 def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol,
           until_force, force_tol, out_y, out_n, out_xc, out_code):
@@ -370,21 +547,13 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
             continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
-                            k, g, nu, ymax, tol, extrapolate(x, out_y[s], j, even))
-            if code == 1:
-                # Near critical depth a long step can miss a root the profile really has (the
-                # discrete energy equation loses it before the profile does): retry with
-                # sub-steps before declaring that the profile reaches critical depth.
-                y2, code = substeps(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce,
-                                    avg, k, g, nu, ymax, tol)
+            y2, code, dist = advance(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce,
+                                     avg, k, g, nu, ymax, tol, extrapolate(x, out_y[s], j, even))
             if code != 0:
                 out_n[s] = j
                 out_code[s] = code
                 if code == 1:
-                    dc = critical_distance(kind, p0, p1, p2, law, coef[s], q[s], s0, y, yc[s], alpha, avg,
-                                           k, g, nu)
-                    frac = min(max(dc / d, 0.0), 1.0) if d != 0.0 else 0.0
+                    frac = min(max(dist / abs(d), 0.0), 1.0) if d != 0.0 else 0.0
                     out_xc[s] = x[j - 1] + frac * d
                 for jj in range(j, m):
                     out_y[s, jj] = math.nan
@@ -520,10 +689,8 @@ def _branch_depth(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, 
     """Depth a signed distance d from (y1) along ``branch``; critical depth where the branch ends."""
     if d == 0.0:
         return y1
-    y, code = step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol, y1)
-    if code == 1:
-        y, code = substeps(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax,
-                           tol)
+    y, code, dist = advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax,
+                            tol, y1)
     return y if code == 0 else yc
 
 

@@ -40,22 +40,14 @@ IVP_METHODS = ("RK45", "RK23", "DOP853", "Radau", "BDF", "LSODA")
 
 
 @njit(cache=True, error_model="numpy")
-def _terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    """(S0 - Sf, 1 - alpha Q² T/(g A³)) at depth y."""
-    a, p, t, m, dp = K.geom(kind, p0, p1, p2, y)
-    sf = K.fslope(law, coef, k, g, nu, q, a, p)
-    return s0 - sf, 1.0 - alpha * q * q * t / (g * a * a * a)
-
-
-@njit(cache=True, error_model="numpy")
 def _dydx(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    num, den = _terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
+    num, den = K.gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
     return num / den
 
 
 @njit(cache=True, error_model="numpy")
 def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    num, den = _terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
+    num, den = K.gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
     return den / num
 
 
