@@ -345,7 +345,7 @@ def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k,
 
 
 #: relative band about critical depth inside which a march interval is integrated in the x(y) form
-CRITICAL_BAND = 0.05
+CRITICAL_BAND = 0.25
 #: most sub-steps one station interval may be split into where the profile is stiff
 MAX_SUBSTEPS = 256
 
@@ -384,15 +384,18 @@ def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y):
 
 
 @njit(cache=True)
-def x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, ya, yb):
+def x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, ya, yb, panels):
     """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by 8-point Gauss-Legendre
-    quadrature (the x(y) form is regular at critical depth, where dy/dx is infinite)."""
-    h = 0.5 * (yb - ya)
-    c = 0.5 * (yb + ya)
+    quadrature on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx is
+    infinite)."""
+    w = (yb - ya) / panels
     tot = 0.0
-    for i in range(8):
-        tot += _GL_W[i] * _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, c + h * _GL_X[i])
-    return tot * h
+    for j in range(panels):
+        h = 0.5 * w
+        c = ya + (j + 0.5) * w
+        for i in range(8):
+            tot += _GL_W[i] * _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, c + h * _GL_X[i]) * h
+    return tot
 
 
 @njit(cache=True)
@@ -417,13 +420,14 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
     if toward:
         yb = yc
     else:
-        yb = yc * (1.0 + branch * 3.0 * CRITICAL_BAND)
+        yb = yc * (1.0 + branch * 2.0 * CRITICAL_BAND)
         if branch == 1 and yb >= ymax:
             yb = y1 + 0.5 * (ymax - y1)
-        # keep the leg where S0 - Sf stays at least half its starting size (away from normal depth)
-        for _ in range(40):
+        # keep the leg clear of normal depth, where dx/dy has a pole: S0 - Sf at least a quarter of its size
+        # at the start
+        for _ in range(60):
             nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
-            if nb * num0 > 0.0 and abs(nb) >= 0.5 * abs(num0) and db * branch > 0.0:
+            if nb * num0 > 0.0 and db * branch > 0.0 and abs(nb) >= 0.25 * abs(num0):
                 break
             yb = y1 + 0.5 * (yb - y1)
         else:
@@ -431,7 +435,14 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
         if abs(yb - y1) <= 1e-12 * yc:
             return y1, 0.0, 6
     sxy = sgn_d * sdy
-    xb = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, yb)
+    # Gauss panels no longer than the distance from the leg's far end to the pole of dx/dy at normal depth
+    # (by the tangent of S0 - Sf there, an underestimate), so each is integrated to round-off
+    nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
+    a, p, t, m, dp = geom(kind, p0, p1, p2, yb)
+    reach = abs(nb) / max((s0 - nb) * abs(dlnsf_dy(law, a, p, t, dp)), 1e-300)
+    panels = int(min(64.0, math.ceil(abs(yb - y1) / max(reach, 1e-300))))
+    panels = max(panels, 1)
+    xb = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, yb, panels)
     if not (xb * sgn_d >= 0.0) or not math.isfinite(xb):
         return y1, 0.0, 6
     if abs(xb) <= abs(d):
@@ -441,7 +452,9 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
     flo = -d
     y = y1 + (yb - y1) * (d / xb if toward else math.sqrt(d / xb))
     for _ in range(100):
-        f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y) - d
+        f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y, panels) - d
+        if abs(f) <= 1e-13 * abs(d):
+            return y, abs(d), 0
         if (f > 0.0) == (flo > 0.0):
             lo, flo = y, f
         else:
@@ -450,7 +463,7 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
         yn = y - f / df if df != 0.0 and math.isfinite(df) else 0.5 * (lo + hi)
         if not (min(lo, hi) < yn < max(lo, hi)):
             yn = 0.5 * (lo + hi)
-        if abs(yn - y) <= 1e-14 * yc or abs(f) <= 1e-13 * abs(d):
+        if abs(yn - y) <= 1e-14 * yc:
             return yn, abs(d), 0
         y = yn
     return y, abs(d), 0
