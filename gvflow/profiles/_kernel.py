@@ -15,6 +15,8 @@ import math
 import numpy as np
 from numba import njit
 
+from ..errors import ConvergenceError
+
 # friction-slope averages between two stations
 AVG_ARITHMETIC = 0
 AVG_GEOMETRIC = 1
@@ -133,10 +135,15 @@ def critical_depth(kind, p0, p1, p2, q, g, alpha, ymax):
                 break
             lo = hi
             hi *= 2.0
+        else:
+            raise ConvergenceError("critical depth: no depth up to 2^200 length units carries the discharge; "
+                                   "check the discharge and the section's units")
     y = 0.5 * (lo + hi) if lo > 0 else 0.5 * hi
     for _ in range(200):
         a, p, t, m, dp = geom(kind, p0, p1, p2, y)
         f = 3.0 * math.log(a) - math.log(t) - target
+        if not math.isfinite(f):
+            break
         if f > 0:
             hi = y
         else:
@@ -155,9 +162,14 @@ def critical_depth(kind, p0, p1, p2, q, g, alpha, ymax):
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= 1e-14 * y or hi - lo <= 1e-15 * hi:
-            return yn
+            # converged on the depth; the residual (a relative error in alpha Q² T/(g A³)) must be small too
+            a, p, t, m, dp = geom(kind, p0, p1, p2, yn)
+            if abs(3.0 * math.log(a) - math.log(t) - target) <= 1e-8:
+                return yn
+            break
         y = yn
-    return y
+    raise ConvergenceError("critical depth did not converge (alpha Q² T = g A³ not met to 1e-8); check that "
+                           "the discharge and the section are in the same units and of plausible size")
 
 
 @njit(cache=True)
@@ -189,6 +201,9 @@ def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
             if fslope(law, coef, k, g, nu, q, a, p) < s0:
                 break
             hi *= 2.0
+        else:
+            raise ConvergenceError("normal depth: no depth up to 2^200 length units carries the discharge at "
+                                   "this slope; check the discharge, roughness and slope and their units")
     lo = 0.0
     y = 0.5 * hi
     lns0 = math.log(s0)
@@ -204,9 +219,16 @@ def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= 1e-14 * y or hi - lo <= 1e-15 * hi:
-            return yn
+            # converged on the depth; the friction slope there must match the bed slope too (it need not
+            # where the resistance law is not monotone in depth, e.g. a roughness height near 2R)
+            a, p, t, m, dp = geom(kind, p0, p1, p2, yn)
+            if abs(math.log(fslope(law, coef, k, g, nu, q, a, p)) - lns0) <= 1e-8:
+                return yn
+            break
         y = yn
-    return y
+    raise ConvergenceError("normal depth did not converge (the friction slope does not reach the bed slope to "
+                           "1e-8); for Darcy-Weisbach, a roughness height ks near or above the hydraulic radius "
+                           "is outside Colebrook-White's range: check ks and its units")
 
 
 @njit(cache=True)
@@ -359,7 +381,8 @@ _GL_W = np.array([0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.
 @njit(cache=True)
 def gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
     """Numerator and denominator of the GVF equation dy/dx = (S0 - Sf)/(1 - alpha Q² T/(g A³)) at depth y
-    (Chow 1959, *Open-Channel Hydraulics*, eq. 9-10, x downstream)."""
+    (Chow 1959, *Open-Channel Hydraulics*, eq. 9-13, x downstream): the compiled mirror of
+    :func:`gvflow.profiles.equation.gvf_terms`, for the marchers."""
     a, p, t, m, dp = geom(kind, p0, p1, p2, y)
     sf = fslope(law, coef, k, g, nu, q, a, p)
     return s0 - sf, 1.0 - alpha * q * q * t / (g * a * a * a)
