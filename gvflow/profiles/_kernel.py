@@ -440,23 +440,23 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
         return y1, 0.0, 6
     sdy = sgn_d * (1.0 if num0 / den0 > 0 else -1.0)  # sign of the depth change
     toward = (sdy > 0) == (branch == -1)
-    if toward:
-        yb = yc
+    yb = yc if toward else yc * (1.0 + branch * 2.0 * CRITICAL_BAND)
+    if branch == 1 and yb >= ymax:
+        yb = y1 + 0.5 * (ymax - y1)
+    # keep the leg clear of normal depth, where dx/dy has a pole (a profile tending to normal depth
+    # between here and critical depth never reaches critical depth): S0 - Sf at least a quarter of its
+    # size at the start all along the leg
+    for _ in range(60):
+        ychk = yb if yb != yc else yc * (1.0 + branch * 1e-6)
+        nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ychk)
+        if nb * num0 > 0.0 and db * branch > 0.0 and abs(nb) >= 0.25 * abs(num0):
+            break
+        yb = y1 + 0.5 * (yb - y1)
     else:
-        yb = yc * (1.0 + branch * 2.0 * CRITICAL_BAND)
-        if branch == 1 and yb >= ymax:
-            yb = y1 + 0.5 * (ymax - y1)
-        # keep the leg clear of normal depth, where dx/dy has a pole: S0 - Sf at least a quarter of its size
-        # at the start
-        for _ in range(60):
-            nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
-            if nb * num0 > 0.0 and db * branch > 0.0 and abs(nb) >= 0.25 * abs(num0):
-                break
-            yb = y1 + 0.5 * (yb - y1)
-        else:
-            return y1, 0.0, 6
-        if abs(yb - y1) <= 1e-12 * yc:
-            return y1, 0.0, 6
+        return y1, 0.0, 6
+    if abs(yb - y1) <= 1e-12 * yc:
+        return y1, 0.0, 6
+    toward = toward and yb == yc
     sxy = sgn_d * sdy
     # Gauss panels no longer than the distance from the leg's far end to the pole of dx/dy at normal depth
     # (by the tangent of S0 - Sf there, an underestimate), so each is integrated to round-off
