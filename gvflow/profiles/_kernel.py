@@ -737,8 +737,9 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
 
     The supercritical profile is stepped downstream from (x_lo, y_sup), the
     subcritical one upstream from (x_hi, y_sub); the Illinois variant of
-    regula falsi finds where their specific forces balance, to 1e-10 of the
-    station spacing. An element that does not converge gets x = NaN.
+    regula falsi finds where their specific forces balance, to 1e-13 of the
+    force or 1e-10 of the station spacing. An element that does not converge
+    gets x = NaN.
     """
     for i in range(q.shape[0]):
         a, b = x_lo[i], x_hi[i]
@@ -760,8 +761,11 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
                                       1, alpha, ce, avg, k, g, nu, ymax, tol)
             continue
         converged = False
+        mscale = specific_force(kind, p0, p1, p2, q[i], g, y_sub[i])
         for _ in range(200):
-            if abs(b - a) <= xtol or fb == 0.0:
+            # converged on the force residual, or on the bracket (where the residual may stay large only at a
+            # discontinuity of the marched depths: the caller checks the balance of what it gets)
+            if abs(fb) <= 1e-13 * mscale or abs(b - a) <= xtol:
                 converged = True
                 break
             x = b - fb * (b - a) / (fb - fa)
