@@ -207,6 +207,7 @@ def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
     lo = 0.0
     y = 0.5 * hi
     lns0 = math.log(s0)
+    y_prev = f_prev = math.nan
     for _ in range(200):
         a, p, t, m, dp = geom(kind, p0, p1, p2, y)
         f = math.log(fslope(law, coef, k, g, nu, q, a, p)) - lns0  # decreasing in y
@@ -215,6 +216,13 @@ def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
         else:
             hi = y
         df = dlnsf_dy(law, a, p, t, dp)
+        if law == 2 and y_prev == y_prev and y != y_prev:
+            # Darcy: dlnsf_dy holds the friction factor fixed, which is far off where ks/4R is large;
+            # the secant slope keeps the iteration superlinear
+            sec = (f - f_prev) / (y - y_prev)
+            if sec < 0.0:
+                df = sec
+        y_prev, f_prev = y, f
         yn = y - f / df if df < 0 else 0.5 * (lo + hi)
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
@@ -318,12 +326,19 @@ def step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, 
             hi = lo
             lo *= 0.5
     y = y1 if lo < y1 < hi else 0.5 * (lo + hi)
+    y_prev = r_prev = math.nan
     for _ in range(100):
         r, dr = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg, k, g, nu)
         if (r > 0.0) == (branch == 1):
             hi = y
         else:
             lo = y
+        if law == 2 and y_prev == y_prev and y != y_prev:
+            # Darcy: the analytic slope holds the friction factor fixed; the secant keeps Newton superlinear
+            sec = (r - r_prev) / (y - y_prev)
+            if (sec > 0.0) == (dr > 0.0):
+                dr = sec
+        y_prev, r_prev = y, r
         yn = y - r / dr if dr != 0.0 else 0.5 * (lo + hi)
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
