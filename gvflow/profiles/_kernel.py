@@ -407,7 +407,7 @@ def gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
 def relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y):
     """Rate [1/length] at which a profile near depth y relaxes toward normal depth: |dSf/dy| / |1 - Fr²|,
     the stiffness of the GVF equation (its Jacobian where S0 = Sf). A trapezoidal energy step longer than
-    2/rate overshoots normal depth; the march keeps its sub-steps within 1/rate."""
+    2/rate overshoots normal depth; the march keeps its sub-steps within 1/(4 rate)."""
     a, p, t, m, dp = geom(kind, p0, p1, p2, y)
     sf = fslope(law, coef, k, g, nu, q, a, p)
     den = abs(1.0 - alpha * q * q * t / (g * a * a * a))
@@ -513,9 +513,10 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
 
     Near critical depth (within :data:`CRITICAL_BAND`) the interval is integrated in the x(y) form
     (:func:`critical_leg`), so the square-root behaviour there costs no accuracy; elsewhere it is one
-    standard step (:func:`step`), cut into sub-steps no longer than the relaxation length
-    1/:func:`relaxation_rate` where the profile is stiff, so the depth approaches normal depth
-    monotonically at any station spacing. Codes as :func:`step`; with code 1, ``dist`` is the distance
+    standard step (:func:`step`), cut into sub-steps of a quarter of the relaxation length
+    1/:func:`relaxation_rate` where the interval is longer than that length, so the depth approaches
+    normal depth monotonically at any station spacing; past :data:`MAX_SUBSTEPS` sub-steps they are
+    damped end-slope (backward Euler) steps, monotone at any length. Codes as :func:`step`; with code 1, ``dist`` is the distance
     from y1 at which the profile reaches critical depth.
     """
     y = y1
@@ -544,9 +545,11 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
         rate = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y)
         h = rest
         how = avg
-        if rate * rest > 1.0:
-            # stiff: sub-steps of one relaxation length; past MAX_SUBSTEPS of them, damped (end-slope) steps
-            h = min(max(1.0 / rate, total / MAX_SUBSTEPS), rest)
+        if rate * rest > 0.5:
+            # stiff: sub-steps of a quarter relaxation length (the trapezoidal step then decays a departure
+            # from normal depth within 0.1 % of exp(-x rate)); past MAX_SUBSTEPS of them, damped
+            # (end-slope) steps
+            h = min(max(0.25 / rate, total / MAX_SUBSTEPS), rest)
             if rate * h > 1.5:
                 how = AVG_END
         y2, code = step(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, how, k, g, nu,
