@@ -3,8 +3,11 @@
 A piece is a run of one regime (subcritical or supercritical) inside one
 segment between jumps; a piece runs through the critical-depth stations at
 its ends (where it starts from or runs into critical depth). Stretches at
-normal depth throughout are uniform flow, not gradually varied flow, and get
-no piece. Each piece is labelled (M1 ... A3) from its median depth.
+normal depth (within :data:`UNIFORM_TOLERANCE`) are uniform flow, not gradually
+varied flow, and get no piece: a piece ends where its depth reaches normal
+depth. Each piece is labelled (M1 ... A3) from its start (the control end it
+is traced from) and the zone it moves into from there, so every station of
+the piece lies in the zone its label names.
 """
 
 from __future__ import annotations
@@ -73,9 +76,12 @@ def _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, count, s, out_s, out_k, out_r,
     """Continuous profile pieces of one scenario's station sequence (:func:`_scenario_sequence`), sorted by
     (x_start, x_end); ``yn`` its normal depth per segment.
 
-    Runs of one regime inside one segment between jumps, skipping those at
-    normal depth throughout (uniform flow), labelled by their median depth,
-    extended through a critical-depth station at either end. Writes them from
+    Runs of one regime inside one segment between jumps, extended through a
+    critical-depth station at either end. Each is labelled from where it
+    starts (its control end: downstream for subcritical flow, upstream for
+    supercritical flow) and the zone it moves into from there, and ends where
+    it reaches normal depth within ``uni_tol``: beyond is uniform flow, which
+    gets no piece (nor does a run that starts at normal depth). Writes them from
     row ``w`` of the out arrays (scenario index ``s``) unless ``count``;
     returns the next free row either way.
     """
@@ -97,23 +103,34 @@ def _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, count, s, out_s, out_k, out_r,
                     e += 1
                 k = ks[i]
                 ynk = yn[k]
-                uniform = np.isfinite(ynk)
-                if uniform:
-                    for t in range(i, e + 1):
-                        if abs(ys[t] - ynk) > uni_tol * ynk:
-                            uniform = False
+                first = i - 1 if i > start and rs[i - 1] == 0 else i
+                last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
+                # the profile starts at its control end (downstream for subcritical flow, traced upstream;
+                # upstream for supercritical flow) and runs into the zone it enters from there
+                step = 1 if want == -1 else -1
+                a = first if want == -1 else last
+                b = last if want == -1 else first
+                at_normal = np.isfinite(ynk)
+                ya = ys[a]
+                if not (at_normal and abs(ya - ynk) <= uni_tol * ynk):
+                    # it ends where it reaches normal depth (within tolerance): uniform flow beyond
+                    t = a
+                    while t != b:
+                        t += step
+                        if at_normal and abs(ys[t] - ynk) <= uni_tol * ynk:
                             break
-                if not uniform:
-                    if not count:
-                        first = i - 1 if i > start and rs[i - 1] == 0 else i
-                        last = e + 1 if e < j - 1 and rs[e + 1] == 0 else e
-                        out_s[w] = s
-                        out_k[w] = k
-                        out_r[w] = want
-                        out_x0[w] = xs[first]
-                        out_x1[w] = xs[last]
-                        out_med[w] = np.median(ys[i:e + 1])
-                    w += 1
+                    if t != a:
+                        # its depth just after the start, on the side it moves to, decides the zone
+                        nxt = ys[a + step]
+                        rep = ya if nxt == ya else ya + (1.0 if nxt > ya else -1.0) * uni_tol * ya
+                        if not count:
+                            out_s[w] = s
+                            out_k[w] = k
+                            out_r[w] = want
+                            out_x0[w] = xs[min(a, t)]
+                            out_x1[w] = xs[max(a, t)]
+                            out_med[w] = rep
+                        w += 1
                 i = e + 1
         start = j
     if not count:
@@ -133,7 +150,7 @@ def _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, count, s, out_s, out_k, out_r,
 
 @njit(cache=True)
 def _piece_arrays(size):
-    """Out arrays of :func:`_sequence_pieces` for ``size`` pieces: scenario, segment, regime, x0, x1, median."""
+    """Out arrays of :func:`_sequence_pieces` for ``size`` pieces: scenario, segment, regime, x0, x1, depth deciding the label."""
     return (np.empty(size, np.int64), np.empty(size, np.int64), np.empty(size, np.int64), np.empty(size),
             np.empty(size), np.empty(size))
 
@@ -141,7 +158,7 @@ def _piece_arrays(size):
 @njit(cache=True)
 def _all_pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg, j_junc, yn, uni_tol):
     """The pieces of every scenario, counted, allocated and filled in one call: (scenario, segment, regime,
-    x0, x1, median) per piece, scenario by scenario."""
+    x0, x1, depth deciding the label) per piece, scenario by scenario."""
     out = _piece_arrays(0)
     w = 0
     for fill in (False, True):  # count, then fill
@@ -158,7 +175,7 @@ def _all_pieces(x, depth, regime, seg, jump_ptr, j_after, j_x, j_y1, j_y2, j_seg
 
 @njit(cache=True)
 def _one_scenario_pieces(xs, ys, rs, ks, yn, uni_tol):
-    """:func:`_all_pieces` for one scenario's station sequence: (segment, regime, x0, x1, median)."""
+    """:func:`_all_pieces` for one scenario's station sequence: (segment, regime, x0, x1, depth deciding the label)."""
     out = _piece_arrays(_sequence_pieces(xs, ys, rs, ks, yn, uni_tol, True, 0, *_piece_arrays(0), 0))
     _sequence_pieces(xs, ys, rs, ks, yn, uni_tol, False, 0, *out, 0)
     return out[1:]

@@ -38,6 +38,8 @@ from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
 _M_TOL = 1e-12  # relative tolerance when comparing specific forces
+#: a jump inside a segment whose specific forces differ by more than this (relative) is noted as unbalanced
+JUMP_BALANCE_TOLERANCE = 1e-6
 
 
 @dataclass(eq=False)
@@ -445,7 +447,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                     continue
                 jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
             # refine the jumps inside this segment, all scenarios at once
-            _refine(jumps, marcher, seg, x, sub_y, k)
+            _refine(jumps, marcher, seg, x, sub_y, k, notes)
             gov_sup_end = first_loss == m
             y_end = ysup[:, -1]
         else:
@@ -568,8 +570,13 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
                              f"normal depth {yn[s]:.3f} {units.length}"))
 
 
-def _refine(jumps, marcher, seg, x, sub_y, k):
-    """Locate, by root finding, every jump of segment k whose x is still unknown (NaN)."""
+def _refine(jumps, marcher, seg, x, sub_y, k, notes):
+    """Locate, by root finding, every jump of segment k whose x is still unknown (NaN).
+
+    A jump whose two specific forces still differ by more than :data:`JUMP_BALANCE_TOLERANCE` (the
+    search closed on a discontinuity of a marched profile, which reaches critical depth there instead
+    of balancing the other) gets a note saying so.
+    """
     rows = [j for j, jp in enumerate(jumps) if jp[4] == k and math.isnan(jp[1])]
     if not rows:
         return
@@ -584,6 +591,14 @@ def _refine(jumps, marcher, seg, x, sub_y, k):
         r = int(np.flatnonzero(bad)[0])
         raise ConvergenceError(f"the jump between x = {x_lo[r]:.3f} and {x_hi[r]:.3f} could not be located to "
                                "tolerance; try more steps (n_steps)", iterations=200)
+    sub = _subset(seg, s_idx)
+    m1, m2 = sub.specific_force(ys), sub.specific_force(yb)
+    off = np.abs(m1 - m2) / m2
     for r, j in enumerate(rows):
         s, _, _, _, kk, aft, junc = jumps[j]
         jumps[j] = (s, float(xj[r]), float(ys[r]), float(yb[r]), kk, aft, junc)
+        if off[r] > JUMP_BALANCE_TOLERANCE:
+            notes[s].append((float(xj[r]), "unbalanced jump",
+                             f"the specific forces on the two sides of the jump at x = {xj[r]:.2f} differ by "
+                             f"{off[r]:.2%}: a profile reaches critical depth next to it, so its position is "
+                             "uncertain to about a station spacing; check it with more steps (n_steps)"))

@@ -15,6 +15,8 @@ import math
 import numpy as np
 from numba import njit
 
+from ..errors import ConvergenceError
+
 # friction-slope averages between two stations
 AVG_ARITHMETIC = 0
 AVG_GEOMETRIC = 1
@@ -22,6 +24,9 @@ AVG_HARMONIC = 2
 AVG_CONVEYANCE = 3
 AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
             "conveyance": AVG_CONVEYANCE}
+# the friction slope at the step's far end only (a backward-Euler step): first order, but it damps any
+# stiffness, so the march uses it for sub-steps far longer than the relaxation length (never a user option)
+AVG_END = 4
 
 SUB = 1  # subcritical branch, traced upstream
 SUPER = -1  # supercritical branch, traced downstream
@@ -109,6 +114,8 @@ def sf_average(avg, s1, s2):
         return m, 0.5 * m / s2
     elif avg == 2:
         return 2.0 * s1 * s2 / (s1 + s2), 2.0 * s1 * s1 / ((s1 + s2) * (s1 + s2))
+    elif avg == AVG_END:
+        return s2, 1.0
     a1 = 1.0 / math.sqrt(s1)
     a2 = 1.0 / math.sqrt(s2)
     den = a1 + a2
@@ -128,10 +135,15 @@ def critical_depth(kind, p0, p1, p2, q, g, alpha, ymax):
                 break
             lo = hi
             hi *= 2.0
+        else:
+            raise ConvergenceError("critical depth: no depth up to 2^200 length units carries the discharge; "
+                                   "check the discharge and the section's units")
     y = 0.5 * (lo + hi) if lo > 0 else 0.5 * hi
     for _ in range(200):
         a, p, t, m, dp = geom(kind, p0, p1, p2, y)
         f = 3.0 * math.log(a) - math.log(t) - target
+        if not math.isfinite(f):
+            break
         if f > 0:
             hi = y
         else:
@@ -150,9 +162,14 @@ def critical_depth(kind, p0, p1, p2, q, g, alpha, ymax):
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= 1e-14 * y or hi - lo <= 1e-15 * hi:
-            return yn
+            # converged on the depth; the residual (a relative error in alpha Q² T/(g A³)) must be small too
+            a, p, t, m, dp = geom(kind, p0, p1, p2, yn)
+            if abs(3.0 * math.log(a) - math.log(t) - target) <= 1e-8:
+                return yn
+            break
         y = yn
-    return y
+    raise ConvergenceError("critical depth did not converge (alpha Q² T = g A³ not met to 1e-8); check that "
+                           "the discharge and the section are in the same units and of plausible size")
 
 
 @njit(cache=True)
@@ -184,9 +201,13 @@ def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
             if fslope(law, coef, k, g, nu, q, a, p) < s0:
                 break
             hi *= 2.0
+        else:
+            raise ConvergenceError("normal depth: no depth up to 2^200 length units carries the discharge at "
+                                   "this slope; check the discharge, roughness and slope and their units")
     lo = 0.0
     y = 0.5 * hi
     lns0 = math.log(s0)
+    y_prev = f_prev = math.nan
     for _ in range(200):
         a, p, t, m, dp = geom(kind, p0, p1, p2, y)
         f = math.log(fslope(law, coef, k, g, nu, q, a, p)) - lns0  # decreasing in y
@@ -195,13 +216,27 @@ def normal_depth(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, ymax):
         else:
             hi = y
         df = dlnsf_dy(law, a, p, t, dp)
+        if law == 2 and y_prev == y_prev and y != y_prev:
+            # Darcy: dlnsf_dy holds the friction factor fixed, which is far off where ks/4R is large;
+            # the secant slope keeps the iteration superlinear
+            sec = (f - f_prev) / (y - y_prev)
+            if sec < 0.0:
+                df = sec
+        y_prev, f_prev = y, f
         yn = y - f / df if df < 0 else 0.5 * (lo + hi)
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= 1e-14 * y or hi - lo <= 1e-15 * hi:
-            return yn
+            # converged on the depth; the friction slope there must match the bed slope too (it need not
+            # where the resistance law is not monotone in depth, e.g. a roughness height near 2R)
+            a, p, t, m, dp = geom(kind, p0, p1, p2, yn)
+            if abs(math.log(fslope(law, coef, k, g, nu, q, a, p)) - lns0) <= 1e-8:
+                return yn
+            break
         y = yn
-    return y
+    raise ConvergenceError("normal depth did not converge (the friction slope does not reach the bed slope to "
+                           "1e-8); for Darcy-Weisbach, a roughness height ks near or above the hydraulic radius "
+                           "is outside Colebrook-White's range: check ks and its units")
 
 
 @njit(cache=True)
@@ -291,12 +326,19 @@ def step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, 
             hi = lo
             lo *= 0.5
     y = y1 if lo < y1 < hi else 0.5 * (lo + hi)
+    y_prev = r_prev = math.nan
     for _ in range(100):
         r, dr = _residual(kind, p0, p1, p2, law, coef, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg, k, g, nu)
         if (r > 0.0) == (branch == 1):
             hi = y
         else:
             lo = y
+        if law == 2 and y_prev == y_prev and y != y_prev:
+            # Darcy: the analytic slope holds the friction factor fixed; the secant keeps Newton superlinear
+            sec = (r - r_prev) / (y - y_prev)
+            if (sec > 0.0) == (dr > 0.0):
+                dr = sec
+        y_prev, r_prev = y, r
         yn = y - r / dr if dr != 0.0 else 0.5 * (lo + hi)
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
@@ -339,6 +381,195 @@ def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k,
     return (e1 - ec) / den
 
 
+#: relative band about critical depth inside which a march interval is integrated in the x(y) form
+CRITICAL_BAND = 0.25
+#: most sub-steps one station interval may be split into where the profile is stiff
+MAX_SUBSTEPS = 256
+
+# Gauss-Legendre nodes and weights on [-1, 1], 8 points (Abramowitz & Stegun 1964, table 25.4)
+_GL_X = np.array([-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498,
+                  0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363])
+_GL_W = np.array([0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620,
+                  0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763])
+
+
+@njit(cache=True)
+def gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
+    """Numerator and denominator of the GVF equation dy/dx = (S0 - Sf)/(1 - alpha Q² T/(g A³)) at depth y
+    (Chow 1959, *Open-Channel Hydraulics*, eq. 9-13, x downstream): the compiled mirror of
+    :func:`gvflow.profiles.equation.gvf_terms`, for the marchers."""
+    a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+    sf = fslope(law, coef, k, g, nu, q, a, p)
+    return s0 - sf, 1.0 - alpha * q * q * t / (g * a * a * a)
+
+
+@njit(cache=True)
+def relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y):
+    """Rate [1/length] at which a profile near depth y relaxes toward normal depth: |dSf/dy| / |1 - Fr²|,
+    the stiffness of the GVF equation (its Jacobian where S0 = Sf). A trapezoidal energy step longer than
+    2/rate overshoots normal depth; the march keeps its sub-steps within 1/(4 rate)."""
+    a, p, t, m, dp = geom(kind, p0, p1, p2, y)
+    sf = fslope(law, coef, k, g, nu, q, a, p)
+    den = abs(1.0 - alpha * q * q * t / (g * a * a * a))
+    return sf * abs(dlnsf_dy(law, a, p, t, dp)) / max(den, 1e-3)
+
+
+@njit(cache=True)
+def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y):
+    """dx/dy of the energy equation with eddy loss: ((1 - Fr²) + sxy Ce Fr²)/(S0 - Sf), sxy = sign(dx dy)."""
+    num, den = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
+    return (den + sxy * ce * (1.0 - den)) / num
+
+
+@njit(cache=True)
+def x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, ya, yb, panels):
+    """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by 8-point Gauss-Legendre
+    quadrature on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx is
+    infinite)."""
+    w = (yb - ya) / panels
+    tot = 0.0
+    for j in range(panels):
+        h = 0.5 * w
+        c = ya + (j + 0.5) * w
+        for i in range(8):
+            tot += _GL_W[i] * _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, c + h * _GL_X[i]) * h
+    return tot
+
+
+@njit(cache=True)
+def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, k, g, nu, ymax):
+    """March near critical depth in the x(y) form, where the depth changes as the square root of distance.
+
+    From depth y1 (within :data:`CRITICAL_BAND` of yc) over signed distance d. Returns (y, dist, code):
+    code 0, the depth y after the full distance; code 1, the profile reaches critical depth after ``dist``;
+    code 5, the leg ended after ``dist`` < |d| at depth y, where the x(y) form stops being the better one
+    (the standard step takes over); code 6, the x(y) form does not apply (normal depth too close).
+    """
+    sgn_d = 1.0 if d > 0 else -1.0
+    # which way the depth moves: dy/dx at y1, nudged onto the branch if y1 is critical depth itself
+    probe = y1
+    if abs(y1 - yc) <= 1e-9 * yc:
+        probe = yc * (1.0 + branch * 1e-6)
+    num0, den0 = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, probe)
+    if num0 == 0.0 or den0 * branch < 0.0:
+        return y1, 0.0, 6
+    sdy = sgn_d * (1.0 if num0 / den0 > 0 else -1.0)  # sign of the depth change
+    toward = (sdy > 0) == (branch == -1)
+    yb = yc if toward else yc * (1.0 + branch * 2.0 * CRITICAL_BAND)
+    if branch == 1 and yb >= ymax:
+        yb = y1 + 0.5 * (ymax - y1)
+    # keep the leg clear of normal depth, where dx/dy has a pole (a profile tending to normal depth
+    # between here and critical depth never reaches critical depth): S0 - Sf at least a quarter of its
+    # size at the start all along the leg
+    for _ in range(60):
+        ychk = yb if yb != yc else yc * (1.0 + branch * 1e-6)
+        nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ychk)
+        if nb * num0 > 0.0 and db * branch > 0.0 and abs(nb) >= 0.25 * abs(num0):
+            break
+        yb = y1 + 0.5 * (yb - y1)
+    else:
+        return y1, 0.0, 6
+    if abs(yb - y1) <= 1e-12 * yc:
+        return y1, 0.0, 6
+    toward = toward and yb == yc
+    sxy = sgn_d * sdy
+    # Gauss panels no longer than the distance from the leg's far end to the pole of dx/dy at normal depth
+    # (by the tangent of S0 - Sf there, an underestimate), so each is integrated to round-off
+    nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
+    a, p, t, m, dp = geom(kind, p0, p1, p2, yb)
+    reach = abs(nb) / max((s0 - nb) * abs(dlnsf_dy(law, a, p, t, dp)), 1e-300)
+    panels = int(min(64.0, math.ceil(abs(yb - y1) / max(reach, 1e-300))))
+    panels = max(panels, 1)
+    xb = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, yb, panels)
+    if not (xb * sgn_d >= 0.0) or not math.isfinite(xb):
+        return y1, 0.0, 6
+    if abs(xb) <= abs(d):
+        return yb, abs(xb), (1 if toward else 5)
+    # solve x_of_y(y1, y) = d for y between y1 and yb: safeguarded Newton (x(y) is monotone there)
+    lo, hi = y1, yb  # x(lo) - d has the sign opposite to x(hi) - d
+    flo = -d
+    y = y1 + (yb - y1) * (d / xb if toward else math.sqrt(d / xb))
+    for _ in range(100):
+        f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y, panels) - d
+        if abs(f) <= 1e-13 * abs(d):
+            return y, abs(d), 0
+        if (f > 0.0) == (flo > 0.0):
+            lo, flo = y, f
+        else:
+            hi = y
+        df = _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y)
+        yn = y - f / df if df != 0.0 and math.isfinite(df) else 0.5 * (lo + hi)
+        if not (min(lo, hi) < yn < max(lo, hi)):
+            yn = 0.5 * (lo + hi)
+        if abs(yn - y) <= 1e-14 * yc:
+            return yn, abs(d), 0
+        y = yn
+    return y, abs(d), 0
+
+
+@njit(cache=True)
+def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol, guess):
+    """Depth one station interval (signed length d) from depth y1 on ``branch``: (depth, code, dist).
+
+    Near critical depth (within :data:`CRITICAL_BAND`) the interval is integrated in the x(y) form
+    (:func:`critical_leg`), so the square-root behaviour there costs no accuracy; elsewhere it is one
+    standard step (:func:`step`), cut into sub-steps of a quarter of the relaxation length
+    1/:func:`relaxation_rate` where the interval is longer than that length, so the depth approaches
+    normal depth monotonically at any station spacing; past :data:`MAX_SUBSTEPS` sub-steps they are
+    damped end-slope (backward Euler) steps, monotone at any length. Codes as :func:`step`; with code 1, ``dist`` is the distance
+    from y1 at which the profile reaches critical depth.
+    """
+    y = y1
+    done = 0.0
+    total = abs(d)
+    sgn = 1.0 if d > 0 else -1.0
+    first = True
+    legs = 0
+    for _ in range(4 * MAX_SUBSTEPS):
+        rest = total - done
+        if rest <= 1e-12 * total:
+            return y, 0, done
+        if legs < 60 and abs(y - yc) <= CRITICAL_BAND * yc:
+            legs += 1
+            yl, dist, code = critical_leg(kind, p0, p1, p2, law, coef, q, s0, y, sgn * rest, yc, branch, alpha, ce,
+                                          k, g, nu, ymax)
+            if code == 0:
+                return yl, 0, total
+            if code == 1:
+                return yc, 1, done + dist
+            if code == 5:
+                y = yl
+                done += dist
+                first = False
+                continue
+        rate = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y)
+        h = rest
+        how = avg
+        if rate * rest > 0.5:
+            # stiff: sub-steps of a quarter relaxation length (the trapezoidal step then decays a departure
+            # from normal depth within 0.1 % of exp(-x rate)); past MAX_SUBSTEPS of them, damped
+            # (end-slope) steps
+            h = min(max(0.25 / rate, total / MAX_SUBSTEPS), rest)
+            if rate * h > 1.5:
+                how = AVG_END
+        y2, code = step(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, how, k, g, nu,
+                        ymax, tol, guess if first and h >= rest else y)
+        if code == 1:
+            # near critical depth a long step can miss a root the profile really has (the discrete
+            # energy equation loses it before the profile does): retry with sub-steps first
+            y2, code = substeps(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, how, k, g,
+                                nu, ymax, tol)
+        if code != 0:
+            if code == 1:
+                dc = critical_distance(kind, p0, p1, p2, law, coef, q, s0, y, yc, alpha, avg, k, g, nu)
+                return yc, 1, done + min(max(dc * sgn, 0.0), h)
+            return y2, code, done
+        y = y2
+        done += h
+        first = False
+    return y, 3, done
+
+
 @njit(cache=True)
 def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol,
           until_force, force_tol, out_y, out_n, out_xc, out_code):
@@ -370,21 +601,13 @@ def march(kind, p0, p1, p2, law, coef, q, s0, x, y0, yc, branch, alpha, ce, avg,
             continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code = step(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce, avg,
-                            k, g, nu, ymax, tol, extrapolate(x, out_y[s], j, even))
-            if code == 1:
-                # Near critical depth a long step can miss a root the profile really has (the
-                # discrete energy equation loses it before the profile does): retry with
-                # sub-steps before declaring that the profile reaches critical depth.
-                y2, code = substeps(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce,
-                                    avg, k, g, nu, ymax, tol)
+            y2, code, dist = advance(kind, p0, p1, p2, law, coef[s], q[s], s0, y, d, yc[s], branch, alpha, ce,
+                                     avg, k, g, nu, ymax, tol, extrapolate(x, out_y[s], j, even))
             if code != 0:
                 out_n[s] = j
                 out_code[s] = code
                 if code == 1:
-                    dc = critical_distance(kind, p0, p1, p2, law, coef[s], q[s], s0, y, yc[s], alpha, avg,
-                                           k, g, nu)
-                    frac = min(max(dc / d, 0.0), 1.0) if d != 0.0 else 0.0
+                    frac = min(max(dist / abs(d), 0.0), 1.0) if d != 0.0 else 0.0
                     out_xc[s] = x[j - 1] + frac * d
                 for jj in range(j, m):
                     out_y[s, jj] = math.nan
@@ -520,10 +743,8 @@ def _branch_depth(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, 
     """Depth a signed distance d from (y1) along ``branch``; critical depth where the branch ends."""
     if d == 0.0:
         return y1
-    y, code = step(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax, tol, y1)
-    if code == 1:
-        y, code = substeps(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax,
-                           tol)
+    y, code, dist = advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, avg, k, g, nu, ymax,
+                            tol, y1)
     return y if code == 0 else yc
 
 
@@ -534,8 +755,9 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
 
     The supercritical profile is stepped downstream from (x_lo, y_sup), the
     subcritical one upstream from (x_hi, y_sub); the Illinois variant of
-    regula falsi finds where their specific forces balance, to 1e-10 of the
-    station spacing. An element that does not converge gets x = NaN.
+    regula falsi finds where their specific forces balance, to 1e-13 of the
+    force or 1e-10 of the station spacing. An element that does not converge
+    gets x = NaN.
     """
     for i in range(q.shape[0]):
         a, b = x_lo[i], x_hi[i]
@@ -557,8 +779,11 @@ def locate_jumps(kind, p0, p1, p2, law, coef, q, s0, y_sup, x_lo, y_sub, x_hi, y
                                       1, alpha, ce, avg, k, g, nu, ymax, tol)
             continue
         converged = False
+        mscale = specific_force(kind, p0, p1, p2, q[i], g, y_sub[i])
         for _ in range(200):
-            if abs(b - a) <= xtol or fb == 0.0:
+            # converged on the force residual, or on the bracket (where the residual may stay large only at a
+            # discontinuity of the marched depths: the caller checks the balance of what it gets)
+            if abs(fb) <= 1e-13 * mscale or abs(b - a) <= xtol:
                 converged = True
                 break
             x = b - fb * (b - a) / (fb - fa)

@@ -30,32 +30,33 @@ from numba import njit
 from scipy import integrate, optimize
 
 from .._validate import finite_float, positive_float
-from ..errors import InvalidInputError
+from ..errors import ConvergenceError, InvalidInputError
 from . import _kernel as K
 from .base import Marcher, MarchResult, SegmentBatch, register_marcher
 
 __all__ = ["IVPMarcher", "IVP_METHODS"]
 
 IVP_METHODS = ("RK45", "RK23", "DOP853", "Radau", "BDF", "LSODA")
+_EXPLICIT = ("RK45", "RK23", "DOP853")
+#: an explicit method gives way to Radau where the distance marched exceeds this many relaxation lengths
+STIFF_RELAXATIONS = 300.0
+#: right-hand-side evaluations one scenario may spend before the march gives up with ConvergenceError
+MAX_EVALUATIONS = 200_000
 
 
-@njit(cache=True, error_model="numpy")
-def _terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    """(S0 - Sf, 1 - alpha Q² T/(g A³)) at depth y."""
-    a, p, t, m, dp = K.geom(kind, p0, p1, p2, y)
-    sf = K.fslope(law, coef, k, g, nu, q, a, p)
-    return s0 - sf, 1.0 - alpha * q * q * t / (g * a * a * a)
+class _TooMuchWork(Exception):
+    """Raised inside solve_ivp's right-hand side when the evaluation budget is spent (private)."""
 
 
 @njit(cache=True, error_model="numpy")
 def _dydx(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    num, den = _terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
+    num, den = K.gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
     return num / den
 
 
 @njit(cache=True, error_model="numpy")
 def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    num, den = _terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
+    num, den = K.gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
     return den / num
 
 
@@ -70,15 +71,35 @@ class _Problem:
         self.yc = float(seg.yc[index])
         self.yn = float(seg.yn[index])
         self.ymax = float(seg.section.max_depth)
+        self.top = self.ymax * (1.0 - 1e-9) if math.isfinite(self.ymax) else math.inf
+
+        self.evaluations = 0
+
+    def _count(self):
+        self.evaluations += 1
+        if self.evaluations > MAX_EVALUATIONS:
+            raise _TooMuchWork
+
+    def _inside(self, y):
+        """y kept inside the section: above zero and below a closed conduit's crown, where the top width
+        vanishes and the GVF equation degenerates (the march stops there, code 2)."""
+        return min(max(y, 1e-12 * self.yc), self.top)
 
     def dydx(self, x, y):
-        return np.array([_dydx(*self.args, min(y[0], self.ymax))])
+        self._count()
+        return np.array([_dydx(*self.args, self._inside(y[0]))])
 
     def dxdy(self, y, x):
-        return np.array([_dxdy(*self.args, min(y, self.ymax))])
+        self._count()
+        return np.array([_dxdy(*self.args, self._inside(y))])
+
+    def relaxation(self, y):
+        """Relaxation rate toward normal depth at depth y [1/length] (:func:`_kernel.relaxation_rate`)."""
+        kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha = self.args
+        return K.relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, self._inside(y))
 
     def slope_at(self, y):
-        return _dydx(*self.args, y)
+        return _dydx(*self.args, self._inside(y))
 
 
 @register_marcher
@@ -90,12 +111,13 @@ class IVPMarcher(Marcher):
     ivp_method : str
         Integration method passed to ``solve_ivp``: "RK45", "RK23", "DOP853"
         (default: eighth order, efficient at tight tolerances), "Radau", "BDF"
-        or "LSODA". Where normal depth lies within a few per cent of critical
-        depth the pull toward normal depth is strong (a stiff equation); the
-        explicit methods then take steps at their stability limit, and the
-        dense output between steps can be off by up to about 1e-6 relative
-        while the step ends keep ``rtol``. "Radau" (implicit) is immune to
-        this, at about fifteen times the cost.
+        or "LSODA". Where the pull toward normal depth is strong against the
+        distance marched (thin flow on a long steep segment, or normal depth
+        within a few per cent of critical depth) the equation is stiff: an
+        explicit method would take steps at its stability limit, so on a march
+        longer than :data:`STIFF_RELAXATIONS` relaxation lengths it gives way
+        to "Radau" (implicit). A profile that still needs more than
+        :data:`MAX_EVALUATIONS` evaluations raises ``ConvergenceError``.
     rtol, atol : float
         Relative and absolute tolerances of ``solve_ivp`` (atol in the length
         unit for the depth; scaled by length/depth for the x(y) form).
@@ -200,8 +222,8 @@ class IVPMarcher(Marcher):
                 full.terminal = True
                 full.direction = 1.0
                 events.append(full)
-            sol = integrate.solve_ivp(prob.dydx, (x, x_end), [y], method=self.ivp_method, rtol=self.rtol,
-                                      atol=self.atol, dense_output=True, events=events,
+            sol = integrate.solve_ivp(prob.dydx, (x, x_end), [y], method=self._method_for(prob, y, abs(x_end - x)),
+                                      rtol=self.rtol, atol=self.atol, dense_output=True, events=events,
                                       max_step=self.max_step or span / 10.0)
             if sol.status < 0:
                 return pieces, 3, math.nan, x
@@ -215,6 +237,17 @@ class IVPMarcher(Marcher):
                 continue
             return pieces, 2, math.nan, xe
         return pieces, 3, math.nan, x  # pragma: no cover - more switches than a monotone profile allows
+
+    def _method_for(self, prob: _Problem, y: float, distance: float) -> str:
+        """The chosen method, or Radau where it is explicit and the march is stiff: longer than
+        :data:`STIFF_RELAXATIONS` relaxation lengths at its start or at normal depth (an explicit method
+        would take steps at its stability limit, about one relaxation length, all the way)."""
+        if self.ivp_method not in _EXPLICIT:
+            return self.ivp_method
+        rate = prob.relaxation(y)
+        if math.isfinite(prob.yn) and prob.yn > 0:
+            rate = max(rate, prob.relaxation(prob.yn))
+        return "Radau" if rate * distance > STIFF_RELAXATIONS else self.ivp_method
 
     @staticmethod
     def _evaluate(pieces, xs, dirn):
@@ -258,7 +291,15 @@ class IVPMarcher(Marcher):
             if m == 1:
                 out_n[s] = 1
                 continue
-            pieces, code, xc, reached = self._pieces(prob, float(x[0]), float(x[-1]), float(y0[s]), int(branch))
+            try:
+                pieces, code, xc, reached = self._pieces(prob, float(x[0]), float(x[-1]), float(y0[s]),
+                                                         int(branch))
+            except _TooMuchWork:
+                raise ConvergenceError(
+                    f"the ivp marcher spent {MAX_EVALUATIONS} evaluations of the GVF equation on one profile "
+                    f"between x = {x[0]:.2f} and {x[-1]:.2f} without finishing it (discharge "
+                    f"{seg.discharge[s]:g}); loosen rtol/atol, try ivp_method='Radau' or 'LSODA', or use "
+                    "method='standard_step'", iterations=MAX_EVALUATIONS) from None
             ys = self._evaluate(pieces, x[1:], dirn)
             # stations past where the march stopped are not solved
             if code != 0:
