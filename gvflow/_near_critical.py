@@ -24,22 +24,14 @@ scenario instead of a Froude number at every station.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
 
-from .profiles import _kernel as K
+from ._engine import core
 
 #: Froude numbers bounding near-critical flow (Chow 1959, ch. 3; common practice).
 NEAR_CRITICAL_FROUDE = (0.85, 1.15)
 #: Shortest stretch reported, in critical depths (a choice of this library: several wave lengths of the
 #: undular surface, well beyond the few depths over which a profile passes through critical depth).
 NEAR_CRITICAL_MIN_LENGTH = 10.0
-
-
-@njit(cache=True)
-def _band_depths(kind, p0, p1, p2, q, g, ymax, lo_fr, hi_fr, y_lo, y_hi):
-    for i in range(q.size):
-        y_lo[i] = K.critical_depth(kind, p0, p1, p2, q[i] / hi_fr, g, 1.0, ymax)
-        y_hi[i] = K.critical_depth(kind, p0, p1, p2, q[i] / lo_fr, g, 1.0, ymax)
 
 
 def near_critical_notes(notes, segs, bounds, x, depth, units) -> None:
@@ -51,9 +43,7 @@ def near_critical_notes(notes, segs, bounds, x, depth, units) -> None:
         q = np.ascontiguousarray(seg.discharge, dtype=float)
         y_lo = np.empty_like(q)
         y_hi = np.empty_like(q)
-        kind, p0, p1, p2 = seg.spec
-        ymax = float(seg.section.max_depth)
-        _band_depths(int(kind), float(p0), float(p1), float(p2), q, float(units.g), ymax, lo_fr, hi_fr, y_lo, y_hi)
+        core("march", 200 * q.size).froude_band_depths(seg.cb, seg.fl, q, lo_fr, hi_fr, y_lo, y_hi)
         y = depth[:, i0:i0 + m]
         inside = (y >= y_lo[:, None]) & (y <= y_hi[:, None])
         if not np.any(inside):

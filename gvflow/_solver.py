@@ -24,19 +24,18 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from numba import njit
 
+from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
+from ._engine import core
 from ._near_critical import near_critical_notes
 from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
 from .errors import ControlError, ConvergenceError, NoSolutionError
-from .profiles._kernel import SUB, SUPER
 from .profiles.base import SegmentBatch
 from .profiles.classify import SLOPE_CLASSES
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
-REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
 _M_TOL = 1e-12  # relative tolerance when comparing specific forces
 #: a jump inside a segment whose specific forces differ by more than this (relative) is noted as unbalanced
 JUMP_BALANCE_TOLERANCE = 1e-6
@@ -77,8 +76,9 @@ class BatchSolution:
         segs = []
         for k, s0 in enumerate(first.segs):
             cat = {a: np.concatenate([getattr(p.segs[k], a) for p in parts]) for a in ("coef", "discharge", "yc", "yn")}
+            cb = s0.cb._replace(rough=np.concatenate([p.segs[k].cb.rough for p in parts]))
             segs.append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"], s0.units, s0.alpha,
-                                     cat["yc"], cat["yn"], s0.spec))
+                                     cat["yc"], cat["yn"], cb, s0.fl))
         out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
                   notes=[note for p in parts for note in p.notes],
                   jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
@@ -95,33 +95,14 @@ def station_layout(reach, n_steps: int, max_step: float | None):
     lengths = [s.length for s in reach.segments]
     steps = [n_steps if max_step is None else max(n_steps, int(np.ceil(length / max_step))) for length in lengths]
     x_end, z_end = reach._segment_ends()
-    x, seg_ix, bed = _layout(np.array(lengths), np.array(steps), np.array([s.slope for s in reach.segments]),
-                             np.array(x_end), np.array(z_end))
+    slopes = np.array([s.slope for s in reach.segments])
+    x, seg_ix, bed = core("stations", 1).layout(np.array(lengths), np.array(steps), slopes, np.array(x_end),
+                                                np.array(z_end))
     bounds, i0 = [], 0
     for n in steps:
         bounds.append((i0, n + 1))
         i0 += n + 1
     return x, seg_ix, bed, bounds
-
-
-@njit(cache=True)
-def _layout(lengths, steps, slopes, x_end, z_end):
-    """Stations of :func:`station_layout`: ``steps[k] + 1`` evenly spaced over segment k, as
-    np.linspace(start, start + length) would place them, and the bed there as Reach.bed_elevation."""
-    total = 0
-    for k in range(steps.shape[0]):
-        total += steps[k] + 1
-    x, seg, bed = np.empty(total), np.empty(total, np.int64), np.empty(total)
-    p, start = 0, 0.0
-    for k in range(steps.shape[0]):
-        h = lengths[k] / steps[k]
-        for j in range(steps[k] + 1):
-            x[p] = j * h + start if j < steps[k] else start + lengths[k]
-            seg[p] = k
-            bed[p] = z_end[k] + slopes[k] * (x_end[k] - x[p])
-            p += 1
-        start += lengths[k]
-    return x, seg, bed
 
 
 def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
@@ -146,7 +127,7 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
     Returns (depth, critical_flag): where the branch has no root the depth is
     critical and the flag is set.
     """
-    if seg_from.spec == seg_to.spec:
+    if seg_from.same_section(seg_to):
         return y.copy(), np.zeros(y.shape, bool)
     return _depth_with_energy(seg_to, seg_from.specific_energy(y), branch)
 
@@ -293,23 +274,6 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
     return y, crit
 
 
-@njit(cache=True)
-def _govern(m_sup, m_sub, y_sup, crit_sup, depth, regime, tol, first_loss):
-    """Step 3 of the method on one segment: the supercritical profile governs from the segment's head up
-    to the first station where its specific force falls below the subcritical one's (relative ``tol``).
-    Writes its depths and regimes over ``depth`` and ``regime`` there; ``first_loss[s]`` is that station
-    (m where it governs the whole segment)."""
-    n, m = m_sup.shape
-    for s in range(n):
-        first_loss[s] = m
-        for j in range(m):
-            if not m_sup[s, j] >= m_sub[s, j] * (1.0 - tol):
-                first_loss[s] = j
-                break
-            depth[s, j] = y_sup[s, j]
-            regime[s, j] = REGIME_CRITICAL if crit_sup[s, j] else REGIME_SUPER
-
-
 def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
                 critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> BatchSolution:
     """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None)."""
@@ -380,7 +344,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         elif k > 0:
             y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
             # critical on the upstream side too where the section is the same, or where it has no subcritical root
-            c_start = flag | (sub_c[:, i0] & (segs[k].spec == segs[k - 1].spec))
+            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]))
 
     # ---------------- supercritical pass and governance ------------------------------------
     depth = sub_y.copy()
@@ -422,10 +386,11 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             msup = seg_act.specific_force(ysup)
             first_loss = np.empty(act.size, np.int64)
             if act.size == n:  # write in place
-                _govern(msup, msub, ysup, csup, depth[:, i0:i0 + m], regime[:, i0:i0 + m], _M_TOL, first_loss)
+                core("stations", msup.size).govern(msup, msub, ysup, csup, depth[:, i0:i0 + m],
+                                                   regime[:, i0:i0 + m], _M_TOL, first_loss)
             else:
                 blk_y, blk_r = depth[act, i0:i0 + m], regime[act, i0:i0 + m]
-                _govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
+                core("stations", msup.size).govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
                 depth[act, i0:i0 + m], regime[act, i0:i0 + m] = blk_y, blk_r
             for r in np.flatnonzero(first_loss < m):
                 s, i = int(act[r]), int(first_loss[r])
@@ -481,7 +446,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 nxt = gate_jet[k + 1].copy()
                 carried = np.zeros(n, bool)
                 crit_up[:] = crit_dn[:] = False
-            changed = seg.spec != nseg1.spec
+            changed = not seg.same_section(nseg1)
             for s in np.flatnonzero(crit_up | crit_dn):
                 if crit_up[s] and changed:
                     text = (f"critical depth at the end of segment {k}, where the flow passes into the larger "
@@ -555,7 +520,7 @@ def _add_details(notes, ctrl, state, depth, x):
 def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
     """Note each contraction whose critical section holds the subcritical water upstream above normal depth."""
     for k in range(len(segs) - 1):
-        if segs[k].spec == segs[k + 1].spec:
+        if segs[k].same_section(segs[k + 1]):
             continue
         i_end = bounds[k][0] + bounds[k][1] - 1
         j0, m1 = bounds[k + 1]

@@ -31,8 +31,9 @@ from functools import cached_property
 
 import numpy as np
 
+from ._core.codes import REGIME_NAMES
 from ._pieces import profile_pieces
-from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution, solve_batch
+from ._solver import BatchSolution, solve_batch
 from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .friction import check_manning_n
@@ -44,7 +45,7 @@ from .uniform import CRITICAL_SLOPE_TOLERANCE
 __all__ = ["SweepResult", "sweep", "solve_many", "SolveManyError", "REGIME_CODES"]
 
 #: Meaning of the integer codes in :attr:`SweepResult.regime`.
-REGIME_CODES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
+REGIME_CODES = REGIME_NAMES  # the regime codes of the stacked arrays and their names
 
 # -- progress ---------------------------------------------------------------------------------------
 

@@ -6,11 +6,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._pieces import ProfilePiece, _scenario_sequence, scenario_pieces
+from ._core.codes import REGIME_NAMES
+from ._engine import core
+from ._pieces import ProfilePiece, scenario_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, _length_ratio, jump_type
-from .profiles import _kernel as K
 
 __all__ = ["Profile", "ProfilePiece", "ControlNote", "WATER_DENSITY", "water_unit_weight"]
 
@@ -34,9 +35,8 @@ def water_unit_weight(units) -> float:
         return 1000.0 * units.g
     return rho * units.g
 
-_REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
 _STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head")
-_REGIME_LOOKUP = np.array([_REGIME_NAMES[REGIME_SUPER], _REGIME_NAMES[REGIME_CRITICAL], _REGIME_NAMES[REGIME_SUB]])
+_REGIME_LOOKUP = np.array([REGIME_NAMES[REGIME_SUPER], REGIME_NAMES[REGIME_CRITICAL], REGIME_NAMES[REGIME_SUB]])
 
 
 @dataclass(frozen=True)
@@ -85,13 +85,16 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
     """(A, T, Sf, V, Fr, alpha V²/2g) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
     segs = sol.segs
     out = np.empty((6, depth.size))
-    u = segs[0].units
-    K.station_quantities(np.array([sg.spec[0] for sg in segs]),
-                         *(np.array([sg.spec[j] for sg in segs], float) for j in (1, 2, 3)),
-                         np.array([sg.law for sg in segs]), np.array([sg.coef[i] for sg in segs]),
-                         np.ascontiguousarray(seg_ix, np.int64), float(segs[0].discharge[i]),
-                         np.ascontiguousarray(depth, float), segs[0].alpha, u.manning_k, u.g, u.kinematic_viscosity,
-                         out)
+    pars = [sg.cb.par for sg in segs]
+    offsets = np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
+    zones = max(sg.cb.rough.shape[1] for sg in segs)
+    roughs = np.zeros((len(segs), zones))
+    for k, sg in enumerate(segs):
+        roughs[k, :sg.cb.rough.shape[1]] = sg.cb.rough[i]
+    core("march", depth.size).station_quantities(
+        np.array([sg.cb.kind for sg in segs], np.int64), np.concatenate(pars), offsets,
+        np.array([sg.cb.law for sg in segs], np.int64), roughs, np.ascontiguousarray(seg_ix, np.int64),
+        segs[0].fl, float(segs[0].discharge[i]), np.ascontiguousarray(depth, float), segs[0].alpha, out)
     return out
 
 
@@ -174,9 +177,9 @@ class Profile:
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
         rows = np.flatnonzero(sol.jump_scenario == i)
         # the two sequent depths of every jump inside a segment stand at the jump's x
-        x, y, reg, seg = _scenario_sequence(sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment,
-                                            sol.jump_after[rows], sol.jump_x[rows], sol.jump_y1[rows],
-                                            sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows])
+        x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
+            sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows], sol.jump_x[rows],
+            sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows])
         yn = np.array([s.yn[i] for s in sol.segs])
         yc = np.array([s.yc[i] for s in sol.segs])
         classes = [str(c) for c in sol.slope_class[i]]

@@ -8,8 +8,10 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 import gvflow as gv
+from gvflow._core import march as M
+from gvflow._core.codes import AVERAGES
+from gvflow._core.records import channel, fluid
 from gvflow.profiles import PROFILE_SHAPES
-from gvflow.profiles import _kernel as K
 from gvflow.profiles.base import SUB, SUPER, SegmentBatch, get_marcher
 
 SETTINGS = settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
@@ -96,18 +98,16 @@ def test_standard_step_energy_balance_closes(case, average, eddy):
     # Where one step over a station interval has no root on the branch (close to critical
     # depth) the marcher retries the interval in sub-steps; the balance then holds per sub-step,
     # not over the whole interval. Those intervals are found with the single-step kernel.
-    kind, p0, p1, p2 = sec.kernel_spec()
-    u = gv.SI
-    single = np.array([K.step(kind, p0, p1, p2, 0, n, q, s0, y[j], d[j], float(seg.yc[0]), branch, 1.0, eddy,
-                              K.AVERAGES[average], u.manning_k, u.g, u.kinematic_viscosity, sec.max_depth,
-                              1e-12, y[j])[1] == 0 for j in range(k - 1)])
+    ch = channel(*sec.core_params(), 0, n)
+    fl = fluid(gv.SI)
+    single = np.array([M.step(ch, fl, q, s0, y[j], d[j], float(seg.yc[0]), branch, 1.0, eddy,
+                              AVERAGES[average], sec.max_depth, 1e-12, y[j])[1] == 0 for j in range(k - 1)])
     # By design the march also splits an interval near critical depth (x(y) form) and one long against
     # the relaxation length (sub-steps); the balance then holds per sub-step. Those are found here from
     # the marcher's documented rule.
     yc = float(seg.yc[0])
-    rate = np.array([K.relaxation_rate(kind, p0, p1, p2, 0, n, q, u.manning_k, u.g, u.kinematic_viscosity, 1.0,
-                                       y[j]) for j in range(k - 1)])
-    whole = (np.abs(y[:-1] - yc) > K.CRITICAL_BAND * yc) & (rate * np.abs(d) <= 0.5)
+    rate = np.array([M.relaxation_rate(ch, fl, q, 1.0, y[j]) for j in range(k - 1)])
+    whole = (np.abs(y[:-1] - yc) > M.CRITICAL_BAND * yc) & (rate * np.abs(d) <= 0.5)
     # the solver stops when its Newton update is below tol*y; the residual is that small too
     chk = single & whole
     assert np.all(np.abs(residual[chk]) <= 1e-9 * y[1:][chk])

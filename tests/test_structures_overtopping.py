@@ -259,9 +259,18 @@ def test_split_property(diameter, slope, barrels, crest, length, tailwater, qmax
         alone = st.culvert_headwater(barrel, r.barrel_discharge[over], tailwater=tailwater)
         np.testing.assert_allclose(alone.headwater, r.headwater[over], rtol=1e-10)
         down = tailwater - 30.0 * slope
-        kt = np.asarray(st.road_submergence_factor((down - road.low_point) / (r.headwater[over] - road.low_point)))
-        ref = kt * weir(st.ROAD_OVERTOPPING_COEFFICIENT, length, r.headwater[over] - road.low_point)
-        np.testing.assert_allclose(r.road_discharge[over], ref, rtol=1e-8, atol=1e-12 * qmax)
+
+        def road_flow(hw):
+            kt = np.asarray(st.road_submergence_factor((down - road.low_point) / (hw - road.low_point)))
+            return kt * weir(st.ROAD_OVERTOPPING_COEFFICIENT, length, hw - road.low_point)
+
+        hw = r.headwater[over]
+        ref = road_flow(hw)
+        # to 1e-8, or to what a headwater good to 1e-10 gives where a deeply drowned road makes the
+        # road flow very sensitive to the headwater (the submergence factor falls steeply there)
+        sensitivity = np.abs(road_flow(hw * (1 + 1e-7)) - ref) / 1e-7
+        tol = np.maximum(1e-8 * ref, 1e-10 * sensitivity) + 1e-12 * qmax
+        assert np.all(np.abs(r.road_discharge[over] - ref) <= tol)
     # the road carries flow exactly where the headwater stands above its crest
     assert np.all(r.headwater[over] > road.low_point) and np.all(r.headwater[~over] <= road.low_point)
 

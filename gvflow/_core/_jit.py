@@ -7,7 +7,41 @@ compilation at all) and for speed are chosen in one place.
 
 from __future__ import annotations
 
+import hashlib
+from pathlib import Path
+
 PLAIN = "gvflow._core_plain"
+_HERE = Path(__file__).parent
+_checked = False
+
+
+def _drop_stale_cache() -> None:
+    """Delete numba's cached kernels of the core when any core source changed since they were written.
+
+    numba invalidates a cached function when its own file changes, not when a function it inlines from
+    another file does; the core's kernels call each other across files, so the whole cache goes together,
+    keyed by a hash of every core source file.
+    """
+    global _checked
+    if _checked:
+        return
+    _checked = True
+    digest = hashlib.sha256(b"".join(p.read_bytes() for p in sorted(_HERE.glob("*.py")))).hexdigest()
+    cache = _HERE / "__pycache__"
+    stamp = cache / "gvflow-core-sources.sha256"
+    try:
+        if stamp.read_text() == digest:
+            return
+    except OSError:
+        pass
+    try:
+        cache.mkdir(exist_ok=True)
+        for f in cache.iterdir():
+            if f.suffix in (".nbi", ".nbc"):
+                f.unlink(missing_ok=True)
+        stamp.write_text(digest)
+    except OSError:  # a read-only installation: numba then cannot cache either
+        pass
 
 
 def kernel(fn):
@@ -21,5 +55,7 @@ def kernel(fn):
     if fn.__module__.startswith(PLAIN):
         return fn
     from numba import njit
+
+    _drop_stale_cache()
 
     return njit(cache=True)(fn)

@@ -29,6 +29,15 @@ AVG_CONVEYANCE = 3
 AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
             "conveyance": AVG_CONVEYANCE}
 
+# branches of a profile
+SUB = 1  # subcritical branch, traced upstream
+SUPER = -1  # supercritical branch, traced downstream
+
+# regime of a station (the sign of the branch that holds it; 0 at critical depth)
+REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
+#: The name of each regime code, the one table of them.
+REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
+
 # status of a root
 SOLVED = 0
 NO_ROOT = 1

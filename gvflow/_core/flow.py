@@ -18,7 +18,7 @@ import math
 import numpy as np
 
 from ._jit import kernel
-from .codes import NO_ROOT, NOT_CONVERGED, SOLVED
+from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
 from .resistance import conveyance, dlnsf_dy, friction_slope, froude_squared, velocity_coefficients
 
@@ -26,11 +26,17 @@ _RTOL = 1e-14
 
 
 @kernel
-def specific_energy(ch, fl, q, y, alpha):
-    """E = y + alpha(y) Q²/(2 g A²) [length]."""
+def velocity_head(ch, fl, q, y, alpha):
+    """alpha(y) V²/(2g) = alpha(y) Q²/(2 g A²) [length]."""
     a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
     al, be = velocity_coefficients(ch, fl, y, alpha)
-    return y + al * q * q / (2.0 * fl.g * a * a)
+    return al * q * q / (2.0 * fl.g * a * a)
+
+
+@kernel
+def specific_energy(ch, fl, q, y, alpha):
+    """E = y + alpha(y) Q²/(2 g A²) [length]."""
+    return y + velocity_head(ch, fl, q, y, alpha)
 
 
 @kernel
@@ -75,6 +81,8 @@ def critical_depth_single(ch, fl, q, alpha):
     for _ in range(200):
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
         f = 3.0 * math.log(a) - math.log(t) - target
+        if not math.isfinite(f):
+            return y, NOT_CONVERGED
         if f > 0.0:
             hi = y
         else:
@@ -84,7 +92,11 @@ def critical_depth_single(ch, fl, q, alpha):
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
-            return yn, SOLVED
+            # converged on the depth; the residual (a relative error in alpha Q² T/(g A³)) must be small too
+            a, p, t, m, dt, dp = geometry(ch.kind, ch.par, yn)
+            if abs(3.0 * math.log(a) - math.log(t) - target) <= 1e-8:
+                return yn, SOLVED
+            return yn, NOT_CONVERGED
         y = yn
     return y, NOT_CONVERGED
 
@@ -231,17 +243,29 @@ def normal_depth(ch, fl, q, s0):
     lo = 0.0
     y = 0.5 * hi
     lns0 = math.log(s0)
+    y_prev = f_prev = math.nan
     for _ in range(200):
-        f = math.log(friction_slope(ch, fl, q, y)) - lns0
+        f = math.log(friction_slope(ch, fl, q, y)) - lns0  # decreasing in y
         if f > 0.0:
             lo = y
         else:
             hi = y
         df = dlnsf_dy(ch, fl, q, y)
+        if ch.law == DARCY and y_prev == y_prev and y != y_prev:
+            # Darcy: dlnsf_dy holds the friction factor fixed, which is far off where ks/4R is large;
+            # the secant slope keeps the iteration superlinear
+            sec = (f - f_prev) / (y - y_prev)
+            if sec < 0.0:
+                df = sec
+        y_prev, f_prev = y, f
         yn = y - f / df if df < 0.0 else 0.5 * (lo + hi)
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
-            return yn, SOLVED
+            # converged on the depth; the friction slope there must match the bed slope too (it need not
+            # where the resistance law is not monotone in depth, e.g. a roughness height near 2R)
+            if abs(math.log(friction_slope(ch, fl, q, yn)) - lns0) <= 1e-8:
+                return yn, SOLVED
+            return yn, NOT_CONVERGED
         y = yn
     return y, NOT_CONVERGED

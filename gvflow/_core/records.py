@@ -15,6 +15,10 @@ import numpy as np
 #: value per zone (Manning's n, Chezy's C or the sand roughness ks).
 Channel = namedtuple("Channel", ["kind", "par", "law", "rough"])
 
+#: A segment's channel for a batch of scenarios: as :data:`Channel`, with ``rough`` of shape
+#: (scenarios, zones), one row of zone roughness per scenario.
+ChannelBatch = namedtuple("ChannelBatch", ["kind", "par", "law", "rough"])
+
 #: The unit system and the fluid: gravity g, the Manning factor k and the kinematic viscosity nu.
 Fluid = namedtuple("Fluid", ["g", "k", "nu"])
 
@@ -23,6 +27,14 @@ def channel(kind: int, par, law: int, rough) -> Channel:
     """A :class:`Channel` with the types the kernels are compiled for."""
     return Channel(int(kind), np.ascontiguousarray(par, dtype=np.float64), int(law),
                    np.ascontiguousarray(np.atleast_1d(rough), dtype=np.float64))
+
+
+def channel_batch(kind: int, par, law: int, rough) -> ChannelBatch:
+    """A :class:`ChannelBatch`; ``rough`` has one row per scenario (a 1-D array is one zone per scenario)."""
+    rough = np.asarray(rough, dtype=np.float64)
+    if rough.ndim == 1:
+        rough = rough[:, None]
+    return ChannelBatch(int(kind), np.ascontiguousarray(par, dtype=np.float64), int(law), np.ascontiguousarray(rough))
 
 
 def fluid(units) -> Fluid:

@@ -19,18 +19,18 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .._core.codes import NOT_CONVERGED, SUB, SUPER
+from .._core.records import ChannelBatch, Fluid, channel_batch, fluid
+from .._engine import core
 from .._validate import positive_array
-from ..errors import InvalidInputError
-from ..friction import as_roughness
+from ..errors import ConvergenceError, InvalidInputError
+from ..friction import section_roughness
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from ..units import Units, resolve_units
-from . import _kernel as K
 
 __all__ = ["SegmentBatch", "MarchResult", "Marcher", "MARCHERS", "register_marcher", "get_marcher",
            "SUB", "SUPER"]
 
-SUB = K.SUB
-SUPER = K.SUPER
 
 #: stop codes of a march, per scenario
 STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no convergence",
@@ -39,7 +39,7 @@ STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no c
 
 @dataclass(frozen=True, eq=False)
 class SegmentBatch:
-    """One prismatic segment and a batch of n scenarios, as plain floats and arrays.
+    """One segment and a batch of n scenarios, as plain floats, arrays and core records.
 
     Built once per solve so that marching loops never touch pydantic models.
 
@@ -51,8 +51,8 @@ class SegmentBatch:
         Bed slope S0 [-].
     law : int
         Friction law code (0 Manning, 1 Chezy, 2 Darcy-Weisbach).
-    coef : ndarray, shape (n,)
-        Roughness coefficient per scenario (n, C or ks).
+    coef : ndarray, shape (n,) or (n, zones)
+        Roughness coefficient per scenario (n, C or ks); a surveyed section has one per zone.
     discharge : ndarray, shape (n,)
         Discharge per scenario [length³/s].
     units : Units
@@ -72,7 +72,8 @@ class SegmentBatch:
     alpha: float
     yc: np.ndarray
     yn: np.ndarray
-    spec: tuple = field(repr=False)
+    cb: ChannelBatch = field(repr=False)
+    fl: Fluid = field(repr=False)
 
     @classmethod
     def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
@@ -85,16 +86,32 @@ class SegmentBatch:
     @classmethod
     def _checked(cls, section, slope, roughness, q, u, alpha, coef, tol=CRITICAL_SLOPE_TOLERANCE):
         """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
-        or a float array of q's shape it may keep. Returns (batch, friction slope at critical depth, slope
-        class code: an index into SLOPE_CLASSES, critical within ``tol``) per scenario."""
-        law, c0 = as_roughness(roughness).kernel_spec()
-        c = np.full(q.shape, c0) if coef is None else coef
-        spec = section.kernel_spec()
-        kind, p0, p1, p2 = spec
-        yc, yn, sf_c, code = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape), np.empty(q.shape, np.int64)
-        K.segment_constants(kind, p0, p1, p2, int(law), c, q, float(slope), u.manning_k, u.g, u.kinematic_viscosity,
-                            section.max_depth, float(alpha), float(tol), yc, yn, sf_c, code)
-        return cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, spec), sf_c, code
+        or a float array with one row per scenario it may keep. Returns (batch, friction slope at critical
+        depth, slope class code: an index into SLOPE_CLASSES, critical within ``tol``) per scenario."""
+        rough = section_roughness(section, roughness)
+        if rough is None:
+            law, values = section.core_roughness()
+        else:
+            law, values = rough.kernel_spec()
+        c = np.broadcast_to(np.asarray(values, dtype=float), q.shape + np.shape(values)).copy() if coef is None \
+            else coef
+        kind, par = section.core_params()
+        cb = channel_batch(kind, par, law, c)
+        fl = fluid(u)
+        yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
+        code, status = np.empty(q.shape, np.int64), np.empty(q.shape, np.int64)
+        core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha), float(tol), yc, yn,
+                                                      sf_c, code, status)
+        if np.any(status == NOT_CONVERGED):
+            i = int(np.flatnonzero(status == NOT_CONVERGED)[0])
+            raise ConvergenceError(f"critical or normal depth did not converge for discharge {q[i]:g} in "
+                                   f"{section!r}; check that the discharge and the section are in the same units "
+                                   "and of plausible size", iterations=200)
+        return cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl), sf_c, code
+
+    def same_section(self, other: SegmentBatch) -> bool:
+        """Whether ``other`` has the same cross-section (kind and parameters; roughness aside)."""
+        return self.cb.kind == other.cb.kind and np.array_equal(self.cb.par, other.cb.par)
 
     @property
     def n(self) -> int:
@@ -103,8 +120,10 @@ class SegmentBatch:
 
     def take(self, idx) -> SegmentBatch:
         """The sub-batch of scenarios ``idx`` (an index array or slice)."""
+        cb = self.cb
         return SegmentBatch(self.section, self.slope, self.law, self.coef[idx], self.discharge[idx],
-                            self.units, self.alpha, self.yc[idx], self.yn[idx], self.spec)
+                            self.units, self.alpha, self.yc[idx], self.yn[idx],
+                            ChannelBatch(cb.kind, cb.par, cb.law, np.ascontiguousarray(cb.rough[idx])), self.fl)
 
     def properties(self, depth):
         """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe."""
@@ -113,20 +132,17 @@ class SegmentBatch:
         rows = np.ascontiguousarray((d if d.ndim else np.full(shape, float(d))).reshape(self.n, -1))
         m = rows.shape[1]
         q = np.repeat(self.discharge, m) if m > 1 else self.discharge
-        c = np.repeat(self.coef, m) if m > 1 else self.coef
+        which = np.repeat(np.arange(self.n), m)
         out = np.empty((5, rows.size))
-        kind, p0, p1, p2 = self.spec
-        u = self.units
-        K.properties(kind, p0, p1, p2, self.law, c, q, rows.ravel(), u.manning_k, u.g, u.kinematic_viscosity, out)
+        core("march", rows.size).properties(self.cb, self.fl, which, q, rows.ravel(), out)
         return out.reshape((5,) + shape)
 
     def _force_or_energy(self, depth, energy: bool):
         d = np.asarray(depth, dtype=float)
         y2 = d.reshape(self.n, -1) if d.ndim else np.full((self.n, 1), float(d))
         out = np.empty(y2.shape)
-        kind, p0, p1, p2 = self.spec
-        K.force_or_energy(kind, p0, p1, p2, self.discharge, np.ascontiguousarray(y2), self.units.g, self.alpha,
-                          energy, out)
+        core("march", y2.size).force_or_energy(self.cb, self.fl, self.discharge, np.ascontiguousarray(y2),
+                                               self.alpha, energy, out)
         return out.reshape(d.shape) if d.ndim else out[:, 0]
 
     def specific_force(self, depth):

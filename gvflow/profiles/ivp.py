@@ -26,12 +26,11 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit
 from scipy import integrate, optimize
 
+from .._engine import core
 from .._validate import finite_float, positive_float
 from ..errors import ConvergenceError, InvalidInputError
-from . import _kernel as K
 from .base import Marcher, MarchResult, SegmentBatch, register_marcher
 
 __all__ = ["IVPMarcher", "IVP_METHODS"]
@@ -44,32 +43,22 @@ STIFF_RELAXATIONS = 300.0
 MAX_EVALUATIONS = 200_000
 
 
+_NEAR = 1e-7  # relative distance from critical depth below which a critical slope's equation takes its limit
+
+
 class _TooMuchWork(Exception):
     """Raised inside solve_ivp's right-hand side when the evaluation budget is spent (private)."""
-
-
-@njit(cache=True, error_model="numpy")
-def _dydx(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    num, den = K.gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
-    return num / den
-
-
-@njit(cache=True, error_model="numpy")
-def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
-    num, den = K.gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y)
-    return den / num
 
 
 class _Problem:
     """One scenario of a segment as right-hand-side callables for solve_ivp."""
 
     def __init__(self, seg: SegmentBatch, index: int):
-        kind, p0, p1, p2 = seg.spec
-        u = seg.units
-        self.args = (kind, p0, p1, p2, seg.law, float(seg.coef[index]), float(seg.discharge[index]),
-                     seg.slope, u.manning_k, u.g, u.kinematic_viscosity, seg.alpha)
+        self.core = core("march", 2000)
+        self.args = (self.core.scenario(seg.cb, index), seg.fl, float(seg.discharge[index]), seg.slope, seg.alpha)
         self.yc = float(seg.yc[index])
         self.yn = float(seg.yn[index])
+        self.critical_slope = abs(self.yn - self.yc) <= 1e-9 * self.yc
         self.ymax = float(seg.section.max_depth)
         self.top = self.ymax * (1.0 - 1e-9) if math.isfinite(self.ymax) else math.inf
 
@@ -82,24 +71,30 @@ class _Problem:
 
     def _inside(self, y):
         """y kept inside the section: above zero and below a closed conduit's crown, where the top width
-        vanishes and the GVF equation degenerates (the march stops there, code 2)."""
-        return min(max(y, 1e-12 * self.yc), self.top)
+        vanishes and the GVF equation degenerates (the march stops there, code 2). On a critical slope
+        (normal depth equal to critical depth within round-off) both S0 - Sf and 1 - Fr² vanish at critical
+        depth, where their ratio has a finite limit that round-off would turn into noise: within 1e-7 of
+        critical depth the equation is taken at 1e-7 from it, on the same side."""
+        y = min(max(y, 1e-12 * self.yc), self.top)
+        if self.critical_slope and abs(y - self.yc) < _NEAR * self.yc:
+            y = self.yc * (1.0 + _NEAR if y >= self.yc else 1.0 - _NEAR)
+        return y
 
     def dydx(self, x, y):
         self._count()
-        return np.array([_dydx(*self.args, self._inside(y[0]))])
+        return np.array([self.core.dydx(*self.args, self._inside(y[0]))])
 
     def dxdy(self, y, x):
         self._count()
-        return np.array([_dxdy(*self.args, self._inside(y))])
+        return np.array([self.core.dxdy(*self.args, self._inside(y))])
 
     def relaxation(self, y):
-        """Relaxation rate toward normal depth at depth y [1/length] (:func:`_kernel.relaxation_rate`)."""
-        kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha = self.args
-        return K.relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, self._inside(y))
+        """Relaxation rate toward normal depth at depth y [1/length] (:func:`gvflow._core.march.relaxation_rate`)."""
+        ch, fl, q, s0, alpha = self.args
+        return self.core.relaxation_rate(ch, fl, q, alpha, self._inside(y))
 
     def slope_at(self, y):
-        return _dydx(*self.args, self._inside(y))
+        return self.core.dydx(*self.args, self._inside(y))
 
 
 @register_marcher

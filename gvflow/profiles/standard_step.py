@@ -23,9 +23,10 @@ import math
 
 import numpy as np
 
+from .._core.codes import AVERAGES
+from .._engine import core
 from .._validate import finite_float, positive_float
 from ..errors import InvalidInputError
-from . import _kernel as K
 from .base import Marcher, MarchResult, SegmentBatch, register_marcher
 
 __all__ = ["StandardStep"]
@@ -60,17 +61,15 @@ class StandardStep(Marcher):
     name = "standard_step"
 
     def __init__(self, friction_average: str = "conveyance", eddy_loss: float = 0.0, tol: float = 1e-12):
-        if friction_average not in K.AVERAGES:
+        if friction_average not in AVERAGES:
             raise InvalidInputError(
-                f"friction_average must be one of {sorted(K.AVERAGES)}; got {friction_average!r}")
+                f"friction_average must be one of {sorted(AVERAGES)}; got {friction_average!r}")
         self.friction_average = friction_average
         self.eddy_loss = positive_float(eddy_loss, "eddy_loss", allow_zero=True)
         self.tol = positive_float(tol, "tol")
 
-    def _args(self, seg: SegmentBatch):
-        kind, p0, p1, p2 = seg.spec
-        u = seg.units
-        return kind, p0, p1, p2, seg.law, u.manning_k, u.g, u.kinematic_viscosity, seg.section.max_depth
+    def _work(self, seg: SegmentBatch, stations: int) -> int:
+        return 20 * seg.n * stations
 
     def march(self, seg, x, y0, branch):
         return self._march(seg, x, y0, branch, _NO_FORCE, 0.0)
@@ -79,7 +78,6 @@ class StandardStep(Marcher):
         return self._march(seg, x, y0, branch, force, rtol)
 
     def _march(self, seg, x, y0, branch, force, rtol):
-        kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         x = np.ascontiguousarray(x, dtype=float)
         n, m = seg.n, x.shape[0]
         y0 = _per_scenario(y0, n)
@@ -90,38 +88,38 @@ class StandardStep(Marcher):
         out_n = np.empty(n, dtype=np.int64)
         out_xc = np.empty(n)
         out_code = np.empty(n, dtype=np.int64)
-        K.march(kind, p0, p1, p2, law, seg.coef, seg.discharge, seg.slope, x, y0, seg.yc, int(branch),
-                seg.alpha, self.eddy_loss, K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol,
-                force, float(rtol), out_y, out_n, out_xc, out_code)
+        core("march", self._work(seg, m)).march(
+            seg.cb, seg.fl, seg.discharge, seg.slope, x, y0, seg.yc, int(branch), seg.alpha, self.eddy_loss,
+            AVERAGES[self.friction_average], seg.section.max_depth, self.tol, force, float(rtol),
+            out_y, out_n, out_xc, out_code)
         return MarchResult(out_y, out_n, out_xc, out_code)
 
     def step_to(self, seg, index, y1, x1, x2, branch):
-        kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         d = finite_float(x2, "x2") - finite_float(x1, "x1")
         if d == 0.0:
             return float(y1)
-        y, code = K.step(kind, p0, p1, p2, law, seg.coef[index], seg.discharge[index], seg.slope, float(y1), d,
-                         seg.yc[index], int(branch), seg.alpha, self.eddy_loss,
-                         K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol, float(y1))
+        M = core("march", 20)
+        y, code = M.step(M.scenario(seg.cb, int(index)), seg.fl, float(seg.discharge[index]), seg.slope, float(y1),
+                         d, float(seg.yc[index]), int(branch), seg.alpha, self.eddy_loss,
+                         AVERAGES[self.friction_average], seg.section.max_depth, self.tol, float(y1))
         return float(y) if code == 0 else math.nan
 
     def step_many(self, seg, index, y1, x1, x2, branch):
-        kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         index, y1, x1, x2 = (np.ascontiguousarray(a) for a in np.broadcast_arrays(
             np.asarray(index), np.asarray(y1, float), np.asarray(x1, float), np.asarray(x2, float)))
         shape = index.shape
-        idx = index.ravel()
-        out = K.step_many(kind, p0, p1, p2, law, seg.coef[idx], seg.discharge[idx], seg.slope, y1.ravel(),
-                          x1.ravel(), x2.ravel(), seg.yc[idx], int(branch), seg.alpha, self.eddy_loss,
-                          K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol)
+        idx = np.ascontiguousarray(index.ravel(), dtype=np.int64)
+        out = core("march", 20 * idx.size).step_many(
+            seg.cb, seg.fl, idx, np.ascontiguousarray(seg.discharge[idx]), seg.slope, y1.ravel(), x1.ravel(),
+            x2.ravel(), np.ascontiguousarray(seg.yc[idx]), int(branch), seg.alpha, self.eddy_loss,
+            AVERAGES[self.friction_average], seg.section.max_depth, self.tol)
         return out.reshape(shape)
 
     def locate_jumps(self, seg, y_sup, x_lo, y_sub, x_hi):
-        kind, p0, p1, p2, law, k, g, nu, ymax = self._args(seg)
         n = seg.n
         out_x, out_y1, out_y2 = np.empty(n), np.empty(n), np.empty(n)
         args = [_per_scenario(v, n) for v in (y_sup, x_lo, y_sub, x_hi)]
-        K.locate_jumps(kind, p0, p1, p2, law, seg.coef, seg.discharge, seg.slope, args[0], args[1], args[2], args[3],
-                       seg.yc, seg.alpha, self.eddy_loss, K.AVERAGES[self.friction_average], k, g, nu, ymax, self.tol,
-                       out_x, out_y1, out_y2)
+        core("march", 2000 * n).locate_jumps(
+            seg.cb, seg.fl, seg.discharge, seg.slope, args[0], args[1], args[2], args[3], seg.yc, seg.alpha,
+            self.eddy_loss, AVERAGES[self.friction_average], seg.section.max_depth, self.tol, out_x, out_y1, out_y2)
         return out_x, out_y1, out_y2
