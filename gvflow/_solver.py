@@ -26,6 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from numba import njit
 
+from ._plausible import check_reach, note_sloping_jumps
 from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
@@ -317,6 +318,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     n = q.size
     if coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
+    check_reach(reach, q, coef)  # refuse what no channel holds, warn of unusual input
     built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
                                    None if coef is None else coef[:, k].copy(), critical_tolerance)
              for k, s in enumerate(segments)]
@@ -539,6 +541,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         for name in ("jump_scenario", "jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after",
                      "jump_at_junction"):
             setattr(sol, name, getattr(sol, name)[order])
+        note_sloping_jumps(sol, reach)
     return sol
 
 

@@ -1,0 +1,235 @@
+"""Scale limits and plausibility checks of a reach before it is solved (private).
+
+Two kinds of check, in one place:
+
+* **Refusals** (:class:`~gvflow.errors.InvalidInputError`) of what no channel
+  can hold and floating point cannot carry: a reach longer than ten thousand
+  kilometres, a segment shorter than the resolution of its position, a
+  critical or normal depth above ten kilometres or a critical depth below a
+  micrometre. Each message names the field and the remedy. The limits are
+  physical, stated in metres and converted to the reach's length unit.
+* **Warnings** (:class:`~gvflow.errors.GVFlowWarning`) of legal but unusual
+  input: Manning's n outside 0.008-0.20, a bed slope above 0.1, a depth many
+  times the channel's width (a sign of mixed units). One warning per kind and
+  call, attributed to the caller's line (the first frame outside gvflow).
+
+:func:`note_sloping_jumps` adds the note on a jump located on a steep floor.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import warnings
+
+import numpy as np
+
+from .errors import GVFlowWarning, InvalidInputError
+from .friction import Manning
+
+#: Longest reach accepted [m]: ten thousand kilometres, longer than the longest river
+#: (about 6,700 km, from memory).
+MAX_REACH_LENGTH_M = 1.0e7
+#: Shortest segment accepted, as a fraction of the reach length: positions carry about 16 significant
+#: digits, and a segment must span many of their last units to hold evenly spaced stations.
+MIN_SEGMENT_FRACTION = 1.0e-9
+#: Deepest critical or normal depth accepted [m] (ten kilometres: deeper than any channel or sea).
+MAX_DEPTH_M = 1.0e4
+#: Shallowest critical depth accepted [m]: a film thinner than a micrometre is not open-channel flow.
+MIN_DEPTH_M = 1.0e-6
+
+#: Usual range of Manning's n [s/m^(1/3)]: from smooth lined channels (glass, finished metal) to
+#: channels dense with brush and trees (Chow 1959, table 5-6, from memory).
+MANNING_N_USUAL = (0.008, 0.20)
+#: Bed slope above which the small-slope assumptions (depth measured vertically, hydrostatic pressure,
+#: sin θ ≈ tan θ) start to err by more than about half a per cent (cos θ = 0.995 at a slope of 0.1),
+#: and above which the weight of a jump's roller may no longer be neglected (FHWA 2006, HEC-14,
+#: *Hydraulic Design of Energy Dissipators for Culverts and Channels*, FHWA-NHI-06-086, ch. 6,
+#: eq. 6.7 and the text beside it: "may be neglected for slopes less than 10 percent").
+STEEP_SLOPE = 0.1
+#: A depth more than this many times the water-surface width looks like mixed units (common practice).
+DEPTH_TO_WIDTH_SUSPECT = 10.0
+
+_PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
+
+
+def warn(message: str) -> None:
+    """Issue a GVFlowWarning attributed to the first caller outside the gvflow package."""
+    frame, level = sys._getframe(0), 1
+    while frame is not None and os.path.abspath(frame.f_code.co_filename).startswith(_PACKAGE_DIR):
+        frame, level = frame.f_back, level + 1
+    warnings.warn(message, GVFlowWarning, stacklevel=level)
+
+
+def _per_metre(units) -> float:
+    from .structures._common import length_per_metre
+
+    return length_per_metre(units)
+
+
+def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
+    """Refuse what no channel can hold and warn of unusual input, for discharges ``q`` (n,) and roughness
+    coefficients ``coef`` (n, K) or None."""
+    from .profiles.base import SegmentBatch
+
+    units = reach.resolved_units
+    per_m = _per_metre(units)
+    L = units.length
+    segments = reach.segments
+    total = reach.length
+    if not total <= MAX_REACH_LENGTH_M * per_m:
+        raise InvalidInputError(
+            f"the reach is {total:.4g} {L} long, more than any channel ({MAX_REACH_LENGTH_M * per_m:.4g} {L}, ten "
+            "thousand kilometres): check the segment lengths and their unit")
+    top = abs(reach.datum) + sum(abs(s.slope) * s.length for s in segments)
+    if not top <= MAX_REACH_LENGTH_M * per_m:
+        raise InvalidInputError(
+            f"datum: bed elevations reach {top:.4g} {L}, beyond ten thousand kilometres from zero, where the "
+            "depths would lose their digits: give elevations from a local datum")
+    for k, s in enumerate(segments):
+        if s.length < MIN_SEGMENT_FRACTION * total:
+            raise InvalidInputError(
+                f"segments.{k}.length: {s.length:.4g} {L} is too short against the reach length {total:.4g} {L} "
+                f"(at least {MIN_SEGMENT_FRACTION:g} of it) for its stations to be told apart: merge this segment "
+                "into its neighbour or remove it")
+
+    _check_end_depths(reach, units, per_m)
+
+    q_ext = np.array([q.min(), q.max(), q.min(), q.max()])
+    batches = []
+    for k, s in enumerate(segments):
+        c_ext = None
+        if coef is not None:
+            c_ext = np.array([coef[:, k].min(), coef[:, k].min(), coef[:, k].max(), coef[:, k].max()])
+        try:
+            with np.errstate(all="ignore"):
+                batch, _, _ = SegmentBatch._checked(s.section, s.slope, s.roughness, q_ext.copy(), units,
+                                                    reach.alpha, c_ext, 0.0)
+        except ArithmeticError:
+            raise InvalidInputError(
+                f"segment {k}: the discharge {q.max():.4g} {units.discharge} in this section with this roughness "
+                "lies beyond what the computation can represent: check the discharge, the section's dimensions "
+                "and their units") from None
+        _check_depths(k, s, batch, q_ext, units, per_m)
+        batches.append(batch)
+
+    _warn_unusual(segments, coef)
+    _warn_mixed_units(batches, L)
+
+
+def _check_end_depths(reach, units, per_m):
+    """A fixed depth or water level at an end must stand less than :data:`MAX_DEPTH_M` above the bed."""
+    from .controls import FixedDepth, FixedStage
+
+    y_max = MAX_DEPTH_M * per_m
+    beds = reach.bed_elevation([0.0, reach.length], [0, len(reach.segments) - 1])
+    for end, bed in zip(("upstream", "downstream"), beds, strict=True):
+        ctrl = getattr(reach, end)
+        if isinstance(ctrl, FixedDepth):
+            depth, field = ctrl.depth, f"{end}.depth"
+        elif isinstance(ctrl, FixedStage):
+            depth, field = ctrl.elevation - float(bed), f"{end}.elevation"
+        else:
+            continue
+        if depth > y_max:
+            raise InvalidInputError(
+                f"{field}: the water would stand {depth:.4g} {units.length} above the bed, more than any channel "
+                f"holds ({y_max:.4g} {units.length}): check the value, its unit and the datum")
+
+
+def _check_depths(k, s, batch, q_ext, units, per_m):
+    L = units.length
+    y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
+    yc = batch.yc
+    big = ~(yc <= y_max)
+    if big.any():
+        i = int(np.flatnonzero(big)[0])
+        raise InvalidInputError(
+            f"discharge: {q_ext[i]:.4g} {units.discharge} needs a critical depth of {yc[i]:.4g} {L} in segment {k}'s "
+            f"section ({s.section!r}), more than any channel holds ({y_max:.4g} {L}): check the discharge, the "
+            "section's dimensions and their units")
+    small = ~(yc >= y_min)
+    if small.any():
+        i = int(np.flatnonzero(small)[0])
+        raise InvalidInputError(
+            f"discharge: {q_ext[i]:.4g} {units.discharge} flows at a critical depth of {yc[i]:.4g} {L} in segment "
+            f"{k}'s section ({s.section!r}), a film thinner than {y_min:.4g} {L}, not open-channel flow: check "
+            "the discharge, the section's dimensions and their units")
+    if s.slope > 0:
+        yn = batch.yn
+        deep = np.isfinite(yn) & (yn > y_max)
+        if deep.any():
+            i = int(np.flatnonzero(deep)[0])
+            raise InvalidInputError(
+                f"segments.{k}: the normal depth would be {yn[i]:.4g} {L}, more than any channel holds "
+                f"({y_max:.4g} {L}): the bed slope {s.slope:g} is too small or the roughness too large for "
+                f"{q_ext[i]:.4g} {units.discharge}; check them and their units, or give slope=0 for a horizontal bed")
+
+
+def _warn_unusual(segments, coef):
+    # Manning's n is the same number in every unit system (the factor k absorbs the units), so it is
+    # compared as given.
+    lo, hi = MANNING_N_USUAL
+    odd_n = []
+    for k, s in enumerate(segments):
+        if not isinstance(s.roughness, Manning):
+            continue
+        ns = np.asarray([s.roughness.n]) if coef is None else coef[:, k]
+        n_lo, n_hi = float(ns.min()), float(ns.max())
+        if n_lo < lo or n_hi > hi:
+            odd_n.append(f"segment {k}: n = {n_lo:g}" if n_lo == n_hi else f"segment {k}: n {n_lo:g}-{n_hi:g}")
+    if odd_n:
+        warn(f"roughness: Manning's n outside its usual range {lo:g}-{hi:g} (Chow 1959, table 5-6) in "
+             f"{', '.join(odd_n)}: check the value and that it is Manning's n (not Chezy's C or a "
+             "Strickler coefficient)")
+    steep = [f"segment {k}: {s.slope:g}" for k, s in enumerate(segments) if abs(s.slope) > STEEP_SLOPE]
+    if steep:
+        warn(f"slope: bed slope above {STEEP_SLOPE:g} ({', '.join(steep)}), where the small-slope assumptions "
+             "(depth measured vertically, hydrostatic pressure) start to err; depths are vertical depths and "
+             "a jump's sequent depth is taken from the level-floor momentum balance")
+
+
+def _warn_mixed_units(segs, L) -> None:
+    """Warn where a segment's normal or critical depth is many times its water-surface width."""
+    odd = []
+    for k, seg in enumerate(segs):
+        for name, y in (("normal", seg.yn), ("critical", seg.yc)):
+            y = np.asarray(y, dtype=float)
+            y = y[np.isfinite(y) & (y > 0)]
+            if not y.size:
+                continue
+            deepest = float(y.max())
+            if seg.section.closed and deepest >= seg.section.max_depth:
+                continue
+            try:
+                top = float(np.asarray(seg.section.top_width(deepest)))
+            except ValueError:
+                continue
+            if np.isfinite(top) and top > 0 and deepest > DEPTH_TO_WIDTH_SUSPECT * top:
+                odd.append(f"segment {k}: {name} depth {deepest:.4g} {L} in a channel {top:.4g} {L} wide")
+                break
+    if odd:
+        warn(f"section: depths many times the channel's width ({'; '.join(odd)}): this often means mixed "
+             "units (a width in feet with a discharge in m³/s, say); check the section, the discharge and units")
+
+
+def note_sloping_jumps(sol, reach) -> None:
+    """Note every jump located on a floor sloping down more steeply than :data:`STEEP_SLOPE`.
+
+    The jump location solver balances the level-floor specific forces. On a sloping floor the weight
+    of the water in the roller has a component along the bed that the balance leaves out, so the
+    subcritical sequent depth needed to hold a jump there is larger than the one reported (FHWA 2006,
+    HEC-14, ch. 6, eq. 6.7; the USBR model tests of jumps on sloping aprons, Peterka 1958, Engineering
+    Monograph 25, show the same trend).
+    """
+    L = reach.resolved_units.length
+    for s, x, k in zip(sol.jump_scenario, sol.jump_x, sol.jump_segment, strict=True):
+        slope = reach.segments[int(k)].slope
+        if slope > STEEP_SLOPE:
+            sol.notes[int(s)].append((float(x), "jump on a sloping floor",
+                                      f"the jump at x = {x:.2f} {L} stands on segment {int(k)}, bed slope {slope:g}: "
+                                      "it was located with the level-floor momentum balance, which leaves out the "
+                                      "weight of the roller along the slope and so underestimates the sequent "
+                                      "depth needed to hold the jump there (FHWA HEC-14, 2006, ch. 6, eq. 6.7: "
+                                      f"the weight may be neglected only below a slope of {STEEP_SLOPE:g}); "
+                                      "treat its location as approximate"))
