@@ -5,8 +5,8 @@ Two kinds of check, in one place:
 * **Refusals** (:class:`~gvflow.errors.InvalidInputError`) of what no channel
   can hold and floating point cannot carry: a reach longer than ten thousand
   kilometres, a segment shorter than the resolution of its position, a
-  critical or normal depth above ten kilometres or a critical depth below a
-  micrometre. Each message names the field and the remedy. The limits are
+  critical or normal depth above ten kilometres or a critical depth below
+  1e-15 m. Each message names the field and the remedy. The limits are
   physical, stated in metres and converted to the reach's length unit.
 * **Warnings** (:class:`~gvflow.errors.GVFlowWarning`) of legal but unusual
   input: Manning's n outside 0.008-0.20, a bed slope above 0.1, a depth many
@@ -35,8 +35,11 @@ MAX_REACH_LENGTH_M = 1.0e7
 MIN_SEGMENT_FRACTION = 1.0e-9
 #: Deepest critical or normal depth accepted [m] (ten kilometres: deeper than any channel or sea).
 MAX_DEPTH_M = 1.0e4
-#: Shallowest critical depth accepted [m]: a film thinner than a micrometre is not open-channel flow.
-MIN_DEPTH_M = 1.0e-6
+#: Shallowest critical depth accepted [m]: far thinner than a molecule of water (about 3e-10 m), and
+#: still far above the floating-point floor. Not a physical bound on useful results (nothing that thin
+#: is open-channel flow) but the bound of what is computed: solvers probing small discharges (the pool
+#: discharge search) pass through depths of 1e-10 m.
+MIN_DEPTH_M = 1.0e-15
 
 #: Usual range of Manning's n [s/m^(1/3)]: from smooth lined channels (glass, finished metal) to
 #: channels dense with brush and trees (Chow 1959, table 5-6, from memory).
@@ -153,7 +156,8 @@ def _check_depths(k, s, batch, q_ext, units, per_m):
         i = int(np.flatnonzero(small)[0])
         raise InvalidInputError(
             f"discharge: {q_ext[i]:.4g} {units.discharge} flows at a critical depth of {yc[i]:.4g} {L} in segment "
-            f"{k}'s section ({s.section!r}), a film thinner than {y_min:.4g} {L}, not open-channel flow: check "
+            f"{k}'s section ({s.section!r}), thinner than {y_min:.4g} {L} (a molecule of water is about 3e-10 m "
+            "across), not open-channel flow: check "
             "the discharge, the section's dimensions and their units")
     if s.slope > 0:
         yn = batch.yn

@@ -1,7 +1,7 @@
 """Extreme and malformed input: every failure is one of gvflow's errors, with a message naming the field.
 
 The limits are physical (a reach longer than ten thousand kilometres, a depth above ten kilometres or
-below a micrometre, a segment shorter than a billionth of its reach); the checks below feed values far
+below 1e-15 m, a segment shorter than a billionth of its reach); the checks below feed values far
 beyond them, the numbers that used to end in ZeroDivisionError, overflow or depths of 1e60 m.
 """
 
