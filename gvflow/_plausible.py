@@ -23,6 +23,7 @@ import sys
 import warnings
 
 import numpy as np
+import pydantic
 
 from .errors import GVFlowWarning, InvalidInputError
 from .friction import Manning
@@ -54,12 +55,15 @@ STEEP_SLOPE = 0.1
 DEPTH_TO_WIDTH_SUSPECT = 10.0
 
 _PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
+_PYDANTIC_DIR = os.path.dirname(os.path.abspath(pydantic.__file__))
 
 
 def warn(message: str) -> None:
-    """Issue a GVFlowWarning attributed to the first caller outside the gvflow package."""
+    """Issue a GVFlowWarning attributed to the first caller outside gvflow (and pydantic, which builds its
+    models)."""
     frame, level = sys._getframe(0), 1
-    while frame is not None and os.path.abspath(frame.f_code.co_filename).startswith(_PACKAGE_DIR):
+    while frame is not None and os.path.abspath(frame.f_code.co_filename).startswith((_PACKAGE_DIR,
+                                                                                     _PYDANTIC_DIR)):
         frame, level = frame.f_back, level + 1
     warnings.warn(message, GVFlowWarning, stacklevel=level)
 

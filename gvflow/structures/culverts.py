@@ -58,7 +58,7 @@ from pydantic import Field
 
 from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
-from ..errors import InvalidInputError
+from ..errors import InvalidInputError, NoSolutionError
 from ..friction import AnyRoughness
 from ..sections import AnySection, Circular
 from ..uniform import critical_depth, normal_depth
@@ -387,7 +387,38 @@ def _inlet_ratio(barrel, q_barrel, u):
     r_lo = unsubmerged(np.array([lo]))[0]
     r_hi = submerged(np.array([hi]))[0]
     r_mid = r_lo + (x - lo) / (hi - lo) * (r_hi - r_lo)
-    return np.where(x <= lo, r_unsub, np.where(x >= hi, r_sub, r_mid))
+    ratio = np.where(x <= lo, r_unsub, np.where(x >= hi, r_sub, r_mid))
+    check_headwater_ratio(barrel, ratio, q_barrel * barrel.barrels, u, "inlet")
+    # Floor at the critical specific energy, in the unsubmerged range: the regression's slope term Ks S
+    # dominates at tiny flows and would put the headwater below the inlet invert, but no discharge enters
+    # the barrel with less energy above its invert than the minimum specific energy Hc = dc + Vc²/2g of
+    # its section (Chow 1959, §3-2, from memory). Where the equation lies below Hc (far below its fitted
+    # range) Hc is used; the headwater is then never negative and still rises with the discharge.
+    q_un = np.minimum(q_barrel, lo * area * math.sqrt(d) / ku)
+    dc = barrel._critical_depth(q_un, u)
+    a_c = barrel._area_perimeter(dc)[0]
+    hc = dc + q_un * q_un / (2.0 * u.g * a_c * a_c)
+    return np.where(x <= lo, np.maximum(ratio, hc / d), ratio)
+
+
+#: Largest headwater accepted, in barrel rises above the inlet invert. The inlet-control equations are
+#: fitted to headwaters of a few rises (HDS-5, Appendix A); a hundred rises means a barrel far too small
+#: for its discharge (or a discharge in the wrong unit), for circular and box barrels alike.
+MAX_HEADWATER_RISES = 100.0
+
+
+def check_headwater_ratio(barrel, ratio, q_total, u, control: str) -> None:
+    """Raise NoSolutionError where the headwater exceeds :data:`MAX_HEADWATER_RISES` barrel rises."""
+    ratio = np.asarray(ratio, dtype=float)
+    bad = ~(ratio <= MAX_HEADWATER_RISES)
+    if np.any(bad):
+        q_bad = np.broadcast_to(np.asarray(q_total, dtype=float), ratio.shape)[bad]
+        r_bad = ratio[bad]
+        raise NoSolutionError(
+            f"discharge {float(q_bad.flat[0]):.4g} {u.discharge} is far too large for this culvert: under "
+            f"{control} control the headwater would be {float(r_bad.flat[0]):.4g} times the barrel's rise "
+            f"{barrel.height:g} {u.length} (at most {MAX_HEADWATER_RISES:g} accepted); use a larger barrel or "
+            "more barrels, or check the discharge and its unit")
 
 
 def inlet_control_headwater(barrel, discharge, units: UnitsLike = "SI"):
@@ -604,6 +635,7 @@ def outlet_control_headwater(barrel, discharge, tailwater, *, tailwater_velocity
     n = _check_steps(steps)
     shape = np.broadcast(q, tw, vd).shape
     hw, h_out, h_in, flow = _outlet_control(barrel, q, tw, vd, kx, n, u)
+    check_headwater_ratio(barrel, hw / barrel.height, q * barrel.barrels, u, "outlet")
     return OutletControl(
         headwater=scalar_or_array(hw.reshape(shape)),
         outlet_depth=scalar_or_array(h_out.reshape(shape)),
