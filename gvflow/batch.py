@@ -36,7 +36,7 @@ from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution, s
 from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .friction import check_manning_n
-from .jumps import Jump, jump_length, jump_type
+from .jumps import Jump, _length_ratio, jump_type
 from .profiles import get_marcher
 from .result import Profile
 from .uniform import CRITICAL_SLOPE_TOLERANCE
@@ -430,7 +430,7 @@ class SweepResult:
             y1, y2, f = float(self.jump_upstream_depth[j]), float(self.jump_downstream_depth[j]), float(fr[j])
             out[int(self.jump_scenario[j])].append(Jump(
                 x=float(self.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=f,
-                energy_loss=float(loss[j]), length=float(jump_length(y1, y2, max(f, 1.0))),
+                energy_loss=float(loss[j]), length=float(_length_ratio(max(f, 1.0)) * y2),
                 kind=jump_type(max(f, 1.0)), segment=int(k2[j]),
                 where="at a segment junction" if junc[j] else "in segment"))
         return out

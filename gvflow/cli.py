@@ -11,7 +11,8 @@
 jumps, controls and a short station table) and the safety caution, and can
 write the long-section figure and the full station table. ``schema`` prints
 the JSON schema of reach files. Bad input ends the command with exit code 2
-and a one-line message on standard error; a fault inside gvflow itself ends
+and a one-line message on standard error (a plausibility warning is one
+line "gvflow: warning: ..." after the report); a fault inside gvflow itself ends
 it with exit code 3 and a one-line message (never a traceback).
 """
 
@@ -20,6 +21,9 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import warnings
+
+from .errors import GVFlowWarning
 
 CAUTION = (
     "CAUTION: results are for planning and checking. Verify them against local codes and "
@@ -120,7 +124,18 @@ def main(argv: list[str] | None = None) -> int:
     """Run the ``gvflow`` command with ``argv`` (default: the process arguments); return the exit code."""
     args = _parser().parse_args(argv)
     try:
-        return args.func(args)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", GVFlowWarning)
+            code = args.func(args)
+        seen = set()
+        for w in caught:  # plausibility warnings, once each, as one line each; others as Python shows them
+            if issubclass(w.category, GVFlowWarning):
+                if str(w.message) not in seen:
+                    seen.add(str(w.message))
+                    _one_line_error(str(w.message), prefix="gvflow: warning: ")
+            else:
+                warnings.showwarning(w.message, w.category, w.filename, w.lineno)
+        return code
     except (ValueError, OSError) as exc:
         _one_line_error(str(exc))
         return 2
