@@ -18,6 +18,7 @@ Two kinds of check, in one place:
 
 from __future__ import annotations
 
+import contextlib
 import os
 import sys
 import warnings
@@ -41,6 +42,12 @@ MAX_DEPTH_M = 1.0e4
 #: is open-channel flow) but the bound of what is computed: solvers probing small discharges (the pool
 #: discharge search) pass through depths of 1e-10 m.
 MIN_DEPTH_M = 1.0e-15
+
+#: Critical slopes accepted (the friction slope at critical depth). Real channels lie within about
+#: 1e-5 (very smooth and deep) to 1 (very rough and shallow); outside 1e-10-1e3 the roughness is far
+#: beyond any surface (Manning's n of 1e-4 at a critical depth of 10 km gives 4e-9) and the friction
+#: terms of the marchers lose their meaning.
+CRITICAL_SLOPE_RANGE = (1.0e-10, 1.0e3)
 
 #: Usual range of Manning's n [s/m^(1/3)]: from smooth lined channels (glass, finished metal) to
 #: channels dense with brush and trees (Chow 1959, table 5-6, from memory).
@@ -72,6 +79,18 @@ def _per_metre(units) -> float:
     from .structures._common import length_per_metre
 
     return length_per_metre(units)
+
+
+@contextlib.contextmanager
+def arithmetic_guard():
+    """Turn an arithmetic failure of a solve into an InvalidInputError (a backstop behind
+    :func:`check_reach`: extreme numbers that pass its limits and still overflow the computation)."""
+    try:
+        yield
+    except (ZeroDivisionError, OverflowError, FloatingPointError) as exc:
+        raise InvalidInputError(
+            f"the reach's numbers lie beyond what the computation can carry ({type(exc).__name__}: {exc}); "
+            "check for extreme values (lengths, sizes, roughness, depths and their units)") from None
 
 
 def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
@@ -110,7 +129,7 @@ def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
             c_ext = np.array([coef[:, k].min(), coef[:, k].min(), coef[:, k].max(), coef[:, k].max()])
         try:
             with np.errstate(all="ignore"):
-                batch, _, _ = SegmentBatch._checked(s.section, s.slope, s.roughness, q_ext.copy(), units,
+                batch, sf_c, _ = SegmentBatch._checked(s.section, s.slope, s.roughness, q_ext.copy(), units,
                                                     reach.alpha, c_ext, 0.0)
         except ArithmeticError:
             raise InvalidInputError(
@@ -118,30 +137,56 @@ def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
                 "lies beyond what the computation can represent: check the discharge, the section's dimensions "
                 "and their units") from None
         _check_depths(k, s, batch, q_ext, units, per_m)
+        _check_critical_slope(k, s, sf_c)
         batches.append(batch)
 
     _warn_unusual(segments, coef)
     _warn_mixed_units(batches, L)
 
 
+def _check_critical_slope(k, s, sf_c):
+    """The friction slope at critical depth (the critical slope) must lie in :data:`CRITICAL_SLOPE_RANGE`."""
+    lo, hi = CRITICAL_SLOPE_RANGE
+    bad = ~((sf_c >= lo) & (sf_c <= hi))
+    if bad.any():
+        value = float(sf_c[bad][0])
+        what = "smoother" if not value >= lo else "rougher"
+        raise InvalidInputError(
+            f"segments.{k}.roughness: {s.roughness!r} gives a critical slope (friction slope at critical depth) "
+            f"of {value:.4g}, outside {lo:g}-{hi:g}: {what} than any real channel; check the value, its law "
+            "(Manning's n, Chezy's C, Darcy-Weisbach's roughness height) and its unit")
+
+
 def _check_end_depths(reach, units, per_m):
     """A fixed depth or water level at an end must stand less than :data:`MAX_DEPTH_M` above the bed."""
-    from .controls import FixedDepth, FixedStage
+    from .controls import FixedDepth, FixedStage, SluiceGate
+    from .structures.controls import Culvert
 
-    y_max = MAX_DEPTH_M * per_m
+    y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
+    L = units.length
     beds = reach.bed_elevation([0.0, reach.length], [0, len(reach.segments) - 1])
-    for end, bed in zip(("upstream", "downstream"), beds, strict=True):
-        ctrl = getattr(reach, end)
+    ends = [(end, getattr(reach, end), float(bed)) for end, bed in zip(("upstream", "downstream"), beds,
+                                                                         strict=True)]
+    ends += [(f"segments.{k}.gate", s.gate, None) for k, s in enumerate(reach.segments) if s.gate is not None]
+    for end, ctrl, bed in ends:
         if isinstance(ctrl, FixedDepth):
             depth, field = ctrl.depth, f"{end}.depth"
         elif isinstance(ctrl, FixedStage):
-            depth, field = ctrl.elevation - float(bed), f"{end}.elevation"
+            depth, field = ctrl.elevation - bed, f"{end}.elevation"
+        elif isinstance(ctrl, SluiceGate):
+            depth, field = ctrl.contraction * ctrl.opening, f"{end}.opening"
+        elif isinstance(ctrl, Culvert) and ctrl.tailwater is not None:
+            depth, field = max(ctrl.tailwater, y_min), f"{end}.tailwater"
         else:
             continue
         if depth > y_max:
             raise InvalidInputError(
-                f"{field}: the water would stand {depth:.4g} {units.length} above the bed, more than any channel "
-                f"holds ({y_max:.4g} {units.length}): check the value, its unit and the datum")
+                f"{field}: the water would stand {depth:.4g} {L} deep, more than any channel holds ({y_max:.4g} {L}): "
+                "check the value, its unit and the datum")
+        if 0 < depth < y_min:
+            raise InvalidInputError(
+                f"{field}: the water would stand {depth:.4g} {L} deep, thinner than {y_min:.4g} {L}, not "
+                "open-channel flow: check the value and its unit")
 
 
 def _check_depths(k, s, batch, q_ext, units, per_m):

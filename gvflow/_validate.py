@@ -89,7 +89,7 @@ def invalid_input_from(exc, owner: str) -> InvalidInputError:
         msg = msg.removeprefix("Value error, ")
         if msg.startswith("Input should be"):
             msg = "must be" + msg[len("Input should be"):]
-        text = f"{loc} {msg}" if loc else msg
+        text = f"{loc} {msg}" if loc and not msg.startswith(loc) else msg
         if loc and "input" in err:
             text += f"; got {short_repr(err['input'])}"
         parts.append(text)

@@ -32,6 +32,7 @@ from functools import cached_property
 import numpy as np
 
 from ._pieces import profile_pieces
+from ._plausible import arithmetic_guard
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution, solve_batch
 from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
@@ -270,8 +271,9 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     try:
         for start in range(0, n, chunk):
             sl = slice(start, min(start + chunk, n))
-            parts.append(solve_batch(reach, marcher, q[sl], None if coef is None else coef[sl], n_steps, max_step,
-                                     critical_tolerance))
+            with arithmetic_guard():
+                parts.append(solve_batch(reach, marcher, q[sl], None if coef is None else coef[sl], n_steps,
+                                         max_step, critical_tolerance))
             bar.update(sl.stop - sl.start)
     finally:
         bar.close()

@@ -455,7 +455,9 @@ def inlet_control_headwater(barrel, discharge, units: UnitsLike = "SI"):
     """
     u = resolve_units(units)
     q = positive_array(discharge, "discharge") / barrel.barrels
-    return scalar_or_array(_inlet_ratio(barrel, q, u) * barrel.height)
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # out of range: refused by the check
+        ratio = _inlet_ratio(barrel, q, u)
+    return scalar_or_array(ratio * barrel.height)
 
 
 # ---------------------------------------------------------------------------
@@ -634,7 +636,8 @@ def outlet_control_headwater(barrel, discharge, tailwater, *, tailwater_velocity
     kx = _loss_coefficient(exit_loss, "exit_loss")
     n = _check_steps(steps)
     shape = np.broadcast(q, tw, vd).shape
-    hw, h_out, h_in, flow = _outlet_control(barrel, q, tw, vd, kx, n, u)
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # out of range: refused by the check
+        hw, h_out, h_in, flow = _outlet_control(barrel, q, tw, vd, kx, n, u)
     check_headwater_ratio(barrel, hw / barrel.height, q * barrel.barrels, u, "outlet")
     return OutletControl(
         headwater=scalar_or_array(hw.reshape(shape)),
