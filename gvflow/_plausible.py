@@ -6,7 +6,10 @@ Two kinds of check, in one place:
   can hold and floating point cannot carry: a reach longer than ten thousand
   kilometres, a segment shorter than the resolution of its position, a
   critical or normal depth above ten kilometres or a critical depth below
-  1e-15 m. Each message names the field and the remedy. The limits are
+  1e-15 m, a critical slope outside 1e-10-1e3, end depths, gate jets and
+  culvert tailwaters beyond the same depth limits. Each message names the
+  field and the remedy; :func:`arithmetic_guard` turns any arithmetic failure
+  left in a solve into an InvalidInputError. The limits are
   physical, stated in metres and converted to the reach's length unit.
 * **Warnings** (:class:`~gvflow.errors.GVFlowWarning`) of legal but unusual
   input: Manning's n outside 0.008-0.20, a bed slope above 0.1, a depth many
@@ -75,12 +78,6 @@ def warn(message: str) -> None:
     warnings.warn(message, GVFlowWarning, stacklevel=level)
 
 
-def _per_metre(units) -> float:
-    from .structures._common import length_per_metre
-
-    return length_per_metre(units)
-
-
 @contextlib.contextmanager
 def arithmetic_guard():
     """Turn an arithmetic failure of a solve into an InvalidInputError (a backstop behind
@@ -99,7 +96,7 @@ def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
     from .profiles.base import SegmentBatch
 
     units = reach.resolved_units
-    per_m = _per_metre(units)
+    per_m = units.length_per_metre
     L = units.length
     segments = reach.segments
     total = reach.length
