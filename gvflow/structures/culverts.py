@@ -427,6 +427,14 @@ def inlet_control_headwater(barrel, discharge, units: UnitsLike = "SI"):
     HDS-5 (FHWA 2012, Appendix A) equations, see the module notes; the
     discharge is shared equally by ``barrel.barrels`` barrels.
 
+    At flows far below the equations' fitted range the slope term Ks S
+    dominates and would put the headwater below the inlet invert; there the
+    headwater is taken as the barrel's critical specific energy
+    Hc = dc + Vc²/2g, the least energy with which the flow can enter it
+    (Chow 1959, §3-2). So the headwater is never negative and rises with the
+    discharge. A headwater above :data:`MAX_HEADWATER_RISES` barrel rises
+    (a barrel far too small, circular or box alike) raises NoSolutionError.
+
     Parameters
     ----------
     barrel : CircularBarrel or BoxBarrel
