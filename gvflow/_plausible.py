@@ -90,11 +90,10 @@ def arithmetic_guard():
             "check for extreme values (lengths, sizes, roughness, depths and their units)") from None
 
 
-def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
-    """Refuse what no channel can hold and warn of unusual input, for discharges ``q`` (n,) and roughness
-    coefficients ``coef`` (n, K) or None."""
-    from .profiles.base import SegmentBatch
-
+def check_reach(reach) -> None:
+    """Refuse reaches no channel can hold (length, datum, end depths); the depths are checked, and
+    unusual input warned of, by :func:`check_segments` once the solver has built its per-segment
+    constants."""
     units = reach.resolved_units
     per_m = units.length_per_metre
     L = units.length
@@ -118,27 +117,19 @@ def check_reach(reach, q: np.ndarray, coef: np.ndarray | None) -> None:
 
     _check_end_depths(reach, units, per_m)
 
-    q_ext = np.array([q.min(), q.max(), q.min(), q.max()])
-    batches = []
-    for k, s in enumerate(segments):
-        c_ext = None
-        if coef is not None:
-            c_ext = np.array([coef[:, k].min(), coef[:, k].min(), coef[:, k].max(), coef[:, k].max()])
-        try:
-            with np.errstate(all="ignore"):
-                batch, sf_c, _ = SegmentBatch._checked(s.section, s.slope, s.roughness, q_ext.copy(), units,
-                                                    reach.alpha, c_ext, 0.0)
-        except ArithmeticError:
-            raise InvalidInputError(
-                f"segment {k}: the discharge {q.max():.4g} {units.discharge} in this section with this roughness "
-                "lies beyond what the computation can represent: check the discharge, the section's dimensions "
-                "and their units") from None
-        _check_depths(k, s, batch, q_ext, units, per_m)
-        _check_critical_slope(k, s, sf_c)
-        batches.append(batch)
 
-    _warn_unusual(segments, coef)
-    _warn_mixed_units(batches, L)
+def check_segments(reach, segs, sf_c, coef=None) -> None:
+    """Refuse critical and normal depths and critical slopes beyond any channel, and warn of depths many
+    times the channel's width, from the per-segment constants the solver built (``segs``: one
+    SegmentBatch per segment; ``sf_c``: friction slope at critical depth per segment and scenario;
+    ``coef``: the roughness coefficients (n, K) of a sweep, or None)."""
+    units = reach.resolved_units
+    per_m = units.length_per_metre
+    for k, (s, batch) in enumerate(zip(reach.segments, segs, strict=True)):
+        _check_depths(k, s, batch, batch.discharge, units, per_m)
+        _check_critical_slope(k, s, np.asarray(sf_c[k], dtype=float))
+    _warn_unusual(reach.segments, coef)
+    _warn_mixed_units(segs, units.length, units.g)
 
 
 def _check_critical_slope(k, s, sf_c):
@@ -161,14 +152,14 @@ def _check_end_depths(reach, units, per_m):
 
     y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
     L = units.length
-    beds = reach.bed_elevation([0.0, reach.length], [0, len(reach.segments) - 1])
-    ends = [(end, getattr(reach, end), float(bed)) for end, bed in zip(("upstream", "downstream"), beds,
-                                                                         strict=True)]
+    last = len(reach.segments) - 1
+    ends = [("upstream", reach.upstream, (0.0, 0)), ("downstream", reach.downstream, (reach.length, last))]
     ends += [(f"segments.{k}.gate", s.gate, None) for k, s in enumerate(reach.segments) if s.gate is not None]
-    for end, ctrl, bed in ends:
+    for end, ctrl, where in ends:
         if isinstance(ctrl, FixedDepth):
             depth, field = ctrl.depth, f"{end}.depth"
         elif isinstance(ctrl, FixedStage):
+            bed = float(reach.bed_elevation([where[0]], [where[1]])[0])
             depth, field = ctrl.elevation - bed, f"{end}.elevation"
         elif isinstance(ctrl, SluiceGate):
             depth, field = ctrl.contraction * ctrl.opening, f"{end}.opening"
@@ -239,25 +230,31 @@ def _warn_unusual(segments, coef):
              "a jump's sequent depth is taken from the level-floor momentum balance")
 
 
-def _warn_mixed_units(segs, L) -> None:
-    """Warn where a segment's normal or critical depth is many times its water-surface width."""
+def _warn_mixed_units(segs, L, g) -> None:
+    """Warn where a segment's normal or critical depth is many times its water-surface width (open
+    sections only: a conduit's water surface narrows to nothing at its crown)."""
     odd = []
     for k, seg in enumerate(segs):
-        for name, y in (("normal", seg.yn), ("critical", seg.yc)):
-            y = np.asarray(y, dtype=float)
-            y = y[np.isfinite(y) & (y > 0)]
-            if not y.size:
-                continue
-            deepest = float(y.max())
-            if seg.section.closed and deepest >= seg.section.max_depth:
-                continue
-            try:
-                top = float(np.asarray(seg.section.top_width(deepest)))
-            except ValueError:
-                continue
-            if np.isfinite(top) and top > 0 and deepest > DEPTH_TO_WIDTH_SUSPECT * top:
-                odd.append(f"segment {k}: {name} depth {deepest:.4g} {L} in a channel {top:.4g} {L} wide")
-                break
+        if seg.section.closed:
+            continue
+        y = np.concatenate([seg.yn, seg.yc])
+        y = y[np.isfinite(y) & (y > 0)]
+        if not y.size:
+            continue
+        deepest = float(y.max())
+        # Cheap pass first: in an open section whose width never narrows upwards the hydraulic depth
+        # A/T is at most the depth, so at critical depth (alpha Q² T = g A³) T >= Q / sqrt(g yc³), and
+        # the width only grows above it. Depths below ten times that bound cannot be suspect.
+        bound = seg.discharge / np.sqrt(g * seg.yc ** 3)
+        if deepest < DEPTH_TO_WIDTH_SUSPECT * float(np.min(bound)):
+            continue
+        try:
+            top = float(seg.section.top_width(deepest))
+        except ValueError:
+            continue
+        if np.isfinite(top) and top > 0 and deepest > DEPTH_TO_WIDTH_SUSPECT * top:
+            name = "normal" if deepest in seg.yn else "critical"
+            odd.append(f"segment {k}: {name} depth {deepest:.4g} {L} in a channel {top:.4g} {L} wide")
     if odd:
         warn(f"section: depths many times the channel's width ({'; '.join(odd)}): this often means mixed "
              "units (a width in feet with a discharge in m³/s, say); check the section, the discharge and units")

@@ -26,7 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from numba import njit
 
-from ._plausible import check_reach, note_sloping_jumps
+from ._plausible import check_reach, check_segments, note_sloping_jumps
 from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
@@ -318,12 +318,13 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     n = q.size
     if coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
-    check_reach(reach, q, coef)  # refuse what no channel holds, warn of unusual input
+    check_reach(reach)  # refuse lengths and end depths no channel holds
     built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
                                    None if coef is None else coef[:, k].copy(), critical_tolerance)
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
     sf_c = [b[1] for b in built]  # friction slope at critical depth
+    check_segments(reach, segs, sf_c, coef)  # depths and critical slopes no channel holds; warnings
     classes = _SLOPE_CLASS_NAMES[np.stack([b[2] for b in built], axis=1)]
     can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
     can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
