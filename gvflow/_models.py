@@ -7,23 +7,30 @@ from typing import ClassVar
 from pydantic import BaseModel, ConfigDict, ValidationError
 
 from ._validate import invalid_input_from
+from .errors import GVFlowError
 
 
-class _ErrorContract(type(BaseModel)):
-    """Metaclass that turns pydantic's ValidationError, raised while a user builds a model, into gvflow's
-    :class:`~gvflow.errors.InvalidInputError` naming the field path. Models nested in a reach file are
-    validated by pydantic directly (not through this call), so file errors keep their full paths."""
+class _RaisesOwnErrors(type(BaseModel)):
+    """Metaclass of :class:`FrozenModel`: building a model by calling its class raises gvflow's own errors,
+    never pydantic's. A model-level check keeps its own error (a ControlError, say); field errors become
+    one InvalidInputError naming each field. Validation of nested data (reach files) does not pass through
+    here, so :mod:`gvflow.io` still sees pydantic's errors with their field paths."""
 
     def __call__(cls, *args, **kwargs):
         try:
             return super().__call__(*args, **kwargs)
         except ValidationError as exc:
+            errors = exc.errors()
+            if len(errors) == 1 and not errors[0].get("loc"):
+                original = (errors[0].get("ctx") or {}).get("error")
+                if isinstance(original, GVFlowError):
+                    raise original from None
             raise invalid_input_from(exc, cls.__name__) from None
 
 
-class FrozenModel(BaseModel, metaclass=_ErrorContract):
-    """Immutable, strict model: unknown fields are rejected with their name, and a bad field raises
-    gvflow's :class:`~gvflow.errors.InvalidInputError`, never pydantic's own error."""
+class FrozenModel(BaseModel, metaclass=_RaisesOwnErrors):
+    """Immutable, strict model: unknown fields are rejected with their name; bad input raises gvflow's
+    own errors (see :class:`_RaisesOwnErrors`)."""
 
     model_config = ConfigDict(frozen=True, extra="forbid")
 

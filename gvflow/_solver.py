@@ -28,6 +28,7 @@ import numpy as np
 from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
 from ._engine import core
 from ._near_critical import near_critical_notes
+from ._plausible import check_reach, check_segments, note_sloping_jumps
 from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
@@ -284,11 +285,15 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     n = q.size
     if coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
+    check_reach(reach)  # refuse lengths and end depths no channel holds
     built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
-                                   None if coef is None else coef[:, k].copy(), critical_tolerance)
+                                   None if coef is None else coef[:, k].copy(), critical_tolerance, strict=False)
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
     sf_c = [b[1] for b in built]  # friction slope at critical depth
+    check_segments(reach, segs, sf_c, coef)  # depths and critical slopes no channel holds; warnings
+    for seg in segs:
+        seg.require_converged()
     classes = _SLOPE_CLASS_NAMES[np.stack([b[2] for b in built], axis=1)]
     can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
     can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
@@ -508,6 +513,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         for name in ("jump_scenario", "jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after",
                      "jump_at_junction"):
             setattr(sol, name, getattr(sol, name)[order])
+        note_sloping_jumps(sol, reach)
     return sol
 
 

@@ -68,6 +68,14 @@ def scalar_or_array(arr: np.ndarray):
     return float(arr) if arr.ndim == 0 else arr
 
 
+def short_repr(value, limit: int = 60) -> str:
+    """``repr(value)`` cut to about ``limit`` characters, so that a message never echoes a whole document."""
+    text = repr(value)
+    if len(text) <= limit:
+        return text
+    return f"{text[:limit - 15]}... ({len(text):,} characters)"
+
+
 def invalid_input_from(exc, owner: str) -> InvalidInputError:
     """Turn a pydantic ``ValidationError`` raised while building ``owner`` into an InvalidInputError.
 
@@ -81,8 +89,8 @@ def invalid_input_from(exc, owner: str) -> InvalidInputError:
         msg = msg.removeprefix("Value error, ")
         if msg.startswith("Input should be"):
             msg = "must be" + msg[len("Input should be"):]
-        text = f"{loc} {msg}" if loc else msg
+        text = f"{loc} {msg}" if loc and not msg.startswith(loc) else msg
         if loc and "input" in err:
-            text += f"; got {err['input']!r}"
+            text += f"; got {short_repr(err['input'])}"
         parts.append(text)
     return InvalidInputError(f"{owner}: " + "; ".join(parts))

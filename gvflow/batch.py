@@ -33,11 +33,12 @@ import numpy as np
 
 from ._core.codes import REGIME_NAMES
 from ._pieces import profile_pieces
+from ._plausible import arithmetic_guard
 from ._solver import BatchSolution, solve_batch
 from ._validate import positive_array
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .friction import check_manning_n
-from .jumps import Jump, jump_length, jump_type
+from .jumps import Jump, _length_ratio, jump_type
 from .profiles import get_marcher
 from .result import Profile
 from .uniform import CRITICAL_SLOPE_TOLERANCE
@@ -281,8 +282,9 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     try:
         for start in range(0, n, chunk):
             sl = slice(start, min(start + chunk, n))
-            parts.append(solve_batch(reach, marcher, q[sl], None if coef is None else coef[sl], n_steps, max_step,
-                                     critical_tolerance))
+            with arithmetic_guard():
+                parts.append(solve_batch(reach, marcher, q[sl], None if coef is None else coef[sl], n_steps,
+                                         max_step, critical_tolerance))
             bar.update(sl.stop - sl.start)
     finally:
         bar.close()
@@ -482,7 +484,7 @@ class SweepResult:
             y1, y2, f = float(self.jump_upstream_depth[j]), float(self.jump_downstream_depth[j]), float(fr[j])
             out[int(self.jump_scenario[j])].append(Jump(
                 x=float(self.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=f,
-                energy_loss=float(loss[j]), length=float(jump_length(y1, y2, max(f, 1.0))),
+                energy_loss=float(loss[j]), length=float(_length_ratio(max(f, 1.0)) * y2),
                 kind=jump_type(max(f, 1.0)), segment=int(k2[j]),
                 where="at a segment junction" if junc[j] else "in segment"))
         return out

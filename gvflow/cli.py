@@ -11,7 +11,9 @@
 jumps, controls and a short station table) and the safety caution, and can
 write the long-section figure and the full station table. ``schema`` prints
 the JSON schema of reach files. Bad input ends the command with exit code 2
-and a one-line message on standard error.
+and a one-line message on standard error (a plausibility warning is one
+line "gvflow: warning: ..." after the report); a fault inside gvflow itself ends
+it with exit code 3 and a one-line message (never a traceback).
 """
 
 from __future__ import annotations
@@ -19,6 +21,9 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import warnings
+
+from .errors import GVFlowWarning
 
 CAUTION = (
     "CAUTION: results are for planning and checking. Verify them against local codes and "
@@ -119,11 +124,37 @@ def main(argv: list[str] | None = None) -> int:
     """Run the ``gvflow`` command with ``argv`` (default: the process arguments); return the exit code."""
     args = _parser().parse_args(argv)
     try:
-        return args.func(args)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", GVFlowWarning)
+            code = args.func(args)
+        seen = set()
+        for w in caught:  # plausibility warnings, once each, as one line each; others as Python shows them
+            if issubclass(w.category, GVFlowWarning):
+                if str(w.message) not in seen:
+                    seen.add(str(w.message))
+                    _one_line_error(str(w.message), prefix="gvflow: warning: ")
+            else:
+                warnings.showwarning(w.message, w.category, w.filename, w.lineno)
+        return code
     except (ValueError, OSError) as exc:
-        message = " ".join(str(exc).split())
-        print(f"gvflow: error: {message}", file=sys.stderr)
+        _one_line_error(str(exc))
         return 2
+    except (RecursionError, MemoryError) as exc:
+        _one_line_error(f"the input is too large or too deeply nested to process ({type(exc).__name__}); "
+                        "check the reach file")
+        return 2
+    except Exception as exc:  # a fault of gvflow, not of the input: still one line, no traceback
+        _one_line_error(f"{type(exc).__name__}: {exc}; please report it with the reach file",
+                        prefix="gvflow: internal error: ")
+        return 3
+
+
+def _one_line_error(text: str, prefix: str = "gvflow: error: ", limit: int = 1000) -> None:
+    """Print ``text`` to standard error as one line of at most about ``limit`` characters."""
+    message = " ".join(text.split())
+    if len(message) > limit:
+        message = message[:limit] + "... (message cut)"
+    print(prefix + message, file=sys.stderr)
 
 
 if __name__ == "__main__":  # pragma: no cover

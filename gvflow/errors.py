@@ -68,4 +68,9 @@ class ReachFileError(InvalidInputError):
 
 
 class GVFlowWarning(UserWarning):
-    """A result was computed but something about it deserves the user's attention."""
+    """A result was computed but something about it deserves the user's attention.
+
+    Issued once per kind and call for legal but unusual input: Manning's n outside
+    0.008-0.20, a bed slope above 0.1, depths many times the channel's width (mixed
+    units?), a custom unit system whose g or Manning factor does not fit its length unit.
+    """

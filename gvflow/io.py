@@ -23,6 +23,7 @@ from pathlib import Path
 import numpy as np
 from pydantic import ValidationError
 
+from ._validate import short_repr
 from .errors import InvalidInputError, ReachFileError
 from .reach import Reach
 
@@ -148,17 +149,23 @@ def parse_reach(text: str, source: str = "<reach text>") -> Reach:
     ...
     gvflow.errors.ReachFileError: <reach text>: 1 problem in the reach: segments.0.section.width: must be ...
     """
+    too_deep = (f"{source}: the JSON is nested too deeply to describe a reach (a reach file nests a few levels: "
+                "reach, segments, section); check that this is a reach file")
     try:
         data = json.loads(text)
     except json.JSONDecodeError as exc:
         raise ReachFileError(f"{source}: not valid JSON: {exc.msg} at line {exc.lineno}, column {exc.colno}") \
             from None
+    except RecursionError:
+        raise ReachFileError(too_deep) from None
     try:
         return Reach.model_validate_json(text)
+    except RecursionError:
+        raise ReachFileError(too_deep) from None
     except ValidationError as exc:
         problems = _problems(exc, data)
     except ValueError as exc:  # a gvflow error raised while building a nested object
-        problems = [("", str(exc))]
+        problems = [("", _shorten(str(exc)))]
     count = f"{len(problems)} problem{'s' if len(problems) != 1 else ''}"
     listed = "; ".join(f"{where}: {what}" if where else what for where, what in problems)
     err = ReachFileError(f"{source}: {count} in the reach: {listed}")
@@ -284,7 +291,7 @@ def _problems(exc: ValidationError, data) -> list[tuple[str, str]]:
         path, node = _file_path(err.get("loc", ()), data)
         given = ""
         if "input" in err and not isinstance(err["input"], (dict, list)) and err.get("type") not in _NO_GIVEN:
-            given = f"; got {err['input']!r}"
+            given = f"; got {short_repr(err['input'])}"
         for where, what in _messages(err, node):
             full = ".".join(p for p in (path, where) if p) or "reach"
             whats, got = grouped.setdefault(full, ([], ""))
@@ -293,6 +300,11 @@ def _problems(exc: ValidationError, data) -> list[tuple[str, str]]:
             if given and not where:
                 grouped[full] = (whats, given)
     return [(where, " or ".join(whats) + got) for where, (whats, got) in grouped.items()]
+
+
+def _shorten(text: str, limit: int = 400) -> str:
+    """``text`` cut to about ``limit`` characters (a message must not echo a whole document)."""
+    return text if len(text) <= limit else f"{text[:limit]}... (message cut)"
 
 
 def _file_path(loc, data):

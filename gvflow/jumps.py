@@ -13,6 +13,7 @@ import numpy as np
 
 from . import coefficients
 from ._validate import positive_array, scalar_or_array
+from .errors import InvalidInputError
 
 __all__ = ["Jump", "belanger_ratio", "jump_energy_loss_rectangular", "jump_length", "jump_type",
            "JUMP_TYPES"]
@@ -44,7 +45,8 @@ def belanger_ratio(froude):
 def jump_energy_loss_rectangular(upstream_depth, downstream_depth):
     """Head loss in a jump in a rectangular channel, (y2 - y1)³ / (4 y1 y2) [length].
 
-    Chow 1959, eq. 15-2.
+    Chow 1959, eq. 15-2. ``upstream_depth`` (supercritical) must not exceed
+    ``downstream_depth`` (subcritical).
 
     Examples
     --------
@@ -52,9 +54,32 @@ def jump_energy_loss_rectangular(upstream_depth, downstream_depth):
     >>> gv.jump_energy_loss_rectangular(1.0, 4.0)  # 27/16 y1
     1.6875
     """
+    y1, y2 = _sequent_pair(upstream_depth, downstream_depth)
+    return scalar_or_array((y2 - y1) ** 3 / (4.0 * y1 * y2))
+
+
+def _sequent_pair(upstream_depth, downstream_depth):
+    """Checked (y1, y2): positive, and the supercritical depth y1 not above the subcritical y2."""
     y1 = positive_array(upstream_depth, "upstream_depth")
     y2 = positive_array(downstream_depth, "downstream_depth")
-    return scalar_or_array((y2 - y1) ** 3 / (4.0 * y1 * y2))
+    bad = np.broadcast_to(y1 > y2, np.broadcast(y1, y2).shape)
+    if np.any(bad):
+        a = float(np.broadcast_to(y1, bad.shape)[bad].flat[0])
+        b = float(np.broadcast_to(y2, bad.shape)[bad].flat[0])
+        raise InvalidInputError(
+            f"upstream_depth {a:g} is above downstream_depth {b:g}: a jump rises from the supercritical depth "
+            "(upstream_depth) to the subcritical one (downstream_depth); check their order")
+    return y1, y2
+
+
+def _jump_froude(froude):
+    """Checked upstream Froude number: positive and at least 1 (no jump forms in subcritical flow)."""
+    f = positive_array(froude, "froude")
+    if np.any(f < 1.0):
+        raise InvalidInputError(
+            f"froude must be at least 1 (the upstream Froude number of a jump is supercritical); got "
+            f"{float(np.min(f)):g}: give the Froude number of the supercritical depth")
+    return f
 
 
 def jump_length(upstream_depth, downstream_depth, froude):
@@ -66,7 +91,8 @@ def jump_length(upstream_depth, downstream_depth, froude):
     Engineering Monograph 25, fig. 7; curve read from memory). An estimate
     for sizing a stilling reach, not a precise value: published curves differ
     by about 10 %; a stored text gives L = 6 y2 for 4 < F1 < 20 (see
-    :mod:`gvflow.coefficients`, ``jump.length_curve``).
+    :mod:`gvflow.coefficients`, ``jump.length_curve``). Raises InvalidInputError when
+    ``upstream_depth`` exceeds ``downstream_depth`` or ``froude`` is below 1.
 
     Examples
     --------
@@ -74,9 +100,8 @@ def jump_length(upstream_depth, downstream_depth, froude):
     >>> round(gv.jump_length(0.2, 1.5, 6.0), 2)
     9.15
     """
-    positive_array(upstream_depth, "upstream_depth")
-    y2 = positive_array(downstream_depth, "downstream_depth")
-    f = positive_array(froude, "froude")
+    _, y2 = _sequent_pair(upstream_depth, downstream_depth)
+    f = _jump_froude(froude)
     return scalar_or_array(_length_ratio(f) * y2)
 
 
@@ -89,7 +114,7 @@ def jump_type(froude):
     """Type of jump by upstream Froude number: undular, weak, oscillating, steady or strong.
 
     Ranges 1-1.7, 1.7-2.5, 2.5-4.5, 4.5-9, above 9 (USBR, as given by Chow
-    1959, §15-2).
+    1959, §15-2). ``froude`` must be at least 1.
 
     Examples
     --------
@@ -97,7 +122,7 @@ def jump_type(froude):
     >>> gv.jump_type(6.0)
     'steady'
     """
-    f = float(positive_array(froude, "froude"))
+    f = float(_jump_froude(froude))
     name = JUMP_TYPES[0][1]
     for lower, label in JUMP_TYPES:
         if f >= lower:

@@ -17,6 +17,7 @@ import numpy as np
 from pydantic import Field, field_validator, model_validator
 
 from ._models import FrozenModel
+from ._plausible import arithmetic_guard
 from ._validate import positive_float
 from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
 from .errors import ControlError, InvalidInputError
@@ -208,7 +209,9 @@ class Reach(FrozenModel):
 
         marcher = get_marcher(method, **options)
         n_steps, max_step = _check_steps(n_steps, max_step)
-        sol = solve_batch(self, marcher, np.array([self.discharge]), None, n_steps, max_step, critical_tolerance)
+        with arithmetic_guard():
+            sol = solve_batch(self, marcher, np.array([self.discharge]), None, n_steps, max_step,
+                              critical_tolerance)
         return Profile.from_batch(self, sol, 0, method=getattr(marcher, "name", str(method)))
 
     def sweep(self, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",

@@ -281,7 +281,8 @@ def froude_number(section, discharge, depth, units: UnitsLike = "SI"):
     Examples
     --------
     >>> import gvflow as gv
-    >>> round(gv.froude_number(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0)), 12)
+    >>> g1 = gv.Units(g=1.0, manning_k=1.0, length="L")
+    >>> round(gv.froude_number(gv.Rectangular(width=1.0), 1.0, 1.0, units=g1), 12)
     1.0
     """
     return _station_values(section, discharge, depth, units, 1.0, "froude_many")
@@ -319,7 +320,7 @@ def specific_force(section, discharge, depth, units: UnitsLike = "SI"):
     Examples
     --------
     >>> import gvflow as gv
-    >>> gv.specific_force(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0))
+    >>> gv.specific_force(gv.Rectangular(width=1.0), 1.0, 1.0, units=gv.Units(g=1.0, manning_k=1.0, length="L"))
     1.5
     """
     return _station_values(section, discharge, depth, units, 1.0, "force_many")
@@ -384,7 +385,7 @@ def sequent_depth(section, discharge, depth, units: UnitsLike = "SI"):
     --------
     >>> import gvflow as gv
     >>> sec = gv.Rectangular(width=1.0)
-    >>> g1 = gv.Units(g=1.0, manning_k=1.0)
+    >>> g1 = gv.Units(g=1.0, manning_k=1.0, length="L")
     >>> round(gv.sequent_depth(sec, 10 ** 0.5, 1.0, units=g1), 10)  # F1² = 10 gives y2/y1 = 4
     4.0
     """

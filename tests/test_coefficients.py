@@ -123,6 +123,7 @@ NOT_COEFFICIENTS = {
     ("gvflow.friction", "KIND_MANNING"): "law code of the compiled kernels",
     ("gvflow.friction", "KIND_CHEZY"): "law code of the compiled kernels",
     ("gvflow.friction", "KIND_DARCY"): "law code of the compiled kernels",
+    ("gvflow.structures.culverts", "MAX_HEADWATER_RISES"): "input guard: a barrel far too small for its discharge",
 }
 
 

@@ -209,12 +209,16 @@ def test_drop_inside_the_first_interval_keeps_its_label(method):
 
 # ----------------------------------------------------------------------------- 4. roots
 def test_compiled_roots_report_failure_instead_of_returning_their_last_iterate():
-    # Q² overflows: the critical condition cannot be evaluated, and the root says so
     ch = channel(*gv.Rectangular(width=1.0).core_params(), 0, 0.015)
     fl = fluid(gv.SI)
-    assert flow.critical_depth_single(ch, fl, 1e300, 1.0)[1] != flow.SOLVED
-    # a huge but representable discharge: what the root returns satisfies Manning's equation (not a last
-    # iterate of a bracket that ran out); refusing it is the reach's job (tests/test_extreme_input.py)
+    # a bed slope so small that no depth below 2^1000 carries the discharge: no root, said so
+    assert flow.normal_depth(ch, fl, 1e300, 1e-320)[1] == flow.NO_ROOT
+    # huge and tiny discharges (Q² beyond the floats): the roots work in logarithms and what they return
+    # satisfies the defining equations (not the last iterate of a bracket that ran out)
+    for q in (1e-300, 1e100, 1e300):
+        yc, status = flow.critical_depth_single(ch, fl, q, 1.0)
+        assert status == flow.SOLVED
+        assert yc == pytest.approx((q * q / G) ** (1 / 3) if q < 1e150 else (q / G ** 0.5) ** (2 / 3), rel=1e-12)
     y, status = flow.normal_depth(ch, fl, 1e100, 0.01)
     assert status == flow.SOLVED
     assert float(gv.friction_slope(gv.Rectangular(width=1.0), 1e100, y, 0.015)) == pytest.approx(0.01, rel=1e-12)

@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from ._jit import kernel
 from .codes import MANNING
-from .resistance import _zone_k, hydraulics
+from .resistance import _zone_k, hydraulics, slope_of
 
 
 @kernel
@@ -23,15 +23,15 @@ def _state(ch, fl, d, a_full, p_full, q, h):
     """(A, Sf, T, dln K/dy) at depth h: the partly full section below the soffit, the full barrel at and above."""
     if h >= d:
         kk = _zone_k(MANNING, ch.rough[0], fl.k, a_full, p_full)
-        return a_full, (q / kk) * (q / kk), 0.0, 0.0
+        return a_full, slope_of(q, kk), 0.0, 0.0
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, min(max(h, 1e-12 * d), d), 1.0)
-    return a, (q / kk) * (q / kk), t, dlnk
+    return a, slope_of(q, kk), t, dlnk
 
 
 @kernel
 def _residual(ch, fl, d, a_full, p_full, dx, q, rhs, z):
     a, sf, t, dlnk = _state(ch, fl, d, a_full, p_full, q, z)
-    return z + q * q / (2.0 * fl.g * a * a) - 0.5 * dx * sf - rhs
+    return z + (q / a) * (q / a) / (2.0 * fl.g) - 0.5 * dx * sf - rhs
 
 
 @kernel
@@ -41,7 +41,7 @@ def _solve_step(ch, fl, d, a_full, p_full, dx, q, rhs, lo, hi, z):
     z = min(max(z, lo), hi)
     for _ in range(200):
         a, sf, t, dlnk = _state(ch, fl, d, a_full, p_full, q, z)
-        f = z + q * q / (2.0 * fl.g * a * a) - 0.5 * dx * sf - rhs
+        f = z + (q / a) * (q / a) / (2.0 * fl.g) - 0.5 * dx * sf - rhs
         if f == 0.0:
             return z, True
         if f > 0.0:
@@ -49,7 +49,7 @@ def _solve_step(ch, fl, d, a_full, p_full, dx, q, rhs, lo, hi, z):
         else:
             lo = z
         # d/dz [z + Q²/2gA² - dx Sf/2], with dSf/dz = -2 Sf dln K/dz
-        df = 1.0 - q * q * t / (fl.g * a * a * a) + dx * sf * dlnk
+        df = 1.0 - (q / a) * (q / a) * t / (fl.g * a) + dx * sf * dlnk
         zn = z - f / df if df > 0.0 else 0.5 * (lo + hi)
         if not (lo < zn < hi):
             zn = 0.5 * (lo + hi)
@@ -75,7 +75,7 @@ def march_barrel(ch, fl, d, a_full, p_full, s0, dx, steps, q, h_start, h_low, sf
         fail = False
         for _ in range(steps):
             a2, sf2, t2, dl2 = _state(ch, fl, d, a_full, p_full, qi, h)
-            rhs = h + qi * qi / (2.0 * fl.g * a2 * a2) + dx * (0.5 * sf2 - s0)
+            rhs = h + (qi / a2) * (qi / a2) / (2.0 * fl.g) + dx * (0.5 * sf2 - s0)
             if _residual(ch, fl, d, a_full, p_full, dx, qi, rhs, h_low[i]) > 0.0:
                 fail = True
                 break

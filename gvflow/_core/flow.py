@@ -20,7 +20,7 @@ import numpy as np
 from ._jit import kernel
 from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
-from .resistance import conveyance, dlnsf_dy, friction_slope, froude_squared, velocity_coefficients
+from .resistance import conveyance, dlnsf_dy, froude_squared, velocity_coefficients
 
 _RTOL = 1e-14
 
@@ -30,7 +30,7 @@ def velocity_head(ch, fl, q, y, alpha):
     """alpha(y) V²/(2g) = alpha(y) Q²/(2 g A²) [length]."""
     a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
     al, be = velocity_coefficients(ch, fl, y, alpha)
-    return al * q * q / (2.0 * fl.g * a * a)
+    return al * (q / a) * (q / a) / (2.0 * fl.g)
 
 
 @kernel
@@ -49,9 +49,9 @@ def specific_force(ch, fl, q, y, alpha):
 
 @kernel
 def _subcritical_depth(ch, fl, q, alpha):
-    """A depth at which the flow is subcritical (Fr² < 1), doubling from 1 [length]; NaN if none by 2^400."""
+    """A depth at which the flow is subcritical (Fr² < 1), doubling from 1 [length]; NaN if none by 2^1000."""
     hi = 1.0
-    for _ in range(400):
+    for _ in range(1000):
         if froude_squared(ch, fl, q, hi, alpha) < 1.0:
             return hi
         hi *= 2.0
@@ -65,13 +65,13 @@ def critical_depth_single(ch, fl, q, alpha):
     Safeguarded Newton on ln(A³/T) - ln(alpha Q²/g), increasing in depth, on a
     bracket from 0 to the crown (closed conduit) or a doubled upper bound.
     """
-    target = math.log(alpha * q * q / fl.g)
+    target = math.log(alpha / fl.g) + 2.0 * math.log(q)  # log form: no overflow or underflow of Q²
     ymax = max_depth(ch.kind, ch.par)
     lo = 0.0
     if ymax < math.inf:
         hi = ymax * (1.0 - 1e-13)
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, hi)
-        if 3.0 * math.log(a) - math.log(t) < target:
+        if 3.0 * ln(a) - ln(t) < target:
             return hi, NO_ROOT  # the conduit would flow full before the flow became critical
     else:
         hi = _subcritical_depth(ch, fl, q, alpha)
@@ -80,25 +80,40 @@ def critical_depth_single(ch, fl, q, alpha):
     y = 0.5 * hi
     for _ in range(200):
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
-        f = 3.0 * math.log(a) - math.log(t) - target
-        if not math.isfinite(f):
+        f = 3.0 * ln(a) - ln(t) - target
+        if math.isnan(f):
             return y, NOT_CONVERGED
         if f > 0.0:
             hi = y
         else:
             lo = y
-        df = 3.0 * t / a - dt / t
-        yn = y - f / df if df > 0.0 and df < math.inf else 0.5 * (lo + hi)
+        # Newton in ln y: d/d(ln y) [3 ln A - ln T] = y (3T/A - T'/T), nearly constant where A and T follow
+        # powers of y, so tiny and huge depths converge as fast as ordinary ones
+        df = y * (3.0 * t / a - dt / t) if a > 0.0 and t > 0.0 else 0.0
+        yn = y * math.exp(-f / df) if 0.0 < df < math.inf and math.isfinite(f) else _split(lo, hi)
         if not (lo < yn < hi):
-            yn = 0.5 * (lo + hi)
+            yn = _split(lo, hi)
         if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
             # converged on the depth; the residual (a relative error in alpha Q² T/(g A³)) must be small too
             a, p, t, m, dt, dp = geometry(ch.kind, ch.par, yn)
-            if abs(3.0 * math.log(a) - math.log(t) - target) <= 1e-8:
+            if abs(3.0 * ln(a) - ln(t) - target) <= 1e-8:
                 return yn, SOLVED
+            if yn > (1.0 - 1e-6) * ymax:
+                return yn, NO_ROOT  # at the crown within round-off: the conduit flows full first
             return yn, NOT_CONVERGED
         y = yn
     return y, NOT_CONVERGED
+
+
+@kernel
+def _split(lo, hi):
+    """A point inside the bracket (lo, hi): the middle, or a thousandth of hi while lo is 0 (geometric
+    descent toward tiny roots), or the geometric mean of a bracket spanning decades."""
+    if lo <= 0.0:
+        return 1e-3 * hi
+    if hi > 4.0 * lo:
+        return math.sqrt(lo * hi)
+    return 0.5 * (lo + hi)
 
 
 @kernel
@@ -217,6 +232,18 @@ def peak_conveyance(ch, fl, q):
 
 
 @kernel
+def ln(x):
+    """Natural logarithm, -inf at zero (as IEEE arithmetic gives it; Python's math.log would raise)."""
+    return math.log(x) if x > 0.0 else -math.inf
+
+
+@kernel
+def _log_sf(ch, fl, q, y):
+    """ln Sf = 2 (ln Q - ln K), free of the overflow and underflow of (Q/K)² at extreme discharges."""
+    return 2.0 * (math.log(q) - ln(conveyance(ch, fl, q, y)))
+
+
+@kernel
 def normal_depth(ch, fl, q, s0):
     """Depth of uniform flow, Sf(y) = S0; (depth, status).
 
@@ -228,43 +255,44 @@ def normal_depth(ch, fl, q, s0):
     """
     if not s0 > 0.0:
         return math.nan, NO_ROOT
+    lns0 = math.log(s0)
     if max_depth(ch.kind, ch.par) < math.inf:
         hi, k_peak = peak_conveyance(ch, fl, q)
-        if friction_slope(ch, fl, q, hi) > s0 * (1.0 + 1e-12):
+        if _log_sf(ch, fl, q, hi) > lns0 + math.log1p(1e-12):
             return math.nan, NO_ROOT
     else:
         hi = 1.0
-        for _ in range(2100):
-            if friction_slope(ch, fl, q, hi) < s0:
+        for _ in range(1000):
+            if _log_sf(ch, fl, q, hi) < lns0:
                 break
             hi *= 2.0
-        if not friction_slope(ch, fl, q, hi) < s0:
+        if not _log_sf(ch, fl, q, hi) < lns0:
             return math.nan, NO_ROOT
     lo = 0.0
     y = 0.5 * hi
-    lns0 = math.log(s0)
     y_prev = f_prev = math.nan
     for _ in range(200):
-        f = math.log(friction_slope(ch, fl, q, y)) - lns0  # decreasing in y
+        f = _log_sf(ch, fl, q, y) - lns0  # decreasing in y
         if f > 0.0:
             lo = y
         else:
             hi = y
-        df = dlnsf_dy(ch, fl, q, y)
+        # Newton in ln y (see critical_depth_single): d ln Sf / d ln y = y dlnsf_dy
+        df = y * dlnsf_dy(ch, fl, q, y)
         if ch.law == DARCY and y_prev == y_prev and y != y_prev:
             # Darcy: dlnsf_dy holds the friction factor fixed, which is far off where ks/4R is large;
             # the secant slope keeps the iteration superlinear
-            sec = (f - f_prev) / (y - y_prev)
+            sec = (f - f_prev) / (math.log(y) - math.log(y_prev))
             if sec < 0.0:
                 df = sec
         y_prev, f_prev = y, f
-        yn = y - f / df if df < 0.0 else 0.5 * (lo + hi)
+        yn = y * math.exp(-f / df) if -math.inf < df < 0.0 and math.isfinite(f) else _split(lo, hi)
         if not (lo < yn < hi):
-            yn = 0.5 * (lo + hi)
+            yn = _split(lo, hi)
         if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
             # converged on the depth; the friction slope there must match the bed slope too (it need not
             # where the resistance law is not monotone in depth, e.g. a roughness height near 2R)
-            if abs(math.log(friction_slope(ch, fl, q, yn)) - lns0) <= 1e-8:
+            if abs(_log_sf(ch, fl, q, yn) - lns0) <= 1e-8:
                 return yn, SOLVED
             return yn, NOT_CONVERGED
         y = yn

@@ -18,11 +18,11 @@ import math
 import numpy as np
 
 from ._jit import kernel
-from .codes import DARCY, NOT_CONVERGED, SOLVED, SUB, SUPER  # noqa: F401
+from .codes import DARCY, SOLVED, SUB, SUPER  # noqa: F401
 from .flow import critical_depth_single, normal_depth, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry
 from .records import Channel
-from .resistance import dlnsf_dy, friction_slope, hydraulics, sf_average
+from .resistance import friction_slope, hydraulics, sf_average, slope_of
 
 # the friction slope at the step's far end only (a backward-Euler step): first order, but it damps any
 # stiffness, so the march uses it for sub-steps far longer than the relaxation length (never a user option)
@@ -40,8 +40,8 @@ def scenario(cb, s):
 def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
     """Energy residual r(y2) of a standard step over signed distance d, and dr/dy2."""
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y2, alpha)
-    hv2 = al * q * q / (2.0 * fl.g * a * a)
-    sf2 = (q / kk) * (q / kk)
+    hv2 = al * (q / a) * (q / a) / (2.0 * fl.g)
+    sf2 = slope_of(q, kk)
     sav, dsav = sf_average(avg, sf1, sf2)
     dhv2 = -fr2  # d(alpha V²/2g)/dy = dE/dy - 1 = -Fr², alpha varying or not
     dsf2 = -2.0 * sf2 * dlnk
@@ -168,15 +168,15 @@ def critical_distance(ch, fl, q, s0, y1, yc, alpha, avg):
 
 
 #: relative band about critical depth inside which a march interval is integrated in the x(y) form
-CRITICAL_BAND = 0.25
+CRITICAL_BAND = 0.15
 #: most sub-steps one station interval may be split into where the profile is stiff
 MAX_SUBSTEPS = 256
 
-# Gauss-Legendre nodes and weights on [-1, 1], 8 points (Abramowitz & Stegun 1964, table 25.4)
-_GL_X = np.array([-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498,
-                  0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363])
-_GL_W = np.array([0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620,
-                  0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763])
+# Gauss-Legendre nodes and weights on [-1, 1], 6 points (Abramowitz & Stegun 1964, table 25.4)
+_GL_X = np.array([-0.9324695142031521, -0.6612093864662645, -0.2386191860831969,
+                  0.2386191860831969, 0.6612093864662645, 0.9324695142031521])
+_GL_W = np.array([0.1713244923791704, 0.3607615730481386, 0.4679139345726910,
+                  0.4679139345726910, 0.3607615730481386, 0.1713244923791704])
 
 
 @kernel
@@ -185,7 +185,7 @@ def gvf_terms(ch, fl, q, s0, alpha, y):
     (Chow 1959, *Open-Channel Hydraulics*, eq. 9-13, x downstream): the compiled mirror of
     :func:`gvflow.profiles.equation.gvf_terms`, for the marchers."""
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
-    return s0 - (q / kk) * (q / kk), 1.0 - fr2
+    return s0 - slope_of(q, kk), 1.0 - fr2
 
 
 @kernel
@@ -218,7 +218,7 @@ def relaxation_rate(ch, fl, q, alpha, y):
     the stiffness of the GVF equation (its Jacobian where S0 = Sf). A trapezoidal energy step longer than
     2/rate overshoots normal depth; the march keeps its sub-steps within 1/(4 rate)."""
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
-    sf = (q / kk) * (q / kk)
+    sf = slope_of(q, kk)
     return sf * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
 
 
@@ -231,15 +231,15 @@ def _dxdy(ch, fl, q, s0, alpha, ce, sxy, y):
 
 @kernel
 def x_of_y(ch, fl, q, s0, alpha, ce, sxy, ya, yb, panels):
-    """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by 8-point Gauss-Legendre
-    quadrature on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx is
-    infinite)."""
+    """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by Gauss-Legendre
+    quadrature (6 points) on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx
+    is infinite)."""
     w = (yb - ya) / panels
     tot = 0.0
     for j in range(panels):
         h = 0.5 * w
         c = ya + (j + 0.5) * w
-        for i in range(8):
+        for i in range(6):
             tot += _GL_W[i] * _dxdy(ch, fl, q, s0, alpha, ce, sxy, c + h * _GL_X[i]) * h
     return tot
 
@@ -281,12 +281,11 @@ def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
         return y1, 0.0, 6
     toward = toward and yb == yc
     sxy = sgn_d * sdy
-    # Gauss panels no longer than the distance from the leg's far end to the pole of dx/dy at normal depth
-    # (by the tangent of S0 - Sf there, an underestimate), so each is integrated to round-off
+    # Gauss panels no longer than half the distance from the leg's far end to the pole of dx/dy at normal
+    # depth (estimated by the chord of S0 - Sf over the leg): 6-point Gauss-Legendre is then good to ~1e-12
     nb, db = gvf_terms(ch, fl, q, s0, alpha, yb)
-    reach = abs(nb) / max((s0 - nb) * abs(dlnsf_dy(ch, fl, q, yb)), 1e-300)
-    panels = int(min(64.0, math.ceil(abs(yb - y1) / max(reach, 1e-300))))
-    panels = max(panels, 1)
+    room = max(abs(yb - y1) * abs(nb) / max(abs(num0 - nb), 1e-300), 1e-300)
+    panels = max(1, int(min(32.0, math.ceil(2.0 * abs(yb - y1) / room))))
     xb = x_of_y(ch, fl, q, s0, alpha, ce, sxy, y1, yb, panels)
     if not (xb * sgn_d >= 0.0) or not math.isfinite(xb):
         return y1, 0.0, 6
@@ -295,9 +294,17 @@ def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
     # solve x_of_y(y1, y) = d for y between y1 and yb: safeguarded Newton (x(y) is monotone there)
     lo, hi = y1, yb  # x(lo) - d has the sign opposite to x(hi) - d
     flo = -d
-    y = y1 + (yb - y1) * (d / xb if toward else math.sqrt(d / xb))
+    # first guess from x(y) ~ s1 u + c u² (u = y - y1): the slope s1 = dx/dy at y1 and the leg's end; exact
+    # for the square-root shape at critical depth (s1 = 0)
+    ub = yb - y1
+    s1 = _dxdy(ch, fl, q, s0, alpha, ce, sxy, probe)
+    c = (xb - s1 * ub) / (ub * ub)
+    disc = s1 * s1 + 4.0 * c * d
+    u = 2.0 * d / (s1 + math.copysign(math.sqrt(disc), s1 if s1 != 0.0 else ub * c)) if disc >= 0.0 else 0.0
+    y = y1 + u if 0.0 < u / ub < 1.0 else y1 + ub * (d / xb)
     for _ in range(100):
-        f = x_of_y(ch, fl, q, s0, alpha, ce, sxy, y1, y, panels) - d
+        npan = max(1, int(min(32.0, math.ceil(2.0 * abs(y - y1) / room))))
+        f = x_of_y(ch, fl, q, s0, alpha, ce, sxy, y1, y, npan) - d
         if abs(f) <= 1e-13 * abs(d):
             return y, abs(d), 0
         if (f > 0.0) == (flo > 0.0):
@@ -308,7 +315,8 @@ def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
         yn = y - f / df if df != 0.0 and math.isfinite(df) else 0.5 * (lo + hi)
         if not (min(lo, hi) < yn < max(lo, hi)):
             yn = 0.5 * (lo + hi)
-        if abs(yn - y) <= 1e-14 * yc:
+        # Newton converges quadratically here: after a correction below 1e-9 yc the next would be ~1e-18 yc
+        if abs(yn - y) <= 1e-9 * yc:
             return yn, abs(d), 0
         y = yn
     return y, abs(d), 0
@@ -332,6 +340,8 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     sgn = 1.0 if d > 0 else -1.0
     first = True
     legs = 0
+    hint = 0.0  # relaxation rate met at the far end of a rejected step
+    rate_y = -1.0  # relaxation rate at y, once known
     for _ in range(4 * MAX_SUBSTEPS):
         rest = total - done
         if rest <= 1e-12 * total:
@@ -345,10 +355,13 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
                 return yc, 1, done + dist
             if code == 5:
                 y = yl
+                rate_y = -1.0
                 done += dist
                 first = False
                 continue
-        rate = relaxation_rate(ch, fl, q, alpha, y)
+        if not rate_y > 0.0:
+            rate_y = relaxation_rate(ch, fl, q, alpha, y)
+        rate = max(rate_y, hint)
         h = rest
         how = avg
         if rate * rest > 0.5:
@@ -360,6 +373,15 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
                 how = AVG_END
         y2, code = step(ch, fl, q, s0, y, sgn * h, yc, branch, alpha, ce, how,
                         ymax, tol, guess if first and h >= rest else y)
+        if code == 1 and how != AVG_END:
+            # a trapezoidal step long against the relaxation length near normal depth can overshoot
+            # past critical depth: the damped step, monotone, tells whether the profile stiffens there
+            y_be, code_be = step(ch, fl, q, s0, y, sgn * h, yc, branch, alpha, ce, AVG_END, ymax, tol, y)
+            if code_be == 0:
+                rate2 = relaxation_rate(ch, fl, q, alpha, y_be)
+                if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
+                    hint = rate2
+                    continue
         if code == 1:
             # near critical depth a long step can miss a root the profile really has (the discrete
             # energy equation loses it before the profile does): retry with sub-steps first
@@ -369,6 +391,17 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
                 dc = critical_distance(ch, fl, q, s0, y, yc, alpha, avg)
                 return yc, 1, done + min(max(dc * sgn, 0.0), h)
             return y2, code, done
+        if how != AVG_END:
+            # the profile may stiffen along the step (deep flow relaxing fast near normal depth): a step
+            # long against the relaxation length at its far end is taken again, shorter
+            rate2 = relaxation_rate(ch, fl, q, alpha, y2)
+            if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
+                hint = rate2
+                continue
+            rate_y = rate2  # the next sub-step starts at y2
+        else:
+            rate_y = -1.0
+        hint = 0.0
         y = y2
         done += h
         first = False
@@ -468,21 +501,19 @@ def properties(cb, fl, rows, q, y, out):
 
 
 @kernel
-def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status):
+def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, status_n):
     """Per scenario (roughness row i, discharge q[i]): critical depth, normal depth (NaN where none), the
     friction slope at critical depth, and the slope class code (0 mild, 1 steep, 2 critical, 3 horizontal,
     4 adverse) by the rule of :func:`gvflow.profiles.classify_slope` with band ``tol`` (a closed conduit
-    that cannot carry q in uniform flow counts as mild). ``status[i]`` is SOLVED, or NOT_CONVERGED where a
-    root did not converge (the caller raises), or NO_ROOT where no critical depth exists below a conduit's
-    crown."""
+    that cannot carry q in uniform flow counts as mild). ``status[i]`` and ``status_n[i]`` are the status of
+    the critical and the normal depth (:mod:`gvflow._core.codes`): a critical depth without a root (a conduit
+    flowing full first) stands at the crown, a normal depth without one is NaN, and the caller raises where
+    one did not converge."""
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
-        yc[i], st = critical_depth_single(ch, fl, q[i], alpha)
-        status[i] = st
-        yn[i], st_n = normal_depth(ch, fl, q[i], slope)
-        if st_n == NOT_CONVERGED:
-            status[i] = st_n
-        if st_n != SOLVED:
+        yc[i], status[i] = critical_depth_single(ch, fl, q[i], alpha)
+        yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)
+        if status_n[i] != SOLVED:
             yn[i] = math.nan
         sf_c[i] = friction_slope(ch, fl, q[i], yc[i])
         if slope == 0.0:
@@ -628,7 +659,7 @@ def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, q, y, alpha,
         v = q / a
         out[0, i] = a
         out[1, i] = t
-        out[2, i] = (q / kk) * (q / kk)
+        out[2, i] = slope_of(q, kk)
         out[3, i] = v
         # the Froude number V/sqrt(gA/T) of a geometric section; a surveyed section's compound one
         out[4, i] = math.sqrt(fr2) if ch.kind == SURVEYED else math.sqrt(fr2 / al)

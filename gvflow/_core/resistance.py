@@ -89,13 +89,15 @@ def hydraulics(ch, fl, q, y, alpha):
     ea, eb = _exponents(ch.law)
     if ch.kind != SURVEYED:
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        if not a > 0.0:  # a depth below what the geometry resolves: no flow area, no conveyance
+            return 0.0, t, 0.0, 0.0, math.inf, alpha, 1.0, math.inf
         if ch.law == DARCY:
             r = a / p
             f = colebrook(4.0 * r * abs(q) / (a * fl.nu), ch.rough[0] / (4.0 * r))
             kk = math.sqrt(8.0 * fl.g / f) * a * math.sqrt(r)
         else:
             kk = _zone_k(ch.law, ch.rough[0], fl.k, a, p)
-        return a, t, m, kk, ea * t / a - eb * dp / p, alpha, 1.0, alpha * q * q * t / (fl.g * a * a * a)
+        return a, t, m, kk, ea * t / a - eb * dp / p, alpha, 1.0, alpha * (q / a) * (q / a) * t / (fl.g * a)
     a_tot = t_tot = m_tot = 0.0
     kk = dk = s2 = s3 = sig1 = 0.0
     for i in range(zone_count(ch.kind, ch.par)):
@@ -108,7 +110,7 @@ def hydraulics(ch, fl, q, y, alpha):
             continue
         # dK_i/dy = K_i (ea T_i/A_i - eb P_i'/P_i); d(K_i³/A_i²)/dy = K_i³/A_i² (3 dK_i/K_i - 2 T_i/A_i)
         g_i = ea * t / a - eb * dp / p
-        c3 = ki * ki * ki / (a * a)
+        c3 = ki * (ki / a) * (ki / a)
         kk += ki
         dk += ki * g_i
         s2 += ki * ki / a
@@ -116,10 +118,13 @@ def hydraulics(ch, fl, q, y, alpha):
         sig1 += c3 * (3.0 * g_i - 2.0 * t / a)
     if kk <= 0.0:
         return a_tot, t_tot, m_tot, 0.0, math.inf, 1.0, 1.0, math.inf
-    al = s3 * a_tot * a_tot / (kk * kk * kk)
-    be = s2 * a_tot / (kk * kk)
+    if zone_count(ch.kind, ch.par) == 1:
+        al = be = 1.0  # one zone: one velocity (exactly, not to round-off)
+    else:
+        al = s3 * (a_tot / kk) * (a_tot / kk) / kk
+        be = s2 * (a_tot / kk) / kk
     # dE/dy = 1 + Q²/(2g) d(sigma3/K³)/dy = 1 + Q²/(2g K³) (sigma1 - 3 sigma3 K'/K)
-    fr2 = -q * q / (2.0 * fl.g * kk * kk * kk) * (sig1 - 3.0 * s3 * dk / kk)
+    fr2 = -(q / kk) * (q / kk) / (2.0 * fl.g * kk) * (sig1 - 3.0 * s3 * dk / kk)
     return a_tot, t_tot, m_tot, kk, dk / kk, al, be, fr2
 
 
@@ -130,10 +135,15 @@ def conveyance(ch, fl, q, y):
 
 
 @kernel
+def slope_of(q, kk):
+    """Friction slope (Q/K)² of discharge q through conveyance K; infinite where K vanishes (no flow area)."""
+    return (q / kk) * (q / kk) if kk > 0.0 else math.inf
+
+
+@kernel
 def friction_slope(ch, fl, q, y):
     """Friction slope Sf = (Q/K)² [-] of discharge q at depth y."""
-    kk = conveyance(ch, fl, q, y)
-    return (q / kk) * (q / kk)
+    return slope_of(q, conveyance(ch, fl, q, y))
 
 
 @kernel

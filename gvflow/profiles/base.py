@@ -74,6 +74,7 @@ class SegmentBatch:
     yn: np.ndarray
     cb: ChannelBatch = field(repr=False)
     fl: Fluid = field(repr=False)
+    unconverged: np.ndarray | None = field(default=None, repr=False)
 
     @classmethod
     def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
@@ -84,7 +85,7 @@ class SegmentBatch:
         return cls._checked(section, slope, roughness, q, resolve_units(units), alpha, coef)[0]
 
     @classmethod
-    def _checked(cls, section, slope, roughness, q, u, alpha, coef, tol=CRITICAL_SLOPE_TOLERANCE):
+    def _checked(cls, section, slope, roughness, q, u, alpha, coef, tol=CRITICAL_SLOPE_TOLERANCE, strict=True):
         """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
         or a float array with one row per scenario it may keep. Returns (batch, friction slope at critical
         depth, slope class code: an index into SLOPE_CLASSES, critical within ``tol``) per scenario."""
@@ -99,15 +100,24 @@ class SegmentBatch:
         cb = channel_batch(kind, par, law, c)
         fl = fluid(u)
         yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
-        code, status = np.empty(q.shape, np.int64), np.empty(q.shape, np.int64)
+        code, status, status_n = (np.empty(q.shape, np.int64) for _ in range(3))
         core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha), float(tol), yc, yn,
-                                                      sf_c, code, status)
-        if np.any(status == NOT_CONVERGED):
-            i = int(np.flatnonzero(status == NOT_CONVERGED)[0])
-            raise ConvergenceError(f"critical or normal depth did not converge for discharge {q[i]:g} in "
-                                   f"{section!r}; check that the discharge and the section are in the same units "
-                                   "and of plausible size", iterations=200)
-        return cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl), sf_c, code
+                                                      sf_c, code, status, status_n)
+        failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
+        yc[status == NOT_CONVERGED] = np.nan
+        batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed)
+        if strict:
+            batch.require_converged()
+        return batch, sf_c, code
+
+    def require_converged(self) -> None:
+        """Raise ConvergenceError where a scenario's critical or normal depth did not converge (a solver that
+        explains extreme input first builds with ``strict=False`` and calls this after)."""
+        if self.unconverged is not None and np.any(self.unconverged):
+            i = int(np.flatnonzero(self.unconverged)[0])
+            raise ConvergenceError(f"critical or normal depth did not converge for discharge {self.discharge[i]:g} "
+                                   f"in {self.section!r}; check that the discharge and the section are in the same "
+                                   "units and of plausible size", iterations=200)
 
     def same_section(self, other: SegmentBatch) -> bool:
         """Whether ``other`` has the same cross-section (kind and parameters; roughness aside)."""
@@ -123,7 +133,8 @@ class SegmentBatch:
         cb = self.cb
         return SegmentBatch(self.section, self.slope, self.law, self.coef[idx], self.discharge[idx],
                             self.units, self.alpha, self.yc[idx], self.yn[idx],
-                            ChannelBatch(cb.kind, cb.par, cb.law, np.ascontiguousarray(cb.rough[idx])), self.fl)
+                            ChannelBatch(cb.kind, cb.par, cb.law, np.ascontiguousarray(cb.rough[idx])), self.fl,
+                            None if self.unconverged is None else self.unconverged[idx])
 
     def properties(self, depth):
         """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe."""

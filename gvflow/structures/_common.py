@@ -8,13 +8,9 @@ from .._models import FrozenModel  # noqa: F401  (the structures' models share t
 from .._roots import bracketed_root, expand_upper
 from ..units import Units
 
-#: Standard gravity in m/s² (CGPM 1901), used to express published metre constants in any unit system.
-_G_SI = 9.80665
-_FEET_PER_METRE = 1.0 / 0.3048
-
 
 def length_per_metre(units: Units) -> float:
-    """Length units per metre for ``units``.
+    """Length units per metre for ``units`` (:attr:`gvflow.Units.length_per_metre`).
 
     Some published coefficients carry a length (the head and width
     corrections of the thin-plate weir formulas, in millimetres). They are
@@ -22,12 +18,7 @@ def length_per_metre(units: Units) -> float:
     feet; for a custom unit system whose length label is neither, the factor
     is inferred from its gravity, g / 9.80665 m/s².
     """
-    label = units.length.strip().lower()
-    if label in ("m", "metre", "meter", "metres", "meters"):
-        return 1.0
-    if label in ("ft", "foot", "feet"):
-        return _FEET_PER_METRE
-    return units.g / _G_SI
+    return units.length_per_metre
 
 
 def solve_increasing(fun, target, lo, hi, *, what: str, limit: float = np.inf):

@@ -50,6 +50,7 @@ Fr² = 1/(1 + ke), a little above critical depth.
 
 from __future__ import annotations
 
+import contextvars
 import math
 from dataclasses import dataclass
 from typing import Annotated, Literal
@@ -61,7 +62,7 @@ from .. import coefficients
 from .._roots import bracketed_root
 from .._validate import finite_array, positive_array, scalar_or_array
 from ..coefficients import INLET_TYPES, CulvertInlet
-from ..errors import ConvergenceError, InvalidInputError
+from ..errors import ConvergenceError, InvalidInputError, NoSolutionError
 from ..friction import AnyRoughness
 from ..sections import AnySection
 from ..uniform import normal_depth
@@ -327,7 +328,43 @@ def _inlet_ratio(barrel, q_barrel, u):
     r_lo = unsubmerged(np.array([lo]))[0]
     r_hi = submerged(np.array([hi]))[0]
     r_mid = r_lo + (x - lo) / (hi - lo) * (r_hi - r_lo)
-    return np.where(x <= lo, r_unsub, np.where(x >= hi, r_sub, r_mid))
+    ratio = np.where(x <= lo, r_unsub, np.where(x >= hi, r_sub, r_mid))
+    check_headwater_ratio(barrel, ratio, q_barrel * barrel.barrels, u, "inlet")
+    # Floor at the critical specific energy, in the unsubmerged range: the regression's slope term Ks S
+    # dominates at tiny flows and would put the headwater below the inlet invert, but no discharge enters
+    # the barrel with less energy above its invert than the minimum specific energy Hc = dc + Vc²/2g of
+    # its section (Chow 1959, §3-2, from memory). Where the equation lies below Hc (far below its fitted
+    # range) Hc is used; the headwater is then never negative and still rises with the discharge.
+    q_un = np.minimum(q_barrel, lo * area * math.sqrt(d) / ku)
+    dc = barrel._critical_depth(q_un, u)
+    a_c = barrel._area_perimeter(dc)[0]
+    hc = dc + q_un * q_un / (2.0 * u.g * a_c * a_c)
+    return np.where(x <= lo, np.maximum(ratio, hc / d), ratio)
+
+
+#: Largest headwater accepted, in barrel rises above the inlet invert. The inlet-control equations are
+#: fitted to headwaters of a few rises (HDS-5, Appendix A); a hundred rises means a barrel far too small
+#: for its discharge (or a discharge in the wrong unit), for circular and box barrels alike.
+MAX_HEADWATER_RISES = 100.0
+
+
+_REFUSE_FAR_TOO_SMALL = contextvars.ContextVar("refuse_far_too_small", default=True)
+
+
+def check_headwater_ratio(barrel, ratio, q_total, u, control: str) -> None:
+    """Raise NoSolutionError where the headwater exceeds :data:`MAX_HEADWATER_RISES` barrel rises."""
+    if not _REFUSE_FAR_TOO_SMALL.get():
+        return
+    ratio = np.asarray(ratio, dtype=float)
+    bad = ~(ratio <= MAX_HEADWATER_RISES)
+    if np.any(bad):
+        q_bad = np.broadcast_to(np.asarray(q_total, dtype=float), ratio.shape)[bad]
+        r_bad = ratio[bad]
+        raise NoSolutionError(
+            f"discharge {float(q_bad.flat[0]):.4g} {u.discharge} is far too large for this culvert: under "
+            f"{control} control the headwater would be {float(r_bad.flat[0]):.4g} times the barrel's rise "
+            f"{barrel.height:g} {u.length} (at most {MAX_HEADWATER_RISES:g} accepted); use a larger barrel or "
+            "more barrels, or check the discharge and its unit")
 
 
 def inlet_control_headwater(barrel, discharge, units: UnitsLike = "SI"):
@@ -335,6 +372,14 @@ def inlet_control_headwater(barrel, discharge, units: UnitsLike = "SI"):
 
     HDS-5 (FHWA 2012, Appendix A) equations, see the module notes; the
     discharge is shared equally by ``barrel.barrels`` barrels.
+
+    At flows far below the equations' fitted range the slope term Ks S
+    dominates and would put the headwater below the inlet invert; there the
+    headwater is taken as the barrel's critical specific energy
+    Hc = dc + Vc²/2g, the least energy with which the flow can enter it
+    (Chow 1959, §3-2). So the headwater is never negative and rises with the
+    discharge. A headwater above :data:`MAX_HEADWATER_RISES` barrel rises
+    (a barrel far too small, circular or box alike) raises NoSolutionError.
 
     Parameters
     ----------
@@ -364,7 +409,9 @@ def inlet_control_headwater(barrel, discharge, units: UnitsLike = "SI"):
     """
     u = resolve_units(units)
     q = positive_array(discharge, "discharge") / barrel.barrels
-    return scalar_or_array(_inlet_ratio(barrel, q, u) * barrel.height)
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # out of range: refused by the check
+        ratio = _inlet_ratio(barrel, q, u)
+    return scalar_or_array(ratio * barrel.height)
 
 
 # ---------------------------------------------------------------------------
@@ -515,7 +562,9 @@ def outlet_control_headwater(barrel, discharge, tailwater, *, tailwater_velocity
     kx = _loss_coefficient(exit_loss, "exit_loss")
     n = _check_steps(steps)
     shape = np.broadcast(q, tw, vd).shape
-    hw, h_out, h_in, flow = _outlet_control(barrel, q, tw, vd, kx, n, u)
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # out of range: refused by the check
+        hw, h_out, h_in, flow = _outlet_control(barrel, q, tw, vd, kx, n, u)
+    check_headwater_ratio(barrel, hw / barrel.height, q * barrel.barrels, u, "outlet")
     return OutletControl(
         headwater=scalar_or_array(hw.reshape(shape)),
         outlet_depth=scalar_or_array(h_out.reshape(shape)),
@@ -691,10 +740,20 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
         allowable = float(positive_array(allowable_headwater, "allowable_headwater"))
     if road is not None and not hasattr(road, "low_point"):
         raise InvalidInputError(f"road must be a RoadCrest; got {road!r}")
-    res = barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u)
+    # with a road the barrels carry only part of the discharge: a headwater of many rises for the whole of it
+    # is a trial on the way to the split, not a culvert far too small (checked on the barrels' share below)
     from .overtopping import finish_culvert_result
 
-    return finish_culvert_result(barrel, res, road=road, tw=tw, vd=vd, exit_loss=exit_loss, steps=steps, units=u)
+    token = _REFUSE_FAR_TOO_SMALL.set(road is None)
+    try:
+        res = barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u)
+        out = finish_culvert_result(barrel, res, road=road, tw=tw, vd=vd, exit_loss=exit_loss, steps=steps, units=u)
+    finally:
+        _REFUSE_FAR_TOO_SMALL.reset(token)
+    if road is not None:
+        check_headwater_ratio(barrel, np.asarray(out.headwater, dtype=float) / barrel.height,
+                              np.asarray(out.barrel_discharge, dtype=float), u, str(np.ravel(out.control)[0]))
+    return out
 
 
 def barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u) -> CulvertHeadwater:

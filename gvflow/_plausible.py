@@ -1,0 +1,282 @@
+"""Scale limits and plausibility checks of a reach before it is solved (private).
+
+Two kinds of check, in one place:
+
+* **Refusals** (:class:`~gvflow.errors.InvalidInputError`) of what no channel
+  can hold and floating point cannot carry: a reach longer than ten thousand
+  kilometres, a segment shorter than the resolution of its position, a
+  critical or normal depth above ten kilometres or a critical depth below
+  1e-15 m, a critical slope outside 1e-10-1e3, end depths, gate jets and
+  culvert tailwaters beyond the same depth limits. Each message names the
+  field and the remedy; :func:`arithmetic_guard` turns any arithmetic failure
+  left in a solve into an InvalidInputError. The limits are
+  physical, stated in metres and converted to the reach's length unit.
+* **Warnings** (:class:`~gvflow.errors.GVFlowWarning`) of legal but unusual
+  input: Manning's n outside 0.008-0.20, a bed slope above 0.1, a depth many
+  times the channel's width (a sign of mixed units). One warning per kind and
+  call, attributed to the caller's line (the first frame outside gvflow).
+
+:func:`note_sloping_jumps` adds the note on a jump located on a steep floor.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import sys
+import warnings
+
+import numpy as np
+import pydantic
+
+from .errors import GVFlowWarning, InvalidInputError
+from .friction import Manning
+
+#: Longest reach accepted [m]: ten thousand kilometres, longer than the longest river
+#: (about 6,700 km, from memory).
+MAX_REACH_LENGTH_M = 1.0e7
+#: Shortest segment accepted, as a fraction of the reach length: positions carry about 16 significant
+#: digits, and a segment must span many of their last units to hold evenly spaced stations.
+MIN_SEGMENT_FRACTION = 1.0e-9
+#: Deepest critical or normal depth accepted [m] (ten kilometres: deeper than any channel or sea).
+MAX_DEPTH_M = 1.0e4
+#: Shallowest critical depth accepted [m]: far thinner than a molecule of water (about 3e-10 m), and
+#: still far above the floating-point floor. Not a physical bound on useful results (nothing that thin
+#: is open-channel flow) but the bound of what is computed: solvers probing small discharges (the pool
+#: discharge search) pass through depths of 1e-10 m.
+MIN_DEPTH_M = 1.0e-15
+
+#: Critical slopes accepted (the friction slope at critical depth). Real channels lie within about
+#: 1e-5 (very smooth and deep) to 1 (very rough and shallow); outside 1e-10-1e3 the roughness is far
+#: beyond any surface (Manning's n of 1e-4 at a critical depth of 10 km gives 4e-9) and the friction
+#: terms of the marchers lose their meaning.
+CRITICAL_SLOPE_RANGE = (1.0e-10, 1.0e3)
+
+#: Usual range of Manning's n [s/m^(1/3)]: from smooth lined channels (glass, finished metal) to
+#: channels dense with brush and trees (Chow 1959, table 5-6, from memory).
+MANNING_N_USUAL = (0.008, 0.20)
+#: Bed slope above which the small-slope assumptions (depth measured vertically, hydrostatic pressure,
+#: sin θ ≈ tan θ) start to err by more than about half a per cent (cos θ = 0.995 at a slope of 0.1),
+#: and above which the weight of a jump's roller may no longer be neglected (FHWA 2006, HEC-14,
+#: *Hydraulic Design of Energy Dissipators for Culverts and Channels*, FHWA-NHI-06-086, ch. 6,
+#: eq. 6.7 and the text beside it: "may be neglected for slopes less than 10 percent").
+STEEP_SLOPE = 0.1
+#: A depth more than this many times the water-surface width looks like mixed units (common practice).
+DEPTH_TO_WIDTH_SUSPECT = 10.0
+
+_PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
+_PYDANTIC_DIR = os.path.dirname(os.path.abspath(pydantic.__file__))
+
+
+def warn(message: str) -> None:
+    """Issue a GVFlowWarning attributed to the first caller outside gvflow (and pydantic, which builds its
+    models)."""
+    frame, level = sys._getframe(0), 1
+    while frame is not None and os.path.abspath(frame.f_code.co_filename).startswith((_PACKAGE_DIR,
+                                                                                     _PYDANTIC_DIR)):
+        frame, level = frame.f_back, level + 1
+    warnings.warn(message, GVFlowWarning, stacklevel=level)
+
+
+@contextlib.contextmanager
+def arithmetic_guard():
+    """Turn an arithmetic failure of a solve into an InvalidInputError (a backstop behind
+    :func:`check_reach`: extreme numbers that pass its limits and still overflow the computation)."""
+    try:
+        yield
+    except (ZeroDivisionError, OverflowError, FloatingPointError) as exc:
+        raise InvalidInputError(
+            f"the reach's numbers lie beyond what the computation can carry ({type(exc).__name__}: {exc}); "
+            "check for extreme values (lengths, sizes, roughness, depths and their units)") from None
+
+
+def check_reach(reach) -> None:
+    """Refuse reaches no channel can hold (length, datum, end depths); the depths are checked, and
+    unusual input warned of, by :func:`check_segments` once the solver has built its per-segment
+    constants."""
+    units = reach.resolved_units
+    per_m = units.length_per_metre
+    L = units.length
+    segments = reach.segments
+    total = reach.length
+    if not total <= MAX_REACH_LENGTH_M * per_m:
+        raise InvalidInputError(
+            f"the reach is {total:.4g} {L} long, more than any channel ({MAX_REACH_LENGTH_M * per_m:.4g} {L}, ten "
+            "thousand kilometres): check the segment lengths and their unit")
+    top = abs(reach.datum) + sum(abs(s.slope) * s.length for s in segments)
+    if not top <= MAX_REACH_LENGTH_M * per_m:
+        raise InvalidInputError(
+            f"datum: bed elevations reach {top:.4g} {L}, beyond ten thousand kilometres from zero, where the "
+            "depths would lose their digits: give elevations from a local datum")
+    for k, s in enumerate(segments):
+        if s.length < MIN_SEGMENT_FRACTION * total:
+            raise InvalidInputError(
+                f"segments.{k}.length: {s.length:.4g} {L} is too short against the reach length {total:.4g} {L} "
+                f"(at least {MIN_SEGMENT_FRACTION:g} of it) for its stations to be told apart: merge this segment "
+                "into its neighbour or remove it")
+
+    _check_end_depths(reach, units, per_m)
+
+
+def check_segments(reach, segs, sf_c, coef=None) -> None:
+    """Refuse critical and normal depths and critical slopes beyond any channel, and warn of depths many
+    times the channel's width, from the per-segment constants the solver built (``segs``: one
+    SegmentBatch per segment; ``sf_c``: friction slope at critical depth per segment and scenario;
+    ``coef``: the roughness coefficients (n, K) of a sweep, or None)."""
+    units = reach.resolved_units
+    per_m = units.length_per_metre
+    for k, (s, batch) in enumerate(zip(reach.segments, segs, strict=True)):
+        _check_depths(k, s, batch, batch.discharge, units, per_m)
+        _check_critical_slope(k, s, np.asarray(sf_c[k], dtype=float))
+    _warn_unusual(reach.segments, coef)
+    _warn_mixed_units(segs, units.length, units.g)
+
+
+def _check_critical_slope(k, s, sf_c):
+    """The friction slope at critical depth (the critical slope) must lie in :data:`CRITICAL_SLOPE_RANGE`."""
+    lo, hi = CRITICAL_SLOPE_RANGE
+    bad = ~((sf_c >= lo) & (sf_c <= hi))
+    if bad.any():
+        value = float(sf_c[bad][0])
+        what = "smoother" if not value >= lo else "rougher"
+        raise InvalidInputError(
+            f"segments.{k}.roughness: {s.roughness!r} gives a critical slope (friction slope at critical depth) "
+            f"of {value:.4g}, outside {lo:g}-{hi:g}: {what} than any real channel; check the value, its law "
+            "(Manning's n, Chezy's C, Darcy-Weisbach's roughness height) and its unit")
+
+
+def _check_end_depths(reach, units, per_m):
+    """A fixed depth or water level at an end must stand less than :data:`MAX_DEPTH_M` above the bed."""
+    from .controls import FixedDepth, FixedStage, SluiceGate
+    from .structures.controls import Culvert
+
+    y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
+    L = units.length
+    last = len(reach.segments) - 1
+    ends = [("upstream", reach.upstream, (0.0, 0)), ("downstream", reach.downstream, (reach.length, last))]
+    ends += [(f"segments.{k}.gate", s.gate, None) for k, s in enumerate(reach.segments) if s.gate is not None]
+    for end, ctrl, where in ends:
+        if isinstance(ctrl, FixedDepth):
+            depth, field = ctrl.depth, f"{end}.depth"
+        elif isinstance(ctrl, FixedStage):
+            bed = float(reach.bed_elevation([where[0]], [where[1]])[0])
+            depth, field = ctrl.elevation - bed, f"{end}.elevation"
+        elif isinstance(ctrl, SluiceGate):
+            depth, field = ctrl.contraction * ctrl.opening, f"{end}.opening"
+        elif isinstance(ctrl, Culvert) and ctrl.tailwater is not None:
+            depth, field = max(ctrl.tailwater, y_min), f"{end}.tailwater"
+        else:
+            continue
+        if depth > y_max:
+            raise InvalidInputError(
+                f"{field}: the water would stand {depth:.4g} {L} deep, more than any channel holds ({y_max:.4g} {L}): "
+                "check the value, its unit and the datum")
+        if 0 < depth < y_min:
+            raise InvalidInputError(
+                f"{field}: the water would stand {depth:.4g} {L} deep, thinner than {y_min:.4g} {L}, not "
+                "open-channel flow: check the value and its unit")
+
+
+def _check_depths(k, s, batch, q_ext, units, per_m):
+    L = units.length
+    y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
+    yc = batch.yc
+    big = ~(yc <= y_max)
+    if big.any():
+        i = int(np.flatnonzero(big)[0])
+        raise InvalidInputError(
+            f"discharge: {q_ext[i]:.4g} {units.discharge} needs a critical depth of {yc[i]:.4g} {L} in segment {k}'s "
+            f"section ({s.section!r}), more than any channel holds ({y_max:.4g} {L}): check the discharge, the "
+            "section's dimensions and their units")
+    small = ~(yc >= y_min)
+    if small.any():
+        i = int(np.flatnonzero(small)[0])
+        raise InvalidInputError(
+            f"discharge: {q_ext[i]:.4g} {units.discharge} flows at a critical depth of {yc[i]:.4g} {L} in segment "
+            f"{k}'s section ({s.section!r}), thinner than {y_min:.4g} {L} (a molecule of water is about 3e-10 m "
+            "across), not open-channel flow: check "
+            "the discharge, the section's dimensions and their units")
+    if s.slope > 0:
+        yn = batch.yn
+        deep = np.isfinite(yn) & (yn > y_max)
+        if deep.any():
+            i = int(np.flatnonzero(deep)[0])
+            raise InvalidInputError(
+                f"segments.{k}: the normal depth would be {yn[i]:.4g} {L}, more than any channel holds "
+                f"({y_max:.4g} {L}): the bed slope {s.slope:g} is too small or the roughness too large for "
+                f"{q_ext[i]:.4g} {units.discharge}; check them and their units, or give slope=0 for a horizontal bed")
+
+
+def _warn_unusual(segments, coef):
+    # Manning's n is the same number in every unit system (the factor k absorbs the units), so it is
+    # compared as given.
+    lo, hi = MANNING_N_USUAL
+    odd_n = []
+    for k, s in enumerate(segments):
+        if not isinstance(s.roughness, Manning):
+            continue
+        ns = np.asarray([s.roughness.n]) if coef is None else coef[:, k]
+        n_lo, n_hi = float(ns.min()), float(ns.max())
+        if n_lo < lo or n_hi > hi:
+            odd_n.append(f"segment {k}: n = {n_lo:g}" if n_lo == n_hi else f"segment {k}: n {n_lo:g}-{n_hi:g}")
+    if odd_n:
+        warn(f"roughness: Manning's n outside its usual range {lo:g}-{hi:g} (Chow 1959, table 5-6) in "
+             f"{', '.join(odd_n)}: check the value and that it is Manning's n (not Chezy's C or a "
+             "Strickler coefficient)")
+    steep = [f"segment {k}: {s.slope:g}" for k, s in enumerate(segments) if abs(s.slope) > STEEP_SLOPE]
+    if steep:
+        warn(f"slope: bed slope above {STEEP_SLOPE:g} ({', '.join(steep)}), where the small-slope assumptions "
+             "(depth measured vertically, hydrostatic pressure) start to err; depths are vertical depths and "
+             "a jump's sequent depth is taken from the level-floor momentum balance")
+
+
+def _warn_mixed_units(segs, L, g) -> None:
+    """Warn where a segment's normal or critical depth is many times its water-surface width (open
+    sections only: a conduit's water surface narrows to nothing at its crown)."""
+    odd = []
+    for k, seg in enumerate(segs):
+        if seg.section.closed:
+            continue
+        y = np.concatenate([seg.yn, seg.yc])
+        y = y[np.isfinite(y) & (y > 0)]
+        if not y.size:
+            continue
+        deepest = float(y.max())
+        # Cheap pass first: in an open section whose width never narrows upwards the hydraulic depth
+        # A/T is at most the depth, so at critical depth (alpha Q² T = g A³) T >= Q / sqrt(g yc³), and
+        # the width only grows above it. Depths below ten times that bound cannot be suspect.
+        bound = seg.discharge / np.sqrt(g * seg.yc ** 3)
+        if deepest < DEPTH_TO_WIDTH_SUSPECT * float(np.min(bound)):
+            continue
+        try:
+            top = float(seg.section.top_width(deepest))
+        except ValueError:
+            continue
+        if np.isfinite(top) and top > 0 and deepest > DEPTH_TO_WIDTH_SUSPECT * top:
+            name = "normal" if deepest in seg.yn else "critical"
+            odd.append(f"segment {k}: {name} depth {deepest:.4g} {L} in a channel {top:.4g} {L} wide")
+    if odd:
+        warn(f"section: depths many times the channel's width ({'; '.join(odd)}): this often means mixed "
+             "units (a width in feet with a discharge in m³/s, say); check the section, the discharge and units")
+
+
+def note_sloping_jumps(sol, reach) -> None:
+    """Note every jump located on a floor sloping down more steeply than :data:`STEEP_SLOPE`.
+
+    The jump location solver balances the level-floor specific forces. On a sloping floor the weight
+    of the water in the roller has a component along the bed that the balance leaves out, so the
+    subcritical sequent depth needed to hold a jump there is larger than the one reported (FHWA 2006,
+    HEC-14, ch. 6, eq. 6.7; the USBR model tests of jumps on sloping aprons, Peterka 1958, Engineering
+    Monograph 25, show the same trend).
+    """
+    L = reach.resolved_units.length
+    for s, x, k in zip(sol.jump_scenario, sol.jump_x, sol.jump_segment, strict=True):
+        slope = reach.segments[int(k)].slope
+        if slope > STEEP_SLOPE:
+            sol.notes[int(s)].append((float(x), "jump on a sloping floor",
+                                      f"the jump at x = {x:.2f} {L} stands on segment {int(k)}, bed slope {slope:g}: "
+                                      "it was located with the level-floor momentum balance, which leaves out the "
+                                      "weight of the roller along the slope and so underestimates the sequent "
+                                      "depth needed to hold the jump there (FHWA HEC-14, 2006, ch. 6, eq. 6.7: "
+                                      f"the weight may be neglected only below a slope of {STEEP_SLOPE:g}); "
+                                      "treat its location as approximate"))
