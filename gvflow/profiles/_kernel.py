@@ -525,6 +525,7 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
     sgn = 1.0 if d > 0 else -1.0
     first = True
     legs = 0
+    hint = 0.0  # relaxation rate met at the far end of a rejected step
     for _ in range(4 * MAX_SUBSTEPS):
         rest = total - done
         if rest <= 1e-12 * total:
@@ -542,7 +543,7 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
                 done += dist
                 first = False
                 continue
-        rate = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y)
+        rate = max(relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y), hint)
         h = rest
         how = avg
         if rate * rest > 0.5:
@@ -554,6 +555,16 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
                 how = AVG_END
         y2, code = step(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, how, k, g, nu,
                         ymax, tol, guess if first and h >= rest else y)
+        if code == 1 and how != AVG_END:
+            # a trapezoidal step long against the relaxation length near normal depth can overshoot
+            # past critical depth: the damped step, monotone, tells whether the profile stiffens there
+            y_be, code_be = step(kind, p0, p1, p2, law, coef, q, s0, y, sgn * h, yc, branch, alpha, ce, AVG_END,
+                                 k, g, nu, ymax, tol, y)
+            if code_be == 0:
+                rate2 = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y_be)
+                if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
+                    hint = rate2
+                    continue
         if code == 1:
             # near critical depth a long step can miss a root the profile really has (the discrete
             # energy equation loses it before the profile does): retry with sub-steps first
@@ -564,6 +575,14 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
                 dc = critical_distance(kind, p0, p1, p2, law, coef, q, s0, y, yc, alpha, avg, k, g, nu)
                 return yc, 1, done + min(max(dc * sgn, 0.0), h)
             return y2, code, done
+        if how != AVG_END:
+            # the profile may stiffen along the step (deep flow relaxing fast near normal depth): a step
+            # long against the relaxation length at its far end is taken again, shorter
+            rate2 = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y2)
+            if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
+                hint = rate2
+                continue
+        hint = 0.0
         y = y2
         done += h
         first = False
