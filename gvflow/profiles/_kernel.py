@@ -382,16 +382,15 @@ def critical_distance(kind, p0, p1, p2, law, coef, q, s0, y1, yc, alpha, avg, k,
 
 
 #: relative band about critical depth inside which a march interval is integrated in the x(y) form
-CRITICAL_BAND = 0.25
+CRITICAL_BAND = 0.15
 #: most sub-steps one station interval may be split into where the profile is stiff
 MAX_SUBSTEPS = 256
 
-# Gauss-Legendre nodes and weights on [-1, 1], 8 points (Abramowitz & Stegun 1964, table 25.4)
-_GL_X = np.array([-0.9602898564975363, -0.7966664774136267, -0.5255324099163290, -0.1834346424956498,
-                  0.1834346424956498, 0.5255324099163290, 0.7966664774136267, 0.9602898564975363])
-_GL_W = np.array([0.1012285362903763, 0.2223810344533745, 0.3137066458778873, 0.3626837833783620,
-                  0.3626837833783620, 0.3137066458778873, 0.2223810344533745, 0.1012285362903763])
-
+# Gauss-Legendre nodes and weights on [-1, 1], 6 points (Abramowitz & Stegun 1964, table 25.4)
+_GL_X = np.array([-0.9324695142031521, -0.6612093864662645, -0.2386191860831969,
+                  0.2386191860831969, 0.6612093864662645, 0.9324695142031521])
+_GL_W = np.array([0.1713244923791704, 0.3607615730481386, 0.4679139345726910,
+                  0.4679139345726910, 0.3607615730481386, 0.1713244923791704])
 
 @njit(cache=True)
 def gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, y):
@@ -423,24 +422,25 @@ def _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y):
 
 @njit(cache=True)
 def x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, ya, yb, panels):
-    """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by 8-point Gauss-Legendre
-    quadrature on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx is
+    """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by Gauss-Legendre
+    quadrature (6 points) on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx is
     infinite)."""
     w = (yb - ya) / panels
     tot = 0.0
     for j in range(panels):
         h = 0.5 * w
         c = ya + (j + 0.5) * w
-        for i in range(8):
+        for i in range(6):
             tot += _GL_W[i] * _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, c + h * _GL_X[i]) * h
     return tot
 
 
 @njit(cache=True)
-def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, k, g, nu, ymax):
+def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, k, g, nu, ymax, guess):
     """March near critical depth in the x(y) form, where the depth changes as the square root of distance.
 
-    From depth y1 (within :data:`CRITICAL_BAND` of yc) over signed distance d. Returns (y, dist, code):
+    From depth y1 (within :data:`CRITICAL_BAND` of yc) over signed distance d, ``guess`` a first guess of
+    the depth at its end (ignored unless between y1 and the leg's limit). Returns (y, dist, code):
     code 0, the depth y after the full distance; code 1, the profile reaches critical depth after ``dist``;
     code 5, the leg ended after ``dist`` < |d| at depth y, where the x(y) form stops being the better one
     (the standard step takes over); code 6, the x(y) form does not apply (normal depth too close).
@@ -473,13 +473,11 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
         return y1, 0.0, 6
     toward = toward and yb == yc
     sxy = sgn_d * sdy
-    # Gauss panels no longer than the distance from the leg's far end to the pole of dx/dy at normal depth
-    # (by the tangent of S0 - Sf there, an underestimate), so each is integrated to round-off
+    # Gauss panels no longer than half the distance from the leg's far end to the pole of dx/dy at normal
+    # depth (estimated by the chord of S0 - Sf over the leg): 6-point Gauss-Legendre is then good to ~1e-12
     nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
-    a, p, t, m, dp = geom(kind, p0, p1, p2, yb)
-    reach = abs(nb) / max((s0 - nb) * abs(dlnsf_dy(law, a, p, t, dp)), 1e-300)
-    panels = int(min(64.0, math.ceil(abs(yb - y1) / max(reach, 1e-300))))
-    panels = max(panels, 1)
+    reach = max(abs(yb - y1) * abs(nb) / max(abs(num0 - nb), 1e-300), 1e-300)
+    panels = max(1, int(min(32.0, math.ceil(2.0 * abs(yb - y1) / reach))))
     xb = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, yb, panels)
     if not (xb * sgn_d >= 0.0) or not math.isfinite(xb):
         return y1, 0.0, 6
@@ -488,9 +486,17 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
     # solve x_of_y(y1, y) = d for y between y1 and yb: safeguarded Newton (x(y) is monotone there)
     lo, hi = y1, yb  # x(lo) - d has the sign opposite to x(hi) - d
     flo = -d
-    y = y1 + (yb - y1) * (d / xb if toward else math.sqrt(d / xb))
+    # first guess from x(y) ~ s1 u + c u² (u = y - y1): the slope s1 = dx/dy at y1 and the leg's end; exact
+    # for the square-root shape at critical depth (s1 = 0)
+    ub = yb - y1
+    s1 = _dxdy(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, probe)
+    c = (xb - s1 * ub) / (ub * ub)
+    disc = s1 * s1 + 4.0 * c * d
+    u = 2.0 * d / (s1 + math.copysign(math.sqrt(disc), s1 if s1 != 0.0 else ub * c)) if disc >= 0.0 else 0.0
+    y = y1 + u if 0.0 < u / ub < 1.0 else y1 + ub * (d / xb)
     for _ in range(100):
-        f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y, panels) - d
+        npan = max(1, int(min(32.0, math.ceil(2.0 * abs(y - y1) / reach))))
+        f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y, npan) - d
         if abs(f) <= 1e-13 * abs(d):
             return y, abs(d), 0
         if (f > 0.0) == (flo > 0.0):
@@ -501,7 +507,8 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
         yn = y - f / df if df != 0.0 and math.isfinite(df) else 0.5 * (lo + hi)
         if not (min(lo, hi) < yn < max(lo, hi)):
             yn = 0.5 * (lo + hi)
-        if abs(yn - y) <= 1e-14 * yc:
+        # Newton converges quadratically here: after a correction below 1e-9 yc the next would be ~1e-18 yc
+        if abs(yn - y) <= 1e-9 * yc:
             return yn, abs(d), 0
         y = yn
     return y, abs(d), 0
@@ -526,6 +533,7 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
     first = True
     legs = 0
     hint = 0.0  # relaxation rate met at the far end of a rejected step
+    rate_y = -1.0  # relaxation rate at y, once known
     for _ in range(4 * MAX_SUBSTEPS):
         rest = total - done
         if rest <= 1e-12 * total:
@@ -533,17 +541,20 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
         if legs < 60 and abs(y - yc) <= CRITICAL_BAND * yc:
             legs += 1
             yl, dist, code = critical_leg(kind, p0, p1, p2, law, coef, q, s0, y, sgn * rest, yc, branch, alpha, ce,
-                                          k, g, nu, ymax)
+                                          k, g, nu, ymax, guess if first else -1.0)
             if code == 0:
                 return yl, 0, total
             if code == 1:
                 return yc, 1, done + dist
             if code == 5:
                 y = yl
+                rate_y = -1.0
                 done += dist
                 first = False
                 continue
-        rate = max(relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y), hint)
+        if not rate_y > 0.0:
+            rate_y = relaxation_rate(kind, p0, p1, p2, law, coef, q, k, g, nu, alpha, y)
+        rate = max(rate_y, hint)
         h = rest
         how = avg
         if rate * rest > 0.5:
@@ -582,6 +593,9 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
             if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
                 hint = rate2
                 continue
+            rate_y = rate2  # the next sub-step starts at y2
+        else:
+            rate_y = -1.0
         hint = 0.0
         y = y2
         done += h
