@@ -322,11 +322,11 @@ def check_profile(reach, p):
         assert abs(m1 - m2) <= 1e-6 * m2 or round(jump.x, 6) in unbalanced, (jump, m1, m2)
 
 
-def run_generated(n_examples):
+def run_generated(n_examples, derandomize=False):
     """Solve ``n_examples`` generated reaches; check each solved one; return (tried, solved, compared)."""
     stats = {"tried": 0, "solved": 0, "compared": 0}
 
-    @settings(max_examples=n_examples, deadline=None, database=None,
+    @settings(max_examples=n_examples, deadline=None, database=None, derandomize=derandomize,
               suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])
     @given(case=reaches)
     def check(case):
@@ -359,7 +359,7 @@ def run_generated(n_examples):
 
 
 def test_generated_reaches_quick():
-    tried, solved, compared = run_generated(40)
+    tried, solved, compared = run_generated(40, derandomize=True)
     assert tried >= 20 and solved >= 0.8 * tried
 
 
@@ -368,6 +368,7 @@ def test_generated_reaches_thousands():
     """At least 3000 generated reaches (every section, slope kind, control, gate; 5 to 60 stations a
     segment; a quarter also by ivp): at least 80 % solve, every solved one passes the checks."""
     tried, solved, compared = run_generated(3000)
+    print(f"generated reaches: {tried} tried, {solved} solved, {compared} compared with ivp")
     assert tried >= 2500
     assert solved >= 0.8 * tried, (tried, solved)
     assert compared >= 100
