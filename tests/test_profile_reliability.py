@@ -260,12 +260,12 @@ def test_ivp_gives_up_with_convergence_error_when_its_budget_is_spent(monkeypatc
 
 def test_ivp_right_hand_side_at_a_conduits_crown_is_finite():
     """US units: circular D = 0.984 ft, S0 = 0.059, n = 0.0448, Q = 0.98 cfs, alpha 1.19, uniform flow
-    downstream; the GVF right-hand side at and above the crown stays finite, and ivp agrees with the
-    standard step."""
+    downstream; the GVF right-hand side at and above the crown, and at or below the invert, stays finite
+    (the compiled geometry divides 0/0 for an empty circle), and ivp agrees with the standard step."""
     sec = gv.Circular(diameter=0.984)
     seg = gv.profiles.SegmentBatch.build(sec, 0.059, 0.0448, 0.98, units="US", alpha=1.19)
     prob = ivp_module._Problem(seg, 0)
-    for y in (0.984, 0.984 * (1 - 1e-15), 1.5):
+    for y in (0.984, 0.984 * (1 - 1e-15), 1.5, 0.0, -0.1):  # (an explicit stage can overshoot either way)
         assert np.all(np.isfinite(prob.dydx(0.0, np.array([y])))) and np.isfinite(prob.dxdy(y, 0.0)[0])
     reach = gv.Reach(segments=[gv.Segment(length=100.0, slope=0.059, section=sec, roughness=0.0448)],
                      discharge=0.98, units="US", alpha=1.19, downstream=gv.UniformFlow())
