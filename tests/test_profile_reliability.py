@@ -372,3 +372,32 @@ def test_generated_reaches_thousands():
     assert tried >= 2500
     assert solved >= 0.8 * tried, (tried, solved)
     assert compared >= 100
+
+
+# ----------------------------------------------------------------------------- 4. jumps
+def _jump_reach():
+    """A sluice-gate jet on a mild rectangle held up by a high tailwater: an M3 then a jump to M1."""
+    return gv.Reach(segments=[gv.Segment(length=300.0, slope=0.001, section=gv.Rectangular(width=3.0),
+                                         roughness=0.015)], discharge=5.0, upstream=gv.SluiceGate(opening=0.25),
+                    downstream=gv.FixedDepth(1.6))
+
+
+class _OffBalance(gv.profiles.StandardStep):
+    """A marcher whose jump search returns an upstream depth 10 % shallow: forces visibly unbalanced."""
+
+    def locate_jumps(self, seg, y_sup, x_lo, y_sub, x_hi):
+        x, y1, y2 = super().locate_jumps(seg, y_sup, x_lo, y_sub, x_hi)
+        return x, 0.9 * y1, y2
+
+
+def test_jumps_balance_their_specific_forces_or_say_they_do_not():
+    reach = _jump_reach()
+    sec = reach.segments[0].section
+    p = reach.solve()
+    (jump,) = p.jumps
+    m1, m2 = (gv.specific_force(sec, 5.0, y) for y in (jump.upstream_depth, jump.downstream_depth))
+    assert abs(m1 - m2) <= 1e-10 * m2  # momentum balance, Chow 1959 eq. 3-20
+    assert not [c for c in p.controls if c.kind == "unbalanced jump"]
+    q = reach.solve(method=_OffBalance)
+    (note,) = [c for c in q.controls if c.kind == "unbalanced jump"]
+    assert note.x == pytest.approx(q.jumps[0].x) and "differ by" in note.text
