@@ -436,11 +436,10 @@ def x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, ya, yb,
 
 
 @njit(cache=True)
-def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, k, g, nu, ymax, guess):
+def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, k, g, nu, ymax):
     """March near critical depth in the x(y) form, where the depth changes as the square root of distance.
 
-    From depth y1 (within :data:`CRITICAL_BAND` of yc) over signed distance d, ``guess`` a first guess of
-    the depth at its end (ignored unless between y1 and the leg's limit). Returns (y, dist, code):
+    From depth y1 (within :data:`CRITICAL_BAND` of yc) over signed distance d. Returns (y, dist, code):
     code 0, the depth y after the full distance; code 1, the profile reaches critical depth after ``dist``;
     code 5, the leg ended after ``dist`` < |d| at depth y, where the x(y) form stops being the better one
     (the standard step takes over); code 6, the x(y) form does not apply (normal depth too close).
@@ -476,8 +475,8 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
     # Gauss panels no longer than half the distance from the leg's far end to the pole of dx/dy at normal
     # depth (estimated by the chord of S0 - Sf over the leg): 6-point Gauss-Legendre is then good to ~1e-12
     nb, db = gvf_terms(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, yb)
-    reach = max(abs(yb - y1) * abs(nb) / max(abs(num0 - nb), 1e-300), 1e-300)
-    panels = max(1, int(min(32.0, math.ceil(2.0 * abs(yb - y1) / reach))))
+    room = max(abs(yb - y1) * abs(nb) / max(abs(num0 - nb), 1e-300), 1e-300)
+    panels = max(1, int(min(32.0, math.ceil(2.0 * abs(yb - y1) / room))))
     xb = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, yb, panels)
     if not (xb * sgn_d >= 0.0) or not math.isfinite(xb):
         return y1, 0.0, 6
@@ -495,7 +494,7 @@ def critical_leg(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, c
     u = 2.0 * d / (s1 + math.copysign(math.sqrt(disc), s1 if s1 != 0.0 else ub * c)) if disc >= 0.0 else 0.0
     y = y1 + u if 0.0 < u / ub < 1.0 else y1 + ub * (d / xb)
     for _ in range(100):
-        npan = max(1, int(min(32.0, math.ceil(2.0 * abs(y - y1) / reach))))
+        npan = max(1, int(min(32.0, math.ceil(2.0 * abs(y - y1) / room))))
         f = x_of_y(kind, p0, p1, p2, law, coef, q, s0, k, g, nu, alpha, ce, sxy, y1, y, npan) - d
         if abs(f) <= 1e-13 * abs(d):
             return y, abs(d), 0
@@ -541,7 +540,7 @@ def advance(kind, p0, p1, p2, law, coef, q, s0, y1, d, yc, branch, alpha, ce, av
         if legs < 60 and abs(y - yc) <= CRITICAL_BAND * yc:
             legs += 1
             yl, dist, code = critical_leg(kind, p0, p1, p2, law, coef, q, s0, y, sgn * rest, yc, branch, alpha, ce,
-                                          k, g, nu, ymax, guess if first else -1.0)
+                                          k, g, nu, ymax)
             if code == 0:
                 return yl, 0, total
             if code == 1:
