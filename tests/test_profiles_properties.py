@@ -106,7 +106,8 @@ def test_standard_step_energy_balance_closes(case, average, eddy):
     # the relaxation length (sub-steps); the balance then holds per sub-step. Those are found here from
     # the marcher's documented rule.
     yc = float(seg.yc[0])
-    rate = np.array([M.relaxation_rate(ch, fl, q, 1.0, y[j]) for j in range(k - 1)])
+    rate = np.array([M.relaxation_rate(ch, fl, q, 1.0, y[j]) for j in range(k)])
+    rate = np.maximum(rate[:-1], rate[1:])  # at either end of the interval
     whole = (np.abs(y[:-1] - yc) > M.CRITICAL_BAND * yc) & (rate * np.abs(d) <= 0.5)
     # the solver stops when its Newton update is below tol*y; the residual is that small too
     chk = single & whole

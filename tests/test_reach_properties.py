@@ -7,6 +7,7 @@ every jump inside a segment (the momentum balance, Chow 1959, *Open-Channel Hydr
 """
 
 import numpy as np
+import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -25,6 +26,9 @@ segments = st.builds(lambda L, s, sec, n: gv.Segment(length=L, slope=s, section=
                      st.floats(20.0, 400.0), slopes, sections, roughness)
 
 
+_OUTCOMES = {"tried": 0, "solved": 0}
+
+
 @settings(max_examples=80, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(segs=st.lists(segments, min_size=1, max_size=3), q=st.floats(0.5, 15.0),
        down=st.sampled_from(["none", "critical", "high", "normal"]), gate=st.booleans(),
@@ -37,10 +41,12 @@ def test_any_chain_solves_consistently_or_says_why(segs, q, down, gate, method):
                   "normal": gv.UniformFlow()}[down]
     upstream = gv.SluiceGate(opening=0.5 * gv.critical_depth(segs[0].section, q)) if gate else None
     reach = gv.Reach(segments=segs, discharge=q, upstream=upstream, downstream=downstream)
+    _OUTCOMES["tried"] += 1
     try:
         p = reach.solve(method=method, n_steps=40)
     except gv.GVFlowError:
         return  # an explained refusal (e.g. uniform flow asked for on an adverse bed)
+    _OUTCOMES["solved"] += 1
     assert np.all(np.isfinite(p.depth)) and np.all(p.depth > 0)
     assert p.x[0] == 0 and np.all(np.diff(p.x) >= 0) and abs(p.x[-1] - reach.length) < 1e-9
     yc = p.critical_depths[p.segment]
@@ -48,9 +54,22 @@ def test_any_chain_solves_consistently_or_says_why(segs, q, down, gate, method):
     assert np.all(p.depth[sub] >= yc[sub] * (1 - 1e-9))
     assert np.all(p.depth[sup] <= yc[sup] * (1 + 1e-9))
     for jump in p.jumps:
+        if jump.where != "in segment":
+            # at a junction the two depths stand in different sections: each on its own side of critical
+            k = jump.segment
+            assert jump.upstream_depth <= p.critical_depths[k - 1] * (1 + 1e-9)
+            assert jump.downstream_depth >= p.critical_depths[k] * (1 - 1e-9)
+            continue
         assert jump.upstream_depth < jump.downstream_depth
         if jump.where == "in segment":
             sec = reach.segments[jump.segment].section
             m1 = gv.specific_force(sec, q, jump.upstream_depth)
             m2 = gv.specific_force(sec, q, jump.downstream_depth)
             assert abs(m1 - m2) <= 1e-6 * m2
+
+
+def test_most_generated_chains_solve():
+    # runs after the property test above: refusals are allowed, but most generated reaches must solve
+    if _OUTCOMES["tried"] == 0:
+        pytest.skip("property test not run in this session")
+    assert _OUTCOMES["solved"] >= 0.6 * _OUTCOMES["tried"], _OUTCOMES

@@ -12,6 +12,20 @@ it does not, the profile has reached critical depth inside the step, and the
 distance to that point follows from the direct-step relation
 dx = (E1 - Ec)/(Sf_avg - S0).
 
+Two refinements keep the march reliable at any station spacing, and report
+only the requested stations:
+
+- Where an interval is long against the relaxation length 1/lambda,
+  lambda = |dSf/dy|/|1 - Fr²| (the stiffness of the GVF equation near normal
+  depth), it is taken in sub-steps of a quarter of that length, so a profile
+  approaches normal depth monotonically instead of swinging about it; past
+  256 sub-steps an interval is finished with damped (backward-Euler) steps.
+- Within 15 % of critical depth, where the depth changes as the square root
+  of distance, an interval is integrated in the x(y) form dx/dy =
+  (1 - Fr²)/(S0 - Sf), regular there, by Gauss-Legendre quadrature; the error
+  from a critical section (a brink, a critical entry) then falls at second
+  order with the spacing, like the rest of the march.
+
 Friction-slope averages: ``"conveyance"`` (default; Sf = (2Q/(K1 + K2))²),
 ``"arithmetic"``, ``"geometric"``, ``"harmonic"``. All are second-order
 accurate in the step length on a smooth profile.
