@@ -157,6 +157,10 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale):
         given["discharge"] = q
     if roughness is not None and roughness_scale is not None:
         raise InvalidInputError("give either roughness (coefficients) or roughness_scale (factors), not both")
+    if (roughness is not None or roughness_scale is not None) and any(s.roughness is None for s in segs):
+        raise InvalidInputError("roughness sweeps take segments with one roughness each; a Surveyed section's zone "
+                                "roughness is swept by sweeping reaches built with scaled sections "
+                                "(gv.solve_many) for now")
     if roughness is not None:
         c = positive_array(roughness, "roughness")
         if c.ndim > 2 or (c.ndim == 2 and c.shape[1] != nseg):

@@ -49,7 +49,8 @@ class Segment(FrozenModel):
     section : Section
         Cross-section (the same all along the segment).
     roughness : float, Manning, Chezy or DarcyWeisbach
-        Boundary resistance; a float is Manning's n.
+        Boundary resistance; a float is Manning's n. Leave it out for a
+        :class:`~gvflow.Surveyed` section, which carries its own roughness per zone.
     name : str, optional
         A label for reports.
     gate : SluiceGate, optional
@@ -67,19 +68,21 @@ class Segment(FrozenModel):
     length: float = Field(gt=0, allow_inf_nan=False)
     slope: float = Field(allow_inf_nan=False, gt=-1, lt=1)
     section: AnySection
-    roughness: AnyRoughness
+    roughness: AnyRoughness | None = None
     name: str | None = None
     gate: SluiceGate | None = None
     bank_height: float | None = Field(default=None, gt=0, allow_inf_nan=False)
 
-    @field_validator("section")
-    @classmethod
-    def _geometric_only(cls, v):
-        if isinstance(v, Surveyed):
-            raise ValueError("a surveyed section cannot be used in a reach yet: the reach solver takes geometric "
-                             "sections; use the uniform-flow functions (gv.normal_depth, gv.critical_depths, ...) "
-                             "with it")
-        return v
+    @model_validator(mode="after")
+    def _roughness_once(self):
+        if isinstance(self.section, Surveyed):
+            if self.roughness is not None:
+                raise InvalidInputError("roughness: a Surveyed section carries its own roughness per zone; leave the "
+                                        "segment's roughness out")
+        elif self.roughness is None:
+            raise InvalidInputError("roughness is required for a geometric section: give Manning's n (a float), "
+                                    "gv.Manning(n), gv.Chezy(C) or gv.DarcyWeisbach(ks)")
+        return self
 
     @field_validator("roughness", mode="before")
     @classmethod
@@ -91,8 +94,9 @@ class Segment(FrozenModel):
     def __repr__(self):
         label = f"{self.name!r}, " if self.name else ""
         gate = f", gate={self.gate!r}" if self.gate is not None else ""
-        return (f"Segment({label}length={self.length:g}, slope={self.slope:g}, section={self.section!r}, "
-                f"roughness={self.roughness!r}{gate})")
+        rough = f", roughness={self.roughness!r}" if self.roughness is not None else ""
+        return (f"Segment({label}length={self.length:g}, slope={self.slope:g}, section={self.section!r}"
+                f"{rough}{gate})")
 
 
 class Reach(FrozenModel):

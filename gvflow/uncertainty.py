@@ -143,6 +143,9 @@ def _roughness_specs(reach, roughness):
     segs = reach.segments
     if roughness is None:
         return None
+    if any(s.roughness is None for s in segs):
+        raise InvalidInputError("an uncertain roughness takes segments with one roughness each; a Surveyed "
+                                "section's zone roughness cannot be sampled yet")
     if isinstance(roughness, Uncertain):
         laws = {s.roughness.law for s in segs}
         if len(laws) > 1:

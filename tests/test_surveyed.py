@@ -191,3 +191,51 @@ def test_ineffective_area_conveys_nothing_until_the_water_rises_above_it():
     assert ponded.zone_count == 3
     with pytest.raises(gv.InvalidInputError, match="ineffective"):
         gv.Surveyed(**ground, ineffective=[gv.IneffectiveArea(left=5, right=-5, elevation=3.0)])
+
+
+def _reach(section, roughness):
+    return gv.Reach(segments=[gv.Segment(length=800.0, slope=0.0008, section=section, roughness=roughness),
+                              gv.Segment(length=120.0, slope=0.03, section=section, roughness=roughness),
+                              gv.Segment(length=300.0, slope=0.001, section=section, roughness=roughness)],
+                    discharge=12.0, downstream=gv.FixedDepth(2.6))
+
+
+def test_a_reach_of_points_solves_as_the_prismatic_reach():
+    # the same channel (exact equivalence): the mixed-regime solve, jump included, through the same solver
+    prismatic = _reach(gv.Trapezoidal(bottom_width=3.0, side_slope=1.5), 0.018).solve()
+    points = _reach(gv.Surveyed(offset=[-15, 0, 3, 18], elevation=[10, 0, 0, 10], roughness=0.018), None).solve()
+    np.testing.assert_allclose(points.depth, prismatic.depth, rtol=1e-9)
+    assert points.profile_types == prismatic.profile_types == ["M2", "S2", "S1", "M1"]
+    assert points.jumps[0].x == pytest.approx(prismatic.jumps[0].x, rel=1e-9)
+
+
+def test_backwater_through_a_compound_section_against_quadrature():
+    # M1 through a main channel with floodplains: the distance between two depths is the integral of
+    # dx/dy = (1 - Fc²)/(S0 - Sf) with the compound Froude number (alpha varying with depth), by scipy quad
+    from scipy.integrate import quad
+
+    q, s0 = 60.0, 0.001
+    reach = gv.Reach(segments=[gv.Segment(length=3000.0, slope=s0, section=COMPOUND)], discharge=q,
+                     downstream=gv.FixedDepth(3.2))
+
+    def dxdy(y):
+        return (1 - gv.froude_number(COMPOUND, q, y) ** 2) / (s0 - gv.friction_slope(COMPOUND, q, y))
+
+    ivp = reach.solve(method="ivp", n_steps=300)
+    step = reach.solve(n_steps=300)
+    assert ivp.profile_types == step.profile_types == ["M1"]
+    for p, tol in ((ivp, 1e-6), (step, 2e-4)):  # the standard step's O(dx²) truncation at 10 m stations
+        x = -quad(dxdy, 3.2, float(p.depth_at(1500.0)), epsabs=1e-10, epsrel=1e-12, limit=200)[0]
+        assert x == pytest.approx(1500.0, rel=tol)
+    np.testing.assert_allclose(step.depth, ivp.depth, atol=1e-4)
+
+
+def test_roughness_belongs_to_a_surveyed_segment():
+    with pytest.raises(gv.InvalidInputError, match="carries its own roughness"):
+        gv.Segment(length=10.0, slope=0.001, section=COMPOUND, roughness=0.03)
+    with pytest.raises(gv.InvalidInputError, match="roughness is required"):
+        gv.Segment(length=10.0, slope=0.001, section=gv.Rectangular(width=2.0))
+    reach = gv.Reach(segments=[gv.Segment(length=300.0, slope=0.001, section=COMPOUND)], discharge=40.0)
+    assert gv.Reach.model_validate_json(reach.model_dump_json()) == reach
+    with pytest.raises(gv.InvalidInputError, match="roughness sweeps"):
+        reach.sweep(roughness_scale=np.array([0.9, 1.1]))

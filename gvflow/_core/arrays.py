@@ -8,10 +8,8 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
-
 from ._jit import kernel
-from .flow import critical_depths, normal_depth, peak_conveyance, specific_energy, specific_force
+from .flow import critical_depth, critical_depths, normal_depth, peak_conveyance, specific_energy, specific_force
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
 from .resistance import _zone_k, colebrook, conveyance, froude_squared, velocity_coefficients
 
@@ -44,18 +42,8 @@ def normal_depth_many(ch, fl, q, s0, out, status):
 @kernel
 def critical_depth_many(ch, fl, q, alpha, out, status, count):
     """The critical depth of least specific energy for each discharge; ``count`` says how many there are."""
-    buf = np.empty(64)
     for j in range(q.size):
-        n, st = critical_depths(ch, fl, q[j], alpha, buf)
-        status[j] = st
-        count[j] = n
-        out[j] = buf[0] if n > 0 else math.nan
-        best = math.inf
-        for i in range(n):
-            e = specific_energy(ch, fl, q[j], buf[i], alpha)
-            if e < best:
-                best = e
-                out[j] = buf[i]
+        out[j], status[j], count[j] = critical_depth(ch, fl, q[j], alpha)
 
 
 @kernel

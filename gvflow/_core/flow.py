@@ -297,3 +297,27 @@ def normal_depth(ch, fl, q, s0):
             return yn, NOT_CONVERGED
         y = yn
     return y, NOT_CONVERGED
+
+
+@kernel
+def critical_depth(ch, fl, q, alpha):
+    """The critical depth of least specific energy: (depth, status, how many critical depths there are).
+
+    A geometric section has one (:func:`critical_depth_single`); a surveyed one is scanned for every
+    minimum of specific energy (:func:`critical_depths`) and the lowest-energy one is returned.
+    """
+    if ch.kind != SURVEYED:
+        y, status = critical_depth_single(ch, fl, q, alpha)
+        return y, status, 1
+    buf = np.empty(64)
+    n, status = critical_depths(ch, fl, q, alpha, buf)
+    if n == 0:
+        return math.nan, status, 0
+    best = 0
+    e_best = specific_energy(ch, fl, q, buf[0], alpha)
+    for i in range(1, n):
+        e = specific_energy(ch, fl, q, buf[i], alpha)
+        if e < e_best:
+            best = i
+            e_best = e
+    return buf[best], status, n

@@ -19,7 +19,7 @@ import numpy as np
 
 from ._jit import kernel
 from .codes import DARCY, SOLVED, SUB, SUPER  # noqa: F401
-from .flow import critical_depth_single, normal_depth, specific_energy, specific_force, velocity_head
+from .flow import critical_depth, critical_depth_single, normal_depth, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry
 from .records import Channel
 from .resistance import friction_slope, hydraulics, sf_average, slope_of
@@ -511,7 +511,7 @@ def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, 
     one did not converge."""
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
-        yc[i], status[i] = critical_depth_single(ch, fl, q[i], alpha)
+        yc[i], status[i], count = critical_depth(ch, fl, q[i], alpha)
         yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)
         if status_n[i] != SOLVED:
             yn[i] = math.nan
