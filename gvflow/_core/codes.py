@@ -25,6 +25,9 @@ AVG_ARITHMETIC = 0
 AVG_GEOMETRIC = 1
 AVG_HARMONIC = 2
 AVG_CONVEYANCE = 3
+#: the friction slope at the step's far end only (a backward-Euler step): first order, but it damps any
+#: stiffness, so the march uses it for sub-steps far longer than the relaxation length (never a user option)
+AVG_END = 4
 #: Public names of the friction-slope averages; "conveyance" is the default everywhere.
 AVERAGES = {"arithmetic": AVG_ARITHMETIC, "geometric": AVG_GEOMETRIC, "harmonic": AVG_HARMONIC,
             "conveyance": AVG_CONVEYANCE}

@@ -18,16 +18,11 @@ import math
 import numpy as np
 
 from ._jit import kernel
-from .codes import DARCY, SOLVED, SUB, SUPER  # noqa: F401
+from .codes import AVG_END, DARCY, SOLVED, SUB, SUPER  # noqa: F401
 from .flow import critical_depth, critical_depth_single, normal_depth, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry
 from .records import Channel
 from .resistance import friction_slope, hydraulics, sf_average, slope_of
-
-# the friction slope at the step's far end only (a backward-Euler step): first order, but it damps any
-# stiffness, so the march uses it for sub-steps far longer than the relaxation length (never a user option)
-AVG_END = 4
-
 
 
 @kernel

@@ -26,7 +26,7 @@ from __future__ import annotations
 import math
 
 from ._jit import kernel
-from .codes import AVERAGES, AVG_ARITHMETIC, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
+from .codes import AVERAGES, AVG_ARITHMETIC, AVG_END, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
 
 LAMINAR_LIMIT = 2000.0
@@ -159,7 +159,7 @@ def sf_average(avg, s1, s2):
     Arithmetic (s1 + s2)/2, geometric sqrt(s1 s2), harmonic 2 s1 s2/(s1 + s2), and
     average conveyance 4/(1/sqrt s1 + 1/sqrt s2)² (the friction slope of the mean
     conveyance); for any two positive slopes harmonic <= conveyance <= geometric
-    <= arithmetic.
+    <= arithmetic. The march's damped sub-steps use the far end's slope alone (``AVG_END``).
     """
     if avg == AVG_ARITHMETIC:
         return 0.5 * (s1 + s2), 0.5
@@ -168,6 +168,8 @@ def sf_average(avg, s1, s2):
         return m, 0.5 * m / s2
     if avg == AVG_HARMONIC:
         return 2.0 * s1 * s2 / (s1 + s2), 2.0 * s1 * s1 / ((s1 + s2) * (s1 + s2))
+    if avg == AVG_END:
+        return s2, 1.0
     a1 = 1.0 / math.sqrt(s1)
     a2 = 1.0 / math.sqrt(s2)
     den = a1 + a2
