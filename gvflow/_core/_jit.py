@@ -59,3 +59,14 @@ def kernel(fn):
     _drop_stale_cache()
 
     return njit(cache=True)(fn)
+
+
+def inline_kernel(fn):
+    """:func:`kernel` for the few small relations on the march's innermost path (geometry, conveyance):
+    numba inlines them where they are called, which saves a call and its array bookkeeping per use."""
+    if fn.__module__.startswith(PLAIN):
+        return fn
+    from numba import njit
+
+    _drop_stale_cache()
+    return njit(cache=True, inline="always")(fn)

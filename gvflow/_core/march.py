@@ -57,9 +57,10 @@ def step(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     profile reaches critical depth within the step); 2 the depth would exceed
     the crown of a closed conduit; 3 no convergence.
     """
-    hv1 = velocity_head(ch, fl, q, y1, alpha)
+    a1, t1, m1, k1, dlnk1, al1, be1, fr21 = hydraulics(ch, fl, q, y1, alpha)
+    hv1 = al1 * (q / a1) * (q / a1) / (2.0 * fl.g)
     e1 = y1 + hv1
-    sf1 = friction_slope(ch, fl, q, y1)
+    sf1 = slope_of(q, k1)
     # Fast path: Newton from the guess, accepted only if every iterate stays on
     # the branch (the residual is monotone there, so the root is the branch's).
     y = guess

@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import math
 
-from ._jit import kernel
+from ._jit import inline_kernel, kernel
 from .codes import AVERAGES, AVG_ARITHMETIC, AVG_END, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
 
@@ -75,7 +75,7 @@ def _exponents(law):
     return 1.5, 0.5
 
 
-@kernel
+@inline_kernel
 def hydraulics(ch, fl, q, y, alpha):
     """Everything a step of a profile needs at depth y, in one pass over the section.
 
