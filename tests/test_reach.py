@@ -439,3 +439,14 @@ def test_gate_errors():
                                       gate=gv.SluiceGate(opening=0.3))], discharge=Q)
     with pytest.raises(gv.ControlError, match="opening"):
         gated(1.1, opening=1.05).solve()
+
+
+@pytest.mark.parametrize("call, word", [
+    (lambda r: r.solve(n_step=10), "'n_step'"),
+    (lambda r: r.solve(method="ivp", rtoll=1e-6), "'rtoll'"),
+    (lambda r: r.sweep(discharge=np.array([8.0, 9.0]), n_step=10), "'n_step'"),
+])
+def test_a_mistyped_keyword_is_named_with_the_valid_ones(call, word):
+    reach = gv.demo_reach()
+    with pytest.raises(gv.InvalidInputError, match=f"unknown keyword {word}.*n_steps, max_step"):
+        call(reach)

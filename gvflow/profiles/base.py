@@ -15,6 +15,7 @@ a subclass itself.
 
 from __future__ import annotations
 
+import inspect
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -279,10 +280,19 @@ def get_marcher(method, **options) -> Marcher:
             raise InvalidInputError("pass options to the marcher's constructor, not with an instance")
         return method
     if isinstance(method, type) and issubclass(method, Marcher):
-        return method(**options)
-    try:
-        cls = MARCHERS[method]
-    except (KeyError, TypeError):
+        cls = method
+    else:
+        try:
+            cls = MARCHERS[method]
+        except (KeyError, TypeError):
+            raise InvalidInputError(
+                f"method must be one of {sorted(MARCHERS)} or a Marcher subclass; got {method!r}") from None
+    accepted = [name for name, p in inspect.signature(cls.__init__).parameters.items()
+                if name != "self" and p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY)]
+    unknown = sorted(set(options) - set(accepted))
+    if unknown:
         raise InvalidInputError(
-            f"method must be one of {sorted(MARCHERS)} or a Marcher subclass; got {method!r}") from None
+            f"unknown keyword {', '.join(map(repr, unknown))}: the solve keywords are n_steps, max_step and "
+            f"critical_tolerance, and method {getattr(cls, 'name', cls.__name__)!r} takes "
+            f"{', '.join(accepted) if accepted else 'no options'}")
     return cls(**options)
