@@ -319,8 +319,8 @@ def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
 
 
 @kernel
-def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
-    """Depth one station interval (signed length d) from depth y1 on ``branch``: (depth, code, dist).
+def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, rate1):
+    """Depth one station interval (signed length d) from depth y1 on ``branch``: (depth, code, dist, rate).
 
     Near critical depth (within :data:`CRITICAL_BAND`) the interval is integrated in the x(y) form
     (:func:`critical_leg`), so the square-root behaviour there costs no accuracy; elsewhere it is one
@@ -328,7 +328,9 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     1/:func:`relaxation_rate` where the interval is longer than that length, so the depth approaches
     normal depth monotonically at any station spacing; past :data:`MAX_SUBSTEPS` sub-steps they are
     damped end-slope (backward Euler) steps, monotone at any length. Codes as :func:`step`; with code 1,
-    ``dist`` is the distance from y1 at which the profile reaches critical depth.
+    ``dist`` is the distance from y1 at which the profile reaches critical depth. ``rate1`` is the
+    relaxation rate at y1 when the caller knows it (the previous interval's ``rate``), else -1; ``rate``
+    is the rate at the returned depth where known, else -1.
     """
     y = y1
     done = 0.0
@@ -337,18 +339,18 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     first = True
     legs = 0
     hint = 0.0  # relaxation rate met at the far end of a rejected step
-    rate_y = -1.0  # relaxation rate at y, once known
+    rate_y = rate1  # relaxation rate at y, once known
     for _ in range(4 * MAX_SUBSTEPS):
         rest = total - done
         if rest <= 1e-12 * total:
-            return y, 0, done
+            return y, 0, done, rate_y
         if legs < 60 and abs(y - yc) <= CRITICAL_BAND * yc:
             legs += 1
             yl, dist, code = critical_leg(ch, fl, q, s0, y, sgn * rest, yc, branch, alpha, ce, ymax)
             if code == 0:
-                return yl, 0, total
+                return yl, 0, total, -1.0
             if code == 1:
-                return yc, 1, done + dist
+                return yc, 1, done + dist, -1.0
             if code == 5:
                 y = yl
                 rate_y = -1.0
@@ -385,8 +387,8 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
         if code != 0:
             if code == 1:
                 dc = critical_distance(ch, fl, q, s0, y, yc, alpha, avg)
-                return yc, 1, done + min(max(dc * sgn, 0.0), h)
-            return y2, code, done
+                return yc, 1, done + min(max(dc * sgn, 0.0), h), -1.0
+            return y2, code, done, -1.0
         if how != AVG_END:
             # the profile may stiffen along the step (deep flow relaxing fast near normal depth): a step
             # long against the relaxation length at its far end is taken again, shorter
@@ -401,7 +403,7 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
         y = y2
         done += h
         first = False
-    return y, 3, done
+    return y, 3, done, -1.0
 
 
 @kernel
@@ -425,6 +427,7 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
     for s in range(ns):
         ch = scenario(cb, s)
         y = y0[s]
+        rate = -1.0  # relaxation rate at y, carried from one interval to the next
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
@@ -437,8 +440,8 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
             continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code, dist = advance(ch, fl, q[s], s0, y, d, yc[s], branch, alpha, ce, avg, ymax, tol,
-                                     extrapolate(x, out_y[s], j, even))
+            y2, code, dist, rate = advance(ch, fl, q[s], s0, y, d, yc[s], branch, alpha, ce, avg, ymax, tol,
+                                           extrapolate(x, out_y[s], j, even), rate)
             if code != 0:
                 out_n[s] = j
                 out_code[s] = code
@@ -562,8 +565,7 @@ def _branch_depth(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol):
     """Depth a signed distance d from (y1) along ``branch``; critical depth where the branch ends."""
     if d == 0.0:
         return y1
-    y, code, dist = advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax,
-                            tol, y1)
+    y, code, dist, rate = advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, y1, -1.0)
     return y if code == 0 else yc
 
 
