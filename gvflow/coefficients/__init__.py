@@ -524,7 +524,7 @@ _c("gate.contraction_range", "range of Cc of a vertical sluice gate", (0.598, 0.
 
 _ROUSE = ("Rouse, H. (1936). Discharge characteristics of the free overfall. Civil Engineering 6(4), 257-260 "
           "(horizontal or mild rectangular channel, subcritical approach)")
-_THANDA = ("Thandaveswara, B. S. Hydraulics, lecture notes, Indian Institute of Technology Madras, 'Brink depth': "
+_THANDA = ("Thandaveswara, B. S. Hydraulics, course notes, Indian Institute of Technology Madras, 'Brink depth': "
            "Rouse showed yb = 0.715 yc; yc/yb = 1.4, the critical section 3 to 4 yc upstream of the brink")
 _THANDA_AT = "https://www.scribd.com/document/400243144/15-2-pdf"
 _c("overfall.brink_ratio", "brink depth over critical depth", 0.715, f"{_ROUSE}, as given by {_THANDA}", READ,

@@ -7,7 +7,7 @@ hydrostatic. For a horizontal or mild rectangular channel Rouse (1936)
 measured a brink depth of about 0.715 times the critical depth, with the
 critical section roughly 3 to 4 critical depths upstream of the brink
 (Rouse, H. (1936). Discharge characteristics of the free overfall. *Civil
-Engineering* 6(4), 257-260; as given by Thandaveswara, IIT Madras lecture
+Engineering* 6(4), 257-260; as given by Thandaveswara, IIT Madras course
 notes on hydraulics, which add 0.705 for a confined nappe; stored address in
 :mod:`gvflow.coefficients`). The relation also serves
 as a rough discharge measurement (the end-depth method).
