@@ -378,7 +378,9 @@ def test_generated_reaches_quick():
 def test_generated_reaches_thousands():
     """At least 3000 generated reaches (every section, slope kind, control, gate; 5 to 60 stations a
     segment; a quarter also by ivp): at least 80 % solve, every solved one passes the checks."""
-    tried, solved, compared = run_generated(3000)
+    # derandomized, so a run is reproducible (CI and a developer see the same 3000 reaches); explore new ones
+    # by running run_generated(n) with derandomize=False
+    tried, solved, compared = run_generated(3000, derandomize=True)
     print(f"generated reaches: {tried} tried, {solved} solved, {compared} compared with ivp")
     assert tried >= 2500
     assert solved >= 0.8 * tried, (tried, solved)
