@@ -7,7 +7,6 @@ every jump inside a segment (the momentum balance, Chow 1959, *Open-Channel Hydr
 """
 
 import numpy as np
-import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -33,7 +32,7 @@ _OUTCOMES = {"tried": 0, "solved": 0}
 @given(segs=st.lists(segments, min_size=1, max_size=3), q=st.floats(0.5, 15.0),
        down=st.sampled_from(["none", "critical", "high", "normal"]), gate=st.booleans(),
        method=st.sampled_from(["standard_step", "ivp"]))
-def test_any_chain_solves_consistently_or_says_why(segs, q, down, gate, method):
+def _check_any_chain(segs, q, down, gate, method):
     last = segs[-1]
     yc_last = gv.critical_depth(last.section, q)
     high = min(2.5 * yc_last, 0.95 * last.section.max_depth)
@@ -68,8 +67,9 @@ def test_any_chain_solves_consistently_or_says_why(segs, q, down, gate, method):
             assert abs(m1 - m2) <= 1e-6 * m2
 
 
-def test_most_generated_chains_solve():
-    # runs after the property test above: refusals are allowed, but most generated reaches must solve
-    if _OUTCOMES["tried"] == 0:
-        pytest.skip("property test not run in this session")
-    assert _OUTCOMES["solved"] >= 0.6 * _OUTCOMES["tried"], _OUTCOMES
+def test_any_chain_solves_consistently_or_says_why():
+    # every generated chain either refuses with a gvflow error or passes the checks above; refusals are
+    # allowed, but most generated reaches must actually solve
+    _OUTCOMES.update(tried=0, solved=0)
+    _check_any_chain()
+    assert _OUTCOMES["tried"] > 0 and _OUTCOMES["solved"] >= 0.6 * _OUTCOMES["tried"], _OUTCOMES
