@@ -6,9 +6,22 @@
 1.51
 """
 
-from . import coefficients, structures
+from . import coefficients, controls, structures
 from .batch import SolveManyError, SweepResult, solve_many
-from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
+from .controls import (
+    CriticalFlow,
+    Culvert,
+    FixedDepth,
+    FixedStage,
+    FreeOverfall,
+    Pool,
+    PoolDischarge,
+    SluiceGate,
+    StageDischargeTable,
+    UniformFlow,
+    Weir,
+    solve_discharge_from_pool,
+)
 from .design import BestSection, best_hydraulic_section
 from .errors import (
     ControlError,
@@ -57,17 +70,7 @@ from .sections import (
     Triangular,
     WideRectangular,
 )
-from .structures import (
-    BackwaterExtent,
-    Culvert,
-    FreeOverfall,
-    Pool,
-    PoolDischarge,
-    StageDischargeTable,
-    Weir,
-    backwater_extent,
-    solve_discharge_from_pool,
-)
+from .structures import BackwaterExtent, backwater_extent
 from .survey import read_section_csv
 from .uncertainty import MonteCarloResult, Uncertain, monte_carlo
 from .uniform import (
@@ -105,8 +108,8 @@ __all__ = [
     "Profile", "ProfilePiece", "ControlNote", "Jump",
     "belanger_ratio", "jump_energy_loss_rectangular", "jump_length", "jump_type",
     # structures as controls
-    "structures", "Weir", "Culvert", "FreeOverfall", "StageDischargeTable", "Pool", "solve_discharge_from_pool",
-    "PoolDischarge", "backwater_extent", "BackwaterExtent",
+    "structures", "controls", "Weir", "Culvert", "FreeOverfall", "StageDischargeTable", "Pool",
+    "solve_discharge_from_pool", "PoolDischarge", "backwater_extent", "BackwaterExtent",
     # coefficients with their sources
     "coefficients",
     # reach files, tables, plots

@@ -147,8 +147,7 @@ def _check_critical_slope(k, s, sf_c):
 
 def _check_end_depths(reach, units, per_m):
     """A fixed depth or water level at an end must stand less than :data:`MAX_DEPTH_M` above the bed."""
-    from .controls import FixedDepth, FixedStage, SluiceGate
-    from .structures.controls import Culvert
+    from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
 
     y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
     L = units.length

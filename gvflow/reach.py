@@ -19,12 +19,22 @@ from pydantic import Field, field_validator, model_validator
 from ._models import FrozenModel
 from ._plausible import arithmetic_guard
 from ._validate import positive_float
-from .controls import CriticalFlow, FixedDepth, FixedStage, SluiceGate, UniformFlow
+from .controls import (
+    CriticalFlow,
+    Culvert,
+    FixedDepth,
+    FixedStage,
+    FreeOverfall,
+    Pool,
+    SluiceGate,
+    StageDischargeTable,
+    UniformFlow,
+    Weir,
+)
 from .errors import ControlError, InvalidInputError
 from .friction import AnyRoughness, as_roughness
 from .profiles import get_marcher
 from .sections import AnySection, Surveyed
-from .structures.controls import Culvert, FreeOverfall, Pool, StageDischargeTable, Weir
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 from .units import Units, resolve_units
 

@@ -95,7 +95,7 @@ USES = {
         "CRITICAL_SECTION_FACTOR": "overfall.critical_section_factor",
     },
     "gvflow.structures.backwater": {"EXTENT_TOLERANCE": "backwater.extent_tolerance"},
-    "gvflow.structures.controls": {
+    "gvflow.controls.structures": {
         "_NOTCH_ANGLES": ("weir.kindsvater_shen", "notch angle"),
         "EXIT_LOSS": "culvert.exit_loss",
         "BRINK_DEPTH_RATIO": "overfall.brink_ratio",
@@ -108,7 +108,7 @@ USES = {
     "gvflow.jumps": {"JUMP_TYPES": ("jump.types", "pairs"), "JUMP_LENGTH_CURVE": "jump.length_curve"},
     "gvflow.structures.pool": {},
     "gvflow.structures.rating": {},
-    "gvflow.controls": {},
+    "gvflow.controls.base": {},
     "gvflow.friction": {},
     "gvflow.structures._common": {},
 }
@@ -116,7 +116,7 @@ USES = {
 #: numeric module constants that are not empirical coefficients, with the reason
 NOT_COEFFICIENTS = {
     ("gvflow.structures.pool", "_TINY"): "numerical floor of a bracket",
-    ("gvflow.structures.controls", "CRITICAL_SLOPE_TOLERANCE"): "numerical tolerance of the slope class",
+    ("gvflow.controls.structures", "CRITICAL_SLOPE_TOLERANCE"): "numerical tolerance of the slope class",
     ("gvflow.structures._common", "_G_SI"): "standard gravity, a definition (9.80665 m/s²)",
     ("gvflow.structures._common", "_FEET_PER_METRE"): "definition of the foot (0.3048 m)",
     ("gvflow.friction", "MANNING_N_MIN"): "input guard, a hundredth of the smoothest surface (glass)",
@@ -211,7 +211,7 @@ ALLOWED_LITERALS = {
                                          1.02: "plot axis margin", 1.2: "plot line width", 5: "figure size",
                                          8: "figure size / font size", 25: "plot marker spacing"},
     "gvflow/jumps.py": {8.0: "Belanger's 8 F²"},
-    "gvflow/structures/controls.py": {0.1: "bracket step", 0.8: "bracket step", 15: "bracket iterations",
+    "gvflow/controls/structures.py": {0.1: "bracket step", 0.8: "bracket step", 15: "bracket iterations",
                                       40: "bracket iterations",
                                       90.0: "default notch angle", 100: "default steps / bounds",
                                       200: "iteration cap"},
@@ -221,7 +221,8 @@ ALLOWED_LITERALS = {
 @pytest.mark.parametrize("path", sorted(["gvflow/structures/weirs.py", "gvflow/structures/culverts.py",
                                          "gvflow/structures/gates.py", "gvflow/structures/overfall.py",
                                          "gvflow/structures/pool.py", "gvflow/structures/backwater.py",
-                                         "gvflow/structures/controls.py", "gvflow/jumps.py", "gvflow/controls.py",
+                                         "gvflow/controls/structures.py", "gvflow/jumps.py",
+                                         "gvflow/controls/base.py",
                                          "gvflow/structures/overtopping.py"]))
 def test_no_unregistered_coefficient_is_written_into_the_code(path):
     """A number in the code of a module that uses coefficients is either generic (a small integer, a
@@ -416,7 +417,7 @@ def test_an_end_control_that_does_not_govern_adds_no_coefficients():
 def test_every_control_reports_registered_coefficients():
     controls = [gv.SluiceGate(opening=0.3), gv.FreeOverfall(distance_factor=3.2), gv.Pool(level=3.0),
                 gv.Pool(level=3.0, entrance_loss=0.2)]
-    controls += [gv.Weir(crest_height=1.0, formula=f, tailwater_level=0.5) for f in gv.structures.WEIR_FORMULAS]
+    controls += [gv.Weir(crest_height=1.0, formula=f, tailwater_level=0.5) for f in gv.controls.WEIR_FORMULAS]
     controls += [gv.Weir(crest_height=1.0, end_contractions=2),
                  gv.Culvert(barrel=BoxBarrel(span=2.0, rise=1.5, length=25.0, slope=0.005, roughness=0.013),
                             tailwater=0.8, exit_loss=0.8)]

@@ -33,14 +33,12 @@ from pydantic import Field, ValidationError, model_validator
 
 from .. import coefficients
 from .._validate import invalid_input_from
-from ..controls import Control, EndState, rectangular_width
 from ..errors import ControlError, GVFlowError, InvalidInputError
-from ..uniform import CRITICAL_SLOPE_TOLERANCE
-from .culverts import EXIT_LOSS, AnyBarrel, DownstreamChannel, culvert_headwater
-from .overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE, CRITICAL_SECTION_FACTOR
-from .overtopping import RoadCrest
-from .rating import RatingTable
-from .weirs import (
+from ..structures.culverts import EXIT_LOSS, AnyBarrel, DownstreamChannel, culvert_headwater
+from ..structures.overfall import BRINK_DEPTH_RATIO, CRITICAL_SECTION_DISTANCE_RANGE, CRITICAL_SECTION_FACTOR
+from ..structures.overtopping import RoadCrest
+from ..structures.rating import RatingTable
+from ..structures.weirs import (
     BROAD_CRESTED_COEFFICIENT,
     BROAD_CRESTED_MODULAR_LIMIT,
     DEFAULT_MAX_SUBMERGENCE,
@@ -50,6 +48,8 @@ from .weirs import (
     v_notch_head,
     villemonte_factor,
 )
+from ..uniform import CRITICAL_SLOPE_TOLERANCE
+from .base import Control, EndState, rectangular_width
 
 __all__ = [
     "Weir",
