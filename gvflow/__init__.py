@@ -7,6 +7,7 @@
 """
 
 from . import coefficients, controls, structures
+from ._version import __version__ as __version__
 from .batch import SolveManyError, SweepResult, solve_many
 from .controls import (
     CriticalFlow,
@@ -99,8 +100,6 @@ from .verify import (
     profile_length,
     varied_flow_function,
 )
-
-__version__ = "0.1.0"
 
 __all__ = [
     # reach model and results

@@ -22,14 +22,12 @@ Two kinds of check, in one place:
 from __future__ import annotations
 
 import contextlib
-import os
-import sys
-import warnings
 
 import numpy as np
-import pydantic
 
-from .errors import GVFlowWarning, InvalidInputError
+from ._warn import warn
+from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
+from .errors import InvalidInputError
 from .friction import Manning
 
 #: Longest reach accepted [m]: ten thousand kilometres, longer than the longest river
@@ -63,20 +61,6 @@ MANNING_N_USUAL = (0.008, 0.20)
 STEEP_SLOPE = 0.1
 #: A depth more than this many times the water-surface width looks like mixed units (common practice).
 DEPTH_TO_WIDTH_SUSPECT = 10.0
-
-_PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
-_PYDANTIC_DIR = os.path.dirname(os.path.abspath(pydantic.__file__))
-
-
-def warn(message: str) -> None:
-    """Issue a GVFlowWarning attributed to the first caller outside gvflow (and pydantic, which builds its
-    models)."""
-    frame, level = sys._getframe(0), 1
-    while frame is not None and os.path.abspath(frame.f_code.co_filename).startswith((_PACKAGE_DIR,
-                                                                                     _PYDANTIC_DIR)):
-        frame, level = frame.f_back, level + 1
-    warnings.warn(message, GVFlowWarning, stacklevel=level)
-
 
 @contextlib.contextmanager
 def arithmetic_guard():
@@ -147,8 +131,6 @@ def _check_critical_slope(k, s, sf_c):
 
 def _check_end_depths(reach, units, per_m):
     """A fixed depth or water level at an end must stand less than :data:`MAX_DEPTH_M` above the bed."""
-    from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
-
     y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
     L = units.length
     last = len(reach.segments) - 1

@@ -40,6 +40,7 @@ from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .friction import check_manning_n
 from .jumps import Jump, _length_ratio, jump_type
 from .profiles import get_marcher
+from .reach import Reach, _check_steps, provide
 from .result import Profile
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
@@ -268,8 +269,6 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     >>> result.profile_types
     [['M1'], ['M1'], ['M1']]
     """
-    from .reach import _check_steps
-
     marcher = get_marcher(method, **options)
     n_steps, max_step = _check_steps(n_steps, max_step)
     q, coef = _scenario_inputs(reach, discharge, roughness, roughness_scale)
@@ -662,8 +661,6 @@ def solve_many(reaches, executor: Executor | None = None, method="standard_step"
     >>> [p.profile_types for p in gv.solve_many(reaches)]
     [['M1'], ['M1'], ['M1']]
     """
-    from .reach import Reach
-
     reaches = list(reaches)
     for i, r in enumerate(reaches):
         if not isinstance(r, Reach):
@@ -718,3 +715,6 @@ def solve_many(reaches, executor: Executor | None = None, method="standard_step"
         if failures:
             raise SolveManyError(results, failures)
     return results
+
+
+provide("sweep", sweep)  # Reach.sweep runs this without importing this layer

@@ -86,7 +86,7 @@ def _schema(args) -> int:
 
 
 def _parser() -> argparse.ArgumentParser:
-    from . import __version__
+    from ._version import __version__
 
     parser = argparse.ArgumentParser(
         prog="gvflow",

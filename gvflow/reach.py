@@ -11,6 +11,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from typing import Annotated, Any, Literal
 
 import numpy as np
@@ -18,6 +19,7 @@ from pydantic import Field, field_validator, model_validator
 
 from ._models import FrozenModel
 from ._plausible import arithmetic_guard
+from ._solver import solve_batch
 from ._validate import positive_float
 from .controls import (
     CriticalFlow,
@@ -38,7 +40,28 @@ from .sections import AnySection, Surveyed
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 from .units import Units, resolve_units
 
-__all__ = ["Segment", "Reach", "AnyControl"]
+__all__ = ["Segment", "Reach", "AnyControl", "provide"]
+
+#: Functions of the layers above that Reach's methods hand their work to: "profile" builds a Profile
+#: from a solved batch (registered by gvflow.result), "sweep" solves many scenarios (gvflow.batch).
+#: They register on import (gvflow/__init__ imports both), so this module imports nothing above its layer.
+_ABOVE: dict[str, Callable] = {}
+
+
+def provide(role: str, function: Callable) -> None:
+    """Register the function behind a Reach method: ``"profile"`` (``function(reach, solution, index,
+    method=...)`` returning a Profile) or ``"sweep"`` (:func:`gvflow.batch.sweep`)."""
+    if role not in ("profile", "sweep"):
+        raise ValueError(f"unknown role {role!r}")
+    _ABOVE[role] = function
+
+
+def _above(role: str) -> Callable:
+    try:
+        return _ABOVE[role]
+    except KeyError:
+        raise RuntimeError(f"gvflow.reach: no {role!r} function registered; import gvflow, whose __init__ loads "
+                           "gvflow.result and gvflow.batch") from None
 
 AnyControl = Annotated[
     FixedDepth | FixedStage | UniformFlow | CriticalFlow | SluiceGate | Weir | Culvert | FreeOverfall
@@ -218,15 +241,12 @@ class Reach(FrozenModel):
         -------
         Profile
         """
-        from ._solver import solve_batch
-        from .result import Profile
-
         marcher = get_marcher(method, **options)
         n_steps, max_step = _check_steps(n_steps, max_step)
         with arithmetic_guard():
             sol = solve_batch(self, marcher, np.array([self.discharge]), None, n_steps, max_step,
                               critical_tolerance)
-        return Profile.from_batch(self, sol, 0, method=getattr(marcher, "name", str(method)))
+        return _above("profile")(self, sol, 0, method=getattr(marcher, "name", str(method)))
 
     def sweep(self, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
               n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE,
@@ -236,9 +256,7 @@ class Reach(FrozenModel):
         See :func:`gvflow.batch.sweep` for the parameters; returns a
         :class:`~gvflow.batch.SweepResult`.
         """
-        from .batch import sweep
-
-        return sweep(self, discharge, roughness=roughness, roughness_scale=roughness_scale, method=method,
+        return _above("sweep")(self, discharge, roughness=roughness, roughness_scale=roughness_scale, method=method,
                      n_steps=n_steps, max_step=max_step, critical_tolerance=critical_tolerance,
                      progress=progress, chunk_size=chunk_size, **options)
 

@@ -12,6 +12,7 @@ from ._pieces import ProfilePiece, scenario_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, _length_ratio, jump_type
+from .reach import provide
 
 __all__ = ["Profile", "ProfilePiece", "ControlNote", "WATER_DENSITY", "water_unit_weight"]
 
@@ -405,3 +406,6 @@ class Profile:
         return (f"<Profile Q={self.discharge:g} {self.units.discharge}, {self.x.size} stations over "
                 f"{self.x[-1]:g} {self.units.length}, types {self.profile_types}, jumps: {jumps}; "
                 f"depth range {self.depth.min():.3f}-{self.depth.max():.3f} {self.units.length}>")
+
+
+provide("profile", Profile.from_batch)  # Reach.solve returns a Profile without importing this layer

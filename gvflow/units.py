@@ -13,6 +13,7 @@ from typing import Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
 from ._validate import invalid_input_from
+from ._warn import warn
 from .errors import InvalidInputError
 
 __all__ = ["Units", "SI", "US", "resolve_units", "UnitsLike"]
@@ -126,8 +127,6 @@ class Units(BaseModel):
         if abs(self.manning_k / k_expected - 1.0) > 0.03:
             odd.append(f"manning_k = {self.manning_k:g} (about {k_expected:.3f} in {self.length})")
         if odd:
-            from ._plausible import warn
-
             warn(f"Units: {' and '.join(odd)}: this does not fit the length unit {self.length!r}; check for "
                  "mixed units, or give the right length=")
         return self

@@ -23,7 +23,9 @@ from pydantic import Field
 
 from .. import coefficients
 from .._models import SingleValueModel
-from ..errors import ControlError
+from ..errors import ControlError, NoSolutionError
+from ..sections import Rectangular, WideRectangular
+from ..structures.gates import gate_free_flow_limit, gate_upstream_depth
 
 __all__ = [
     "EndState",
@@ -298,9 +300,6 @@ class SluiceGate(Control):
             When the discharge is too small for the opening: the water behind
             the gate would stand below its lip, so the gate does not control.
         """
-        from ..errors import NoSolutionError
-        from ..structures.gates import gate_upstream_depth
-
         width = rectangular_width(state.seg.section)
         if width is None:
             return None
@@ -316,8 +315,6 @@ class SluiceGate(Control):
         return np.broadcast_to(np.asarray(y1, dtype=float), q.shape).copy()
 
     def notes(self, state, depth):
-        from ..structures.gates import gate_free_flow_limit
-
         L = state.units.length
         width = rectangular_width(state.seg.section)
         if width is None:
@@ -357,8 +354,6 @@ class SluiceGate(Control):
 
 def rectangular_width(section) -> float | None:
     """Width of a rectangular section (vertical walls), None for any other shape."""
-    from ..sections import Rectangular, WideRectangular
-
     return float(section.width) if isinstance(section, (Rectangular, WideRectangular)) else None
 
 

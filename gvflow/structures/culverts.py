@@ -69,6 +69,7 @@ from ..uniform import normal_depth
 from ..units import UnitsLike, resolve_units
 from ._barrel_kernel import barrel_critical_depth, barrel_partial_geometry, run_march
 from ._common import FrozenModel
+from .overtopping import finish_culvert_result, performance_table, plot_performance
 
 __all__ = [
     "CulvertInlet",
@@ -648,15 +649,11 @@ class CulvertHeadwater:
         """Performance table, one row per discharge (pandas DataFrame): discharge, headwater, control,
         barrel and road discharge, tailwater, outlet depth and velocity, whether above the allowable
         headwater, and why the control governs."""
-        from .overtopping import performance_table
-
         return performance_table(self)
 
     def plot(self, ax=None):
         """Performance curve (headwater against discharge) marking the road crest and the allowable
         headwater; returns the matplotlib Axes (draws on ``ax`` when given)."""
-        from .overtopping import plot_performance
-
         return plot_performance(self, ax=ax, units=self.units if self.units is not None else "SI")
 
     def __repr__(self) -> str:
@@ -742,12 +739,11 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
         raise InvalidInputError(f"road must be a RoadCrest; got {road!r}")
     # with a road the barrels carry only part of the discharge: a headwater of many rises for the whole of it
     # is a trial on the way to the split, not a culvert far too small (checked on the barrels' share below)
-    from .overtopping import finish_culvert_result
-
     token = _REFUSE_FAR_TOO_SMALL.set(road is None)
     try:
         res = barrel_headwater(barrel, q_total, tw, vd, allowable, exit_loss, steps, u)
-        out = finish_culvert_result(barrel, res, road=road, tw=tw, vd=vd, exit_loss=exit_loss, steps=steps, units=u)
+        out = finish_culvert_result(barrel, res, road=road, tw=tw, vd=vd, exit_loss=exit_loss, steps=steps, units=u,
+                                    barrel_headwater=barrel_headwater)
     finally:
         _REFUSE_FAR_TOO_SMALL.reset(token)
     if road is not None:

@@ -64,6 +64,7 @@ from __future__ import annotations
 
 import math
 import warnings
+from dataclasses import replace
 from typing import Annotated, Literal
 
 import numpy as np
@@ -337,13 +338,11 @@ def _reasons(res, u):
     return out
 
 
-def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units):
+def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units, barrel_headwater):
     """Add barrel and road discharges, outlet depth and velocity and the reasons to a barrel-only result;
-    with a road, split the discharges that overtop it (module notes)."""
-    from dataclasses import replace
-
-    from .culverts import barrel_headwater
-
+    with a road, split the discharges that overtop it (module notes). ``barrel_headwater`` is
+    :func:`gvflow.structures.culverts.barrel_headwater` (the culverts module calls this one, so it passes
+    its function in rather than being imported back)."""
     u = resolve_units(units)
     q = np.atleast_1d(np.asarray(res.discharge, dtype=float))
     scalar = np.ndim(res.discharge) == 0
@@ -358,7 +357,8 @@ def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units)
         hw0 = np.atleast_1d(np.asarray(res.headwater, dtype=float))
         idx = np.flatnonzero(hw0 > road.low_point)
         if idx.size:
-            qb = _split(barrel, road, q[idx], hw0[idx], tw[idx], vd[idx], down[idx], exit_loss, steps, u, q, hw0)
+            qb = _split(barrel, road, q[idx], hw0[idx], tw[idx], vd[idx], down[idx], exit_loss, steps, u, q, hw0,
+                        barrel_headwater)
             # nudge Qb by at most a rounding so that Qb + (Q - Qb) gives Q back in floating point
             qi = q[idx]
             for cand in (np.nextafter(qb, np.inf), np.nextafter(qb, -np.inf)):
@@ -425,7 +425,7 @@ def _first_guess(road, q, down, grid_q, grid_hw, u):
     return x, np.maximum(np.where(np.isfinite(slope), slope, 1.0), 1.0)
 
 
-def _split(barrel, road, q, hw_all, tw, vd, down, exit_loss, steps, u, grid_q, grid_hw):
+def _split(barrel, road, q, hw_all, tw, vd, down, exit_loss, steps, u, grid_q, grid_hw, barrel_headwater):
     """Barrel discharge Qb with Qb + Q_road(HW(Qb)) = Q for each overtopping case.
 
     A first guess from the all-barrel rating, one Newton-like step with that
@@ -434,8 +434,6 @@ def _split(barrel, road, q, hw_all, tw, vd, down, exit_loss, steps, u, grid_q, g
     fast as Qb, so the root lies within |residual| of any point: that bounds
     the bracket search.
     """
-    from .culverts import barrel_headwater
-
     def resid(qb, sel):
         hw = np.asarray(barrel_headwater(barrel, qb, tw[sel], vd[sel], None, exit_loss, steps, u).headwater,
                         dtype=float).reshape(qb.shape)
