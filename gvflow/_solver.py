@@ -29,12 +29,14 @@ from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  
 from ._engine import core
 from ._near_critical import near_critical_notes
 from ._plausible import check_reach, check_segments, note_sloping_jumps
-from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
 from .errors import ControlError, ConvergenceError, NoSolutionError
 from .profiles.base import SegmentBatch
+from .profiles.base import depth_with_energy as _depth_with_energy
+from .profiles.base import subset as _subset
 from .profiles.classify import SLOPE_CLASSES
+from .structures.gates import gate_pool_depth
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 _M_TOL = 1e-12  # relative tolerance when comparing specific forces
@@ -106,11 +108,6 @@ def station_layout(reach, n_steps: int, max_step: float | None):
     return x, seg_ix, bed, bounds
 
 
-def _subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
-    """``seg.take(idx)`` for sorted distinct scenario indices ``idx``; ``seg`` itself when they are all of them."""
-    return seg if idx.size == seg.n else seg.take(idx)
-
-
 _SLOPE_CLASS_NAMES = np.array(SLOPE_CLASSES, dtype=object)  # indexed by SegmentBatch._checked's class codes
 
 
@@ -133,77 +130,13 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
     return _depth_with_energy(seg_to, seg_from.specific_energy(y), branch)
 
 
-def _depth_with_energy(seg: SegmentBatch, e, branch):
-    """Depth on ``branch`` whose specific energy in ``seg`` is ``e``; critical depth (flagged) where none is."""
-    yc = seg.yc
-    ok = e > seg.specific_energy(yc)
-    out = yc.copy()
-    if np.any(ok):
-        idx = np.flatnonzero(ok)
-        sub = _subset(seg, idx)
-        target = e[idx]
-
-        def fun(z):
-            return sub.specific_energy(z) - target
-
-        if branch == SUB:
-            lo = sub.yc
-            hi = np.maximum(target, sub.yc * 1.001)
-            if seg.section.closed:
-                top = seg.section.max_depth
-                hi = np.minimum(hi, top)
-                if np.any(fun(hi) < 0):
-                    raise NoSolutionError(
-                        f"the water entering {seg.section!r} from the segment below would stand above its crown: "
-                        "the conduit flows full there; pressure flow is outside gvflow's free-surface model")
-            out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
-        else:
-            lo = sub.yc * 1e-3
-            for _ in range(60):
-                need = fun(lo) < 0
-                if not np.any(need):
-                    break
-                lo = np.where(need, lo * 0.5, lo)
-            out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="depth across a junction")
-    return out, ~ok
-
-
 def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):
-    """Depth upstream of a gate between two segments, free or submerged by the water below it.
-
-    Energy is conserved from the upstream pool to the vena contracta, where the
-    jet (depth ``jet``, area A_j) runs under water standing at depth y_v; the
-    momentum balance from there to the subcritical depth ``tail`` downstream
-    gives y_v: A ȳ(y_v) + Q²/(g A_j) = M(tail). The gate flows free while the
-    tailwater's specific force does not exceed the jet's (y_v = jet); then the
-    jump stands clear of the gate (Henderson 1966, *Open Channel Flow*, §6.5;
-    from memory). Returns (upstream depth, submerged mask).
-    """
-    g, q = seg_dn.units.g, seg_dn.discharge
-    a_j = seg_dn.properties(jet)[0]
-    m_tail = np.where(np.isfinite(tail), seg_dn.specific_force(np.where(np.isfinite(tail), tail, jet)), -np.inf)
-    submerged = m_tail > seg_dn.specific_force(jet) * (1 + _M_TOL)
-    y_v = jet.copy()
-    if np.any(submerged):
-        idx = np.flatnonzero(submerged)
-        sub = _subset(seg_dn, idx)
-        target = m_tail[idx] - q[idx] ** 2 / (g * a_j[idx])
-
-        def fun(z):
-            return sub.properties(z)[3] - target
-
-        y_v[idx] = bracketed_root(fun, jet[idx], tail[idx], rtol=1e-13, what="water level at a submerged gate")
-    e = y_v + seg_dn.alpha * q * q / (2.0 * g * a_j * a_j)
-    y_up, none = _depth_with_energy(seg_up, e, SUB)
-    if np.any(none):
-        i = int(np.flatnonzero(none)[0])
-        raise ControlError(f"{gate!r} between segments does not hold the water back at discharge {q[i]:g}: the jet "
-                           "carries less energy than critical flow upstream needs; the opening is too large")
-    if np.any(y_up <= gate.opening):
-        i = int(np.flatnonzero(y_up <= gate.opening)[0])
-        raise ControlError(f"{gate!r}: the water upstream ({y_up[i]:.4g}) would stand below the gate lip; the "
-                           "opening is too large for this discharge")
-    return y_up, submerged
+    """Depth upstream of a gate between two segments, free or submerged by the water below it, and the
+    submerged mask: :func:`gvflow.structures.gates.gate_pool_depth` with the gate named in its errors."""
+    try:
+        return gate_pool_depth(seg_up, seg_dn, jet, tail, opening=gate.opening)
+    except NoSolutionError as exc:
+        raise ControlError(f"{gate!r} between segments: {exc}") from None
 
 
 def _check_stop_codes(marcher, seg, code, stop, grp, x_order):

@@ -136,3 +136,68 @@ def test_bad_gate_input_raises():
         st.gate_discharge(2.0, 0.5, 2.0, tailwater=2.1)
     with pytest.raises(gv.NoSolutionError, match="gate lip"):
         st.gate_upstream_depth(0.01, 1.0, 2.0)  # tiny flow: the water never reaches the gate
+
+
+# ---------------------------------------------------------------------------
+# one gate model for any section: the pool depth of the reach solver
+# ---------------------------------------------------------------------------
+
+def _batch(section, q):
+    from gvflow.profiles.base import SegmentBatch
+
+    return SegmentBatch.build(section, 0.001, 0.015, np.atleast_1d(q))
+
+
+def test_pool_depth_in_a_rectangle_is_the_closed_form():
+    # the section-general balances (areas and specific forces, roots found numerically) against the
+    # closed forms of gate_upstream_depth and Belanger's sequent depth (Henderson 1966, §6.5, from memory)
+    b, a, cc = 2.5, 0.4, 0.61
+    q = np.array([1.5, 3.0, 4.5, 3.0, 3.0])
+    tail = np.array([np.nan, np.nan, np.nan, 1.6, 2.4])
+    seg = _batch(gv.Rectangular(width=b), q)
+    jet = np.full(q.shape, cc * a)
+    y1, submerged = st.gates.gate_pool_depth(seg, seg, jet, tail, opening=a)
+    limit = st.gate_free_flow_limit(q, a, b, contraction=cc)
+    np.testing.assert_allclose(st.gates.gate_sequent_depth(seg, jet), limit, rtol=1e-11)
+    want = [st.gate_upstream_depth(qq, a, b, tailwater=None if np.isnan(t) else t, contraction=cc)
+            for qq, t in zip(q, tail, strict=True)]
+    np.testing.assert_allclose(y1, want, rtol=1e-11)
+    assert submerged.tolist() == [False, False, False, tail[3] > limit[3], True]
+    assert submerged[4]
+
+
+def test_pool_depth_in_a_trapezoid_meets_energy_and_momentum():
+    # defining equations, with gvflow's public specific energy and force: energy from the pool to the vena
+    # contracta, momentum from the vena contracta (water level y_v over the jet) to the tailwater
+    sec, q, a, cc = gv.Trapezoidal(bottom_width=2.0, side_slope=1.5), 4.0, 0.35, 0.61
+    seg = _batch(sec, [q, q])
+    yj = cc * a
+    y1, submerged = st.gates.gate_pool_depth(seg, seg, np.full(2, yj), np.array([np.nan, 2.0]), opening=a)
+    assert submerged.tolist() == [False, True]
+    assert gv.specific_energy(sec, q, y1[0]) == pytest.approx(gv.specific_energy(sec, q, yj), rel=1e-11)
+    # submerged: A ybar(y_v) + Q²/(g A_j) = M(tail), then E(pool) = y_v + Q²/(2 g A_j²)
+    a_j = sec.area(yj)
+    from scipy.optimize import brentq
+    m_tail = gv.specific_force(sec, q, 2.0)
+    y_v = brentq(lambda y: gv.specific_force(sec, q, y) - q * q / (G * sec.area(y)) + q * q / (G * a_j) - m_tail,
+                 yj, 2.0, xtol=1e-14)
+    assert gv.specific_energy(sec, q, y1[1]) == pytest.approx(y_v + q * q / (2 * G * a_j * a_j), rel=1e-10)
+
+
+def test_upstream_gate_reports_the_depth_behind_it_in_a_trapezoid():
+    # the upstream control and the gate between segments run the same relation: a trapezoid now gets the
+    # depth behind the gate, from energy conservation to the vena contracta
+    sec, q, a = gv.Trapezoidal(bottom_width=2.0, side_slope=1.5), 4.0, 0.35
+    reach = gv.Reach(segments=[gv.Segment(length=300.0, slope=0.001, section=sec, roughness=0.015)], discharge=q,
+                     upstream=gv.SluiceGate(opening=a), downstream=gv.FixedDepth(1.2))
+    (text,) = [c.text for c in reach.solve().controls if c.kind == "control detail"]
+    from scipy.optimize import brentq
+    e_jet = gv.specific_energy(sec, q, 0.61 * a)
+    y1 = brentq(lambda y: gv.specific_energy(sec, q, y) - e_jet, 1.0, 20.0, xtol=1e-14)
+    assert text.startswith("free flow") and f"depth behind the gate {y1:.3f} m" in text
+
+
+def test_pool_depth_refuses_an_opening_above_the_pool():
+    seg = _batch(gv.Rectangular(width=2.0), [0.3])
+    with pytest.raises(gv.NoSolutionError, match="below the gate lip"):
+        st.gates.gate_pool_depth(seg, seg, np.array([0.61 * 0.5]), opening=0.5)

@@ -25,7 +25,7 @@ from .. import coefficients
 from .._models import SingleValueModel
 from ..errors import ControlError, NoSolutionError
 from ..sections import Rectangular, WideRectangular
-from ..structures.gates import gate_free_flow_limit, gate_upstream_depth
+from ..structures.gates import gate_pool_depth, gate_sequent_depth
 
 __all__ = [
     "EndState",
@@ -287,12 +287,13 @@ class SluiceGate(Control):
         return yj
 
     def upstream_depth(self, state, tailwater=None):
-        """Depth behind the gate for each scenario's discharge [length], or None for a non-rectangular section.
+        """Depth behind the gate for each scenario's discharge [length], in any section.
 
-        :func:`gvflow.structures.gate_upstream_depth` with the channel width at
-        the reach's upstream end: free flow, or submerged against ``tailwater``
-        (depth at the gate, one per scenario) where that exceeds the jet's
-        sequent depth.
+        :func:`gvflow.structures.gates.gate_pool_depth` with the section at the
+        reach's upstream end on both sides of the gate (the gate between two
+        segments uses the same relation with the two sections): free flow, or
+        submerged against ``tailwater`` (depth at the gate, one per scenario)
+        where that has more specific force than the jet.
 
         Raises
         ------
@@ -300,42 +301,34 @@ class SluiceGate(Control):
             When the discharge is too small for the opening: the water behind
             the gate would stand below its lip, so the gate does not control.
         """
-        width = rectangular_width(state.seg.section)
-        if width is None:
-            return None
-        q = state.seg.discharge
+        jet = np.full(state.seg.n, self.jet_depth)
         try:
-            y1 = gate_upstream_depth(q, self.opening, width, tailwater=tailwater, contraction=self.contraction,
-                                     units=state.units)
-        except NoSolutionError:
+            y1, _ = gate_pool_depth(state.seg, state.seg, jet, tailwater, opening=self.opening)
+        except NoSolutionError as exc:
             raise ControlError(
-                f"SluiceGate(opening={self.opening:g}): the opening is above the depth the discharge "
-                f"(smallest {float(np.min(q)):g}) needs behind the gate, so the gate lip is clear of the water and "
-                "does not control the flow; lower the opening") from None
-        return np.broadcast_to(np.asarray(y1, dtype=float), q.shape).copy()
+                f"SluiceGate(opening={self.opening:g}): the opening is above the depth the discharge needs behind "
+                f"the gate ({exc}), so the gate lip is clear of the water and does not control the flow; lower the "
+                "opening") from None
+        return y1
 
     def notes(self, state, depth):
         L = state.units.length
-        width = rectangular_width(state.seg.section)
-        if width is None:
-            return [["depth behind the gate not computed: the gate relations hold for rectangular channels"]
-                    for _ in range(state.seg.n)]
-        q = state.seg.discharge
         depth = np.asarray(depth, dtype=float)
-        limit = np.atleast_1d(gate_free_flow_limit(q, self.opening, width, contraction=self.contraction,
-                                                   units=state.units))
+        jet = np.full(state.seg.n, self.jet_depth)
+        limit = gate_sequent_depth(state.seg, jet)
         drowned = depth > self.jet_depth * (1 + 1e-9)
         y_free = self.upstream_depth(state)
-        y1 = self.upstream_depth(state, tailwater=np.where(drowned, depth, self.jet_depth))
+        y1 = self.upstream_depth(state, tailwater=np.where(drowned, depth, np.nan))
         out = []
         for s in range(state.seg.n):
+            sequent = (f"the jet's sequent depth {limit[s]:.3f} {L}" if np.isfinite(limit[s])
+                       else "the jet's sequent depth (above the crown)")
             if drowned[s]:
-                out.append([f"submerged flow: the water at the gate, {depth[s]:.3f} {L}, stands above the jet's "
-                            f"sequent depth {limit[s]:.3f} {L}; depth behind the gate {y1[s]:.3f} {L} (free flow "
-                            f"would need {y_free[s]:.3f} {L})"])
+                out.append([f"submerged flow: the water at the gate, {depth[s]:.3f} {L}, stands above {sequent}; "
+                            f"depth behind the gate {y1[s]:.3f} {L} (free flow would need {y_free[s]:.3f} {L})"])
             else:
                 out.append([f"free flow: depth behind the gate {y1[s]:.3f} {L}; the jump below stays clear of the "
-                            f"gate while the tailwater there is under the jet's sequent depth {limit[s]:.3f} {L}"])
+                            f"gate while the tailwater there is under {sequent}"])
         return out
 
     def coefficients(self):

@@ -23,8 +23,9 @@ import numpy as np
 from .._core.codes import NOT_CONVERGED, SUB, SUPER
 from .._core.records import ChannelBatch, Fluid, channel_batch, fluid
 from .._engine import core
+from .._roots import bracketed_root
 from .._validate import positive_array
-from ..errors import ConvergenceError, InvalidInputError
+from ..errors import ConvergenceError, InvalidInputError, NoSolutionError
 from ..friction import section_roughness
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from ..units import Units, resolve_units
@@ -170,6 +171,46 @@ class SegmentBatch:
         return self.properties(depth)[4]
 
 
+def subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
+    """``seg.take(idx)`` for sorted distinct scenario indices ``idx``; ``seg`` itself when they are all of them."""
+    return seg if idx.size == seg.n else seg.take(idx)
+
+
+def depth_with_energy(seg: SegmentBatch, e, branch):
+    """Depth on ``branch`` whose specific energy in ``seg`` is ``e``; critical depth (flagged) where none is."""
+    yc = seg.yc
+    ok = e > seg.specific_energy(yc)
+    out = yc.copy()
+    if np.any(ok):
+        idx = np.flatnonzero(ok)
+        sub = subset(seg, idx)
+        target = e[idx]
+
+        def fun(z):
+            return sub.specific_energy(z) - target
+
+        if branch == SUB:
+            lo = sub.yc
+            hi = np.maximum(target, sub.yc * 1.001)
+            if seg.section.closed:
+                top = seg.section.max_depth
+                hi = np.minimum(hi, top)
+                if np.any(fun(hi) < 0):
+                    raise NoSolutionError(
+                        f"the water entering {seg.section!r} from the segment below would stand above its crown: "
+                        "the conduit flows full there; pressure flow is outside gvflow's free-surface model")
+            out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
+        else:
+            lo = sub.yc * 1e-3
+            for _ in range(60):
+                need = fun(lo) < 0
+                if not np.any(need):
+                    break
+                lo = np.where(need, lo * 0.5, lo)
+            out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="depth across a junction")
+    return out, ~ok
+
+
 @dataclass(frozen=True, eq=False)
 class MarchResult:
     """Depths of a batch march over fixed stations.
@@ -242,8 +283,6 @@ class Marcher:
         The base implementation finds the root with vectorised regula falsi
         over :meth:`step_many`; compiled marchers override it.
         """
-        from .._roots import bracketed_root
-
         local = np.arange(seg.n)
 
         def depths(xq):

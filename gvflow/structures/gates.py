@@ -1,4 +1,4 @@
-"""Vertical sluice gate in a rectangular channel: free and submerged flow.
+"""Vertical sluice gate: free and submerged flow, in a rectangular channel and in any section.
 
 Free flow: the jet leaves under the gate and contracts to the vena contracta
 depth y2 = Cc a; energy is conserved from the upstream section to the vena
@@ -28,6 +28,12 @@ single-valued and continuous across the limit; :func:`gate_discharge`
 (upstream depth given) returns the free flow while the tailwater does not
 exceed the sequent depth of the free jet, and the submerged root above it.
 
+The same balances hold in any section with areas and specific forces in
+place of the per-width terms: :func:`gate_pool_depth` solves them for a
+batch of scenarios in the sections of a reach (the pool above the gate in
+one section, the jet below it in another) and is the one gate model of the
+reach solver, for a gate at the upstream end and a gate between segments.
+
 Contraction coefficient: Cc = 0.61 by default, user-settable. Ponce (SDSU
 online notes on the sluice-gate equation) gives Cc between 0.598 and 0.611
 and recommends 0.61 after Henderson (1966); Novak et al. (2007, *Hydraulic
@@ -42,9 +48,11 @@ import math
 import numpy as np
 
 from .. import coefficients
+from .._core.codes import SUB
 from .._roots import bracketed_root
 from .._validate import positive_array, scalar_or_array
 from ..errors import InvalidInputError, NoSolutionError
+from ..profiles.base import depth_with_energy, subset
 from ..units import UnitsLike, resolve_units
 
 __all__ = [
@@ -56,7 +64,12 @@ __all__ = [
     "gate_contracted_depth",
     "gate_discharge",
     "gate_upstream_depth",
+    "gate_pool_depth",
+    "gate_sequent_depth",
 ]
+
+#: Relative margin when comparing specific forces (round-off of the force of one depth computed twice).
+_M_TOL = 1e-12
 
 #: Default contraction coefficient of a vertical sluice gate, 0.61 (Henderson 1966, as given by Ponce, SDSU notes,
 #: and Novak et al. 2007, *Hydraulic Structures*, eq. 6.4; sources in gvflow.coefficients).
@@ -353,3 +366,104 @@ def gate_discharge(upstream_depth, opening, width, *, tailwater=None, contractio
             q[sub] = bracketed_root(fun, np.zeros(qfs.shape), qfs, rtol=1e-14, what="submerged gate discharge")
     return scalar_or_array(np.asarray(q * b, dtype=float))
 
+
+
+
+def gate_pool_depth(seg_up, seg_dn, jet, tail=None, *, opening):
+    """Depth of the pool above a sluice gate in any section, free or submerged, for a batch of scenarios.
+
+    Energy is conserved from the pool (section of ``seg_up``) to the vena
+    contracta (section of ``seg_dn``), where the jet (depth ``jet``, area
+    A_j) runs under water standing at depth y_v; the momentum balance from
+    there to the subcritical depth ``tail`` downstream gives y_v:
+    A ȳ(y_v) + Q²/(g A_j) = M(tail). The gate flows free while the tailwater's
+    specific force does not exceed the jet's (y_v = jet); then the jump
+    stands clear of the gate (Henderson 1966, *Open Channel Flow*, §6.5; from
+    memory). In a rectangular channel with alpha = 1 these are the balances
+    of :func:`gate_upstream_depth`.
+
+    Parameters
+    ----------
+    seg_up, seg_dn : gvflow.profiles.SegmentBatch
+        The sections (with discharge, alpha and units per scenario) of the pool
+        and of the jet; the same batch for a gate at the head of a reach.
+    jet : ndarray
+        Jet depth Cc·a per scenario [length].
+    tail : ndarray, optional
+        Depth of the water below the gate per scenario [length]; NaN or None
+        where there is none (free flow).
+    opening : float
+        Gate opening a [length]: the pool must stand above its lip.
+
+    Returns
+    -------
+    (ndarray, ndarray of bool)
+        Pool depth per scenario and where the gate is submerged.
+
+    Raises
+    ------
+    NoSolutionError
+        When the jet carries less energy than critical flow in the pool needs,
+        or the pool would stand below the gate lip (the opening is too large
+        for the discharge).
+    """
+    jet = np.asarray(jet, dtype=float)
+    tail = np.full(jet.shape, np.nan) if tail is None else np.asarray(tail, dtype=float)
+    g, q = seg_dn.units.g, seg_dn.discharge
+    a_j = seg_dn.properties(jet)[0]
+    wet = np.isfinite(tail)
+    m_tail = np.where(wet, seg_dn.specific_force(np.where(wet, tail, jet)), -np.inf)
+    submerged = m_tail > seg_dn.specific_force(jet) * (1 + _M_TOL)
+    y_v = jet.copy()
+    if np.any(submerged):
+        idx = np.flatnonzero(submerged)
+        sub = subset(seg_dn, idx)
+        target = m_tail[idx] - q[idx] ** 2 / (g * a_j[idx])
+
+        def fun(z):
+            return sub.properties(z)[3] - target
+
+        y_v[idx] = bracketed_root(fun, jet[idx], tail[idx], rtol=1e-13, what="water level at a submerged gate")
+    e = y_v + seg_dn.alpha * q * q / (2.0 * g * a_j * a_j)
+    y_up, none = depth_with_energy(seg_up, e, SUB)
+    if np.any(none):
+        i = int(np.flatnonzero(none)[0])
+        raise NoSolutionError(f"the gate does not hold the water back at discharge {q[i]:g}: the jet carries less "
+                              "energy than critical flow upstream needs; the opening is too large")
+    if np.any(y_up <= opening):
+        i = int(np.flatnonzero(y_up <= opening)[0])
+        raise NoSolutionError(f"the water upstream ({y_up[i]:.4g}) would stand below the gate lip at discharge "
+                              f"{q[i]:g}; the opening is too large for this discharge")
+    return y_up, submerged
+
+
+def gate_sequent_depth(seg, jet):
+    """Highest depth below a gate that leaves it free, per scenario, in any section [length].
+
+    The depth on the subcritical branch whose specific force equals the
+    jet's (in a rectangular channel Belanger's sequent depth,
+    :func:`gate_free_flow_limit`); NaN where it would stand above a closed
+    section's crown.
+    """
+    jet = np.asarray(jet, dtype=float)
+    target = seg.specific_force(jet)
+    top = seg.section.max_depth
+    lo = np.maximum(seg.yc, jet)
+    hi = lo * 2.0
+    for _ in range(200):
+        hi = np.minimum(hi, top)
+        short = seg.specific_force(hi) < target
+        if not np.any(short & (hi < top)):
+            break
+        hi = np.where(short, hi * 2.0, hi)
+    ok = seg.specific_force(hi) >= target
+    out = np.full(jet.shape, np.nan)
+    if np.any(ok):
+        idx = np.flatnonzero(ok)
+        sub = subset(seg, idx)
+
+        def fun(z):
+            return sub.specific_force(z) - target[idx]
+
+        out[idx] = bracketed_root(fun, lo[idx], hi[idx], rtol=1e-13, what="sequent depth of a gate's jet")
+    return out
