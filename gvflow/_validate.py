@@ -94,3 +94,18 @@ def invalid_input_from(exc, owner: str) -> InvalidInputError:
             text += f"; got {short_repr(err['input'])}"
         parts.append(text)
     return InvalidInputError(f"{owner}: " + "; ".join(parts))
+
+
+def renamed_keyword(value, old_value, *, old: str, new: str, default):
+    """The value of a keyword renamed from ``old`` to ``new``: the old name still works, with a FutureWarning.
+
+    Giving both (the new one away from its default) is an InvalidInputError.
+    """
+    if old_value is None:
+        return value
+    if value != default:
+        raise InvalidInputError(f"give {new}= only; {old}= is its former name")
+    import warnings
+
+    warnings.warn(f"{old}= is now called {new}=; the old name will be removed", FutureWarning, stacklevel=3)
+    return old_value

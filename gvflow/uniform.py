@@ -17,7 +17,7 @@ from ._core.codes import NO_ROOT, NOT_CONVERGED
 from ._core.records import fluid
 from ._engine import core
 from ._roots import bracketed_root, expand_upper
-from ._validate import finite_array, positive_array, scalar_or_array
+from ._validate import finite_array, positive_array, renamed_keyword, scalar_or_array
 from .errors import ConvergenceError, GVFlowWarning, InvalidInputError, NoSolutionError
 from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, core_channel, section_roughness
 from .units import UnitsLike, resolve_units
@@ -428,13 +428,20 @@ SlopeClass = Literal["mild", "steep", "critical", "horizontal", "adverse"]
 
 
 def slope_class(section, discharge, slope, roughness=None, units: UnitsLike = "SI",
-                tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> SlopeClass:
+                critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, *, tolerance=None) -> SlopeClass:
     """Classify a bed slope for a discharge: mild, steep, critical, horizontal or adverse.
 
-    Mild: yn > yc; steep: yn < yc; critical: |yn - yc| <= tolerance * yc
+    Mild: yn > yc; steep: yn < yc; critical: |yn - yc| <= critical_tolerance * yc
     (Chow 1959, §9-2). For a closed conduit whose discharge exceeds its
     uniform-flow capacity no normal depth exists and the class is undefined:
     :class:`NoSolutionError` is raised.
+
+    Parameters
+    ----------
+    critical_tolerance : float
+        Relative band |yn - yc| <= critical_tolerance · yc in which the slope
+        counts as critical (default :data:`CRITICAL_SLOPE_TOLERANCE`, 1e-3).
+        ``tolerance=`` is its former name (still accepted, with a FutureWarning).
 
     Examples
     --------
@@ -442,6 +449,8 @@ def slope_class(section, discharge, slope, roughness=None, units: UnitsLike = "S
     >>> gv.slope_class(gv.Rectangular(width=3.0), 5.0, 0.001, 0.015)
     'mild'
     """
+    critical_tolerance = renamed_keyword(critical_tolerance, tolerance, old="tolerance", new="critical_tolerance",
+                                         default=CRITICAL_SLOPE_TOLERANCE)
     positive_array(discharge, "discharge")
     section_roughness(section, roughness)
     s = float(finite_array(slope, "slope"))
@@ -451,7 +460,7 @@ def slope_class(section, discharge, slope, roughness=None, units: UnitsLike = "S
         return "adverse"
     yn = normal_depth(section, discharge, s, roughness, units)
     yc = critical_depth(section, discharge, units)
-    if abs(yn - yc) <= tolerance * yc:
+    if abs(yn - yc) <= critical_tolerance * yc:
         return "critical"
     return "mild" if yn > yc else "steep"
 

@@ -61,7 +61,7 @@ def test_shapes_cover_the_twelve_types_and_agree_with_chow():
 
 def test_slope_tolerance_is_adjustable():
     assert classify_slope(0.003, 1.004, 1.0) == "mild"
-    assert classify_slope(0.003, 1.004, 1.0, tolerance=0.005) == "critical"
+    assert classify_slope(0.003, 1.004, 1.0, critical_tolerance=0.005) == "critical"
     assert classify_slope(0.003, 0.996, 1.0) == "steep"
     assert classify_slope(0.0, NAN, 1.0) == "horizontal"
     assert classify_slope(-0.01, NAN, 1.0) == "adverse"
@@ -77,7 +77,7 @@ def test_profile_type_public_function():
     assert gv.profile_type(sec, q, 0.001, n, [0.5 * (yn + yc), 0.5 * yc]).tolist() == ["M2", "M3"]
     sc = gv.critical_slope(sec, q, n)
     assert gv.profile_type(sec, q, sc * 1.001, n, 2.0) == "C1"  # within the 1e-3 depth band
-    assert gv.profile_type(sec, q, sc * 1.001, n, 2.0, tolerance=1e-6) == "S1"
+    assert gv.profile_type(sec, q, sc * 1.001, n, 2.0, critical_tolerance=1e-6) == "S1"
     assert gv.profile_type(sec, q, -0.001, n, 0.5) == "A3"
 
 
@@ -93,3 +93,27 @@ def test_bad_input_raises():
         classify("mild", 1.0, 0.5, 1.0)
     with pytest.raises(gv.InvalidInputError, match="depth"):
         classify("mild", -1.0, 1.5, 1.0)
+
+
+def test_one_keyword_for_the_critical_slope_band_and_the_former_names_still_work():
+    # critical_tolerance everywhere; tolerance= and slope_tolerance= warn and give the same answer
+    import warnings
+
+    sec, q, n = gv.Rectangular(width=3.0), 5.0, 0.015
+    sc = gv.critical_slope(sec, q, n)
+    assert gv.slope_class(sec, q, sc * 1.003, n, critical_tolerance=0.01) == "critical"
+    assert gv.slope_class(sec, q, sc * 1.003, n) == "steep"
+    with pytest.warns(FutureWarning, match="tolerance= is now called critical_tolerance="):
+        assert gv.slope_class(sec, q, sc * 1.003, n, tolerance=0.01) == "critical"
+    with pytest.warns(FutureWarning, match="tolerance= is now called critical_tolerance="):
+        assert classify_slope(0.003, 1.004, 1.0, tolerance=0.005) == "critical"
+    with pytest.warns(FutureWarning, match="tolerance= is now called critical_tolerance="):
+        assert gv.profile_type(sec, q, sc * 1.003, n, 2.0, tolerance=0.01) == "C1"
+    with pytest.warns(FutureWarning, match="slope_tolerance= is now called critical_tolerance="):
+        old = gv.trace_profile(sec, q, sc * 1.003, n, 2.0, 50.0, slope_tolerance=0.01)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = gv.trace_profile(sec, q, sc * 1.003, n, 2.0, 50.0, critical_tolerance=0.01)
+    assert old.label == new.label == "C1"
+    with pytest.raises(gv.InvalidInputError, match="give critical_tolerance= only"):
+        gv.slope_class(sec, q, sc, n, critical_tolerance=0.01, tolerance=0.01)

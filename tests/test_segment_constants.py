@@ -39,6 +39,6 @@ def test_segment_constants_follow_the_public_slope_class_and_friction_slope(sec,
             if s0 > 0 and not np.isfinite(seg.yn[i]):
                 assert SLOPE_CLASSES[code[i]] == "mild"  # a surcharging conduit
                 continue
-            assert SLOPE_CLASSES[code[i]] == classify_slope(s0, seg.yn[i], seg.yc[i], tolerance=tol)
+            assert SLOPE_CLASSES[code[i]] == classify_slope(s0, seg.yn[i], seg.yc[i], critical_tolerance=tol)
     assert SLOPE_CLASSES[SegmentBatch._checked(sec, s_crit, law, np.array([0.4]), gv.SI, 1.0, None, tol)[2][0]] \
         == "critical"

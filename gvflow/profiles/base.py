@@ -87,10 +87,11 @@ class SegmentBatch:
         return cls._checked(section, slope, roughness, q, resolve_units(units), alpha, coef)[0]
 
     @classmethod
-    def _checked(cls, section, slope, roughness, q, u, alpha, coef, tol=CRITICAL_SLOPE_TOLERANCE, strict=True):
+    def _checked(cls, section, slope, roughness, q, u, alpha, coef, critical_tolerance=CRITICAL_SLOPE_TOLERANCE,
+                 strict=True):
         """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
         or a float array with one row per scenario it may keep. Returns (batch, friction slope at critical
-        depth, slope class code: an index into SLOPE_CLASSES, critical within ``tol``) per scenario."""
+        depth, slope class code: an index into SLOPE_CLASSES, critical within ``critical_tolerance``) per scenario."""
         rough = section_roughness(section, roughness)
         if rough is None:
             law, values = section.core_roughness()
@@ -103,8 +104,9 @@ class SegmentBatch:
         fl = fluid(u)
         yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
         code, status, status_n = (np.empty(q.shape, np.int64) for _ in range(3))
-        core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha), float(tol), yc, yn,
-                                                      sf_c, code, status, status_n)
+        core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha),
+                                                      float(critical_tolerance), yc, yn, sf_c, code, status,
+                                                      status_n)
         failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
         yc[status == NOT_CONVERGED] = np.nan
         batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed)

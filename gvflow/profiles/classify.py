@@ -23,7 +23,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .._validate import finite_array, positive_array, positive_float
+from .._core.codes import REGIME_NAMES, REGIME_SUB, REGIME_SUPER
+from .._validate import finite_array, positive_array, positive_float, renamed_keyword
 from ..errors import InvalidInputError, NoSolutionError
 from ..uniform import CRITICAL_SLOPE_TOLERANCE, critical_depth, normal_depth
 from ..units import UnitsLike
@@ -85,8 +86,9 @@ class ProfileShape:
 
 
 def _shape(label, sc, zone, rng, sign, up, down):
-    regime = "subcritical" if label in ("M1", "M2", "S1", "C1", "H2", "A2") else "supercritical"
-    direction = "upstream" if regime == "subcritical" else "downstream"
+    sub = label in ("M1", "M2", "S1", "C1", "H2", "A2")
+    regime = REGIME_NAMES[REGIME_SUB if sub else REGIME_SUPER]
+    direction = "upstream" if sub else "downstream"
     return ProfileShape(label, sc, zone, rng, sign, regime, direction, up, down)
 
 
@@ -110,7 +112,8 @@ PROFILE_SHAPES: dict[str, ProfileShape] = {s.label: s for s in (
 PROFILE_LABELS = tuple(PROFILE_SHAPES)
 
 
-def classify_slope(slope, normal_depth, critical_depth, tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> str:
+def classify_slope(slope, normal_depth, critical_depth, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, *,
+                   tolerance=None) -> str:
     """Slope class from the bed slope and the two reference depths.
 
     Parameters
@@ -121,9 +124,10 @@ def classify_slope(slope, normal_depth, critical_depth, tolerance: float = CRITI
         Normal depth yn [length] (ignored, may be NaN, when slope <= 0).
     critical_depth : float
         Critical depth yc [length].
-    tolerance : float
-        Relative band |yn - yc| <= tolerance * yc in which the slope counts as
-        critical (default :data:`gvflow.CRITICAL_SLOPE_TOLERANCE`).
+    critical_tolerance : float
+        Relative band |yn - yc| <= critical_tolerance * yc in which the slope
+        counts as critical (default :data:`gvflow.CRITICAL_SLOPE_TOLERANCE`).
+        ``tolerance=`` is its former name (still accepted, with a FutureWarning).
 
     Returns
     -------
@@ -135,11 +139,13 @@ def classify_slope(slope, normal_depth, critical_depth, tolerance: float = CRITI
     >>> from gvflow.profiles import classify_slope
     >>> classify_slope(0.001, 1.08, 0.66)
     'mild'
-    >>> classify_slope(0.01, 0.6604, 0.66, tolerance=1e-2)
+    >>> classify_slope(0.01, 0.6604, 0.66, critical_tolerance=1e-2)
     'critical'
     """
+    critical_tolerance = renamed_keyword(critical_tolerance, tolerance, old="tolerance", new="critical_tolerance",
+                                         default=CRITICAL_SLOPE_TOLERANCE)
     s = float(finite_array(slope, "slope"))
-    tol = positive_float(tolerance, "tolerance", allow_zero=True)
+    tol = positive_float(critical_tolerance, "critical_tolerance", allow_zero=True)
     yc = float(positive_array(critical_depth, "critical_depth"))
     if s == 0:
         return "horizontal"
@@ -220,11 +226,11 @@ def _zone_labels(slope_class, y: np.ndarray, yn: np.ndarray, yc: np.ndarray) -> 
 
 
 def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike = "SI",
-                 tolerance: float = CRITICAL_SLOPE_TOLERANCE, alpha: float = 1.0):
+                 critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, alpha: float = 1.0, *, tolerance=None):
     """Profile type (M1 ... A3) of a flow at ``depth`` in a prismatic channel.
 
     Computes the normal and critical depths, the slope class (critical when
-    |yn - yc| <= ``tolerance`` · yc) and the zone of ``depth``.
+    |yn - yc| <= ``critical_tolerance`` · yc) and the zone of ``depth``.
 
     Parameters
     ----------
@@ -240,9 +246,10 @@ def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike =
         Flow depth [length].
     units : "SI", "US" or Units
         Unit system.
-    tolerance : float
+    critical_tolerance : float
         Critical-slope band, relative to critical depth (default
-        :data:`gvflow.CRITICAL_SLOPE_TOLERANCE` = 1e-3).
+        :data:`gvflow.CRITICAL_SLOPE_TOLERANCE` = 1e-3). ``tolerance=`` is its
+        former name (still accepted, with a FutureWarning).
     alpha : float
         Energy coefficient [-] used in the critical depth.
 
@@ -266,6 +273,8 @@ def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike =
     >>> gv.profile_type(sec, 5.0, 0.0, 0.015, [1.0, 0.3]).tolist()
     ['H2', 'H3']
     """
+    critical_tolerance = renamed_keyword(critical_tolerance, tolerance, old="tolerance", new="critical_tolerance",
+                                         default=CRITICAL_SLOPE_TOLERANCE)
     s = float(finite_array(slope, "slope"))
     yc = float(critical_depth(section, discharge, units, alpha))
     if s > 0:
@@ -276,4 +285,4 @@ def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike =
     else:
         positive_array(discharge, "discharge")
         yn = math.nan
-    return classify(classify_slope(s, yn, yc, tolerance), depth, yn, yc)
+    return classify(classify_slope(s, yn, yc, critical_tolerance), depth, yn, yc)

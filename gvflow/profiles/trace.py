@@ -14,7 +14,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .._validate import finite_float, positive_float
+from .._core.codes import REGIME_NAMES, REGIME_SUB, REGIME_SUPER
+from .._validate import finite_float, positive_float, renamed_keyword
 from ..errors import ControlError, ConvergenceError, InvalidInputError, NoSolutionError
 from ..uniform import CRITICAL_SLOPE_TOLERANCE
 from ..units import UnitsLike
@@ -107,14 +108,15 @@ class ProfileTrace:
 
 
 def _regime_name(branch):
-    return "subcritical" if branch == SUB else "supercritical"
+    return REGIME_NAMES[REGIME_SUB if branch == SUB else REGIME_SUPER]
 
 
 def trace_profile(section, discharge, slope, roughness, control_depth, length, *, direction=None,
                   method="standard_step", n_steps: int = 100, substeps: int = 4, units: UnitsLike = "SI",
                   alpha: float = 1.0,
                   normal_tolerance: float = NORMAL_DEPTH_TOLERANCE,
-                  slope_tolerance: float = CRITICAL_SLOPE_TOLERANCE, **method_options) -> ProfileTrace:
+                  critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, slope_tolerance=None,
+                  **method_options) -> ProfileTrace:
     """Trace one gradually varied flow profile along a prismatic segment from a control depth.
 
     A subcritical control depth (above critical depth) stands at the
@@ -162,9 +164,10 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
     normal_tolerance : float
         The trace stops with status "normal depth" where |y - yn| <=
         normal_tolerance · yn (default :data:`NORMAL_DEPTH_TOLERANCE`, 1e-3).
-    slope_tolerance : float
-        Relative band |yn - yc| <= slope_tolerance · yc in which the slope is
+    critical_tolerance : float
+        Relative band |yn - yc| <= critical_tolerance · yc in which the slope is
         classed critical (default :data:`gvflow.CRITICAL_SLOPE_TOLERANCE`).
+        ``slope_tolerance=`` is its former name (still accepted, with a FutureWarning).
     **method_options
         Passed to the marcher (e.g. ``friction_average``, ``eddy_loss`` for the
         standard step; ``ivp_method``, ``rtol``, ``atol`` for "ivp";
@@ -194,6 +197,8 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
     >>> round(float(t.depth[0]), 3), float(t.x[-1])
     (1.309, 1000.0)
     """
+    critical_tolerance = renamed_keyword(critical_tolerance, slope_tolerance, old="slope_tolerance",
+                                         new="critical_tolerance", default=CRITICAL_SLOPE_TOLERANCE)
     length = positive_float(length, "length")
     y0 = positive_float(control_depth, "control_depth")
     normal_tolerance = positive_float(normal_tolerance, "normal_tolerance")
@@ -211,7 +216,7 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
         raise NoSolutionError(f"discharge {float(seg.discharge[0]):g} exceeds the uniform-flow capacity of "
                               f"{section!r} at slope {s0:g}: no normal depth, so no profile type; use a larger "
                               "conduit or a steeper slope")
-    sclass = classify_slope(s0, yn, yc, slope_tolerance)
+    sclass = classify_slope(s0, yn, yc, critical_tolerance)
     if abs(y0 - yc) <= _AT_CRITICAL * yc:  # critical depth computed elsewhere: same depth to round-off
         y0 = yc
 
@@ -224,7 +229,7 @@ def trace_profile(section, discharge, slope, roughness, control_depth, length, *
         raise InvalidInputError(f"direction must be 'upstream', 'downstream' or None; got {direction!r}")
     branch = SUB if direction == "upstream" else SUPER
     if (branch == SUB and y0 < yc) or (branch == SUPER and y0 > yc):
-        own = "supercritical" if y0 < yc else "subcritical"
+        own = REGIME_NAMES[REGIME_SUPER if y0 < yc else REGIME_SUB]
         own_dir = "downstream" if own == "supercritical" else "upstream"
         raise ControlError(
             f"control_depth {y0:g} is {'below' if y0 < yc else 'above'} critical depth {yc:.6g}: it is a {own} "
