@@ -116,6 +116,8 @@ USES = {
 #: numeric module constants that are not empirical coefficients, with the reason
 NOT_COEFFICIENTS = {
     ("gvflow.structures.pool", "_TINY"): "numerical floor of a bracket",
+    ("gvflow.structures.gates", "SUB"): "branch code of the compiled kernels",
+    ("gvflow.structures.gates", "_M_TOL"): "round-off margin when comparing specific forces",
     ("gvflow.controls.structures", "CRITICAL_SLOPE_TOLERANCE"): "numerical tolerance of the slope class",
     ("gvflow.structures._common", "_G_SI"): "standard gravity, a definition (9.80665 m/s²)",
     ("gvflow.structures._common", "_FEET_PER_METRE"): "definition of the foot (0.3048 m)",
@@ -205,7 +207,7 @@ ALLOWED_LITERALS = {
                                    9.0: "4/9 of the broad-crested relation", 90.0: "default notch angle",
                                    200: "iteration cap"},
     "gvflow/structures/culverts.py": {100: "default number of barrel steps", 200: "iteration cap"},
-    "gvflow/structures/gates.py": {8.0: "Belanger's 8 F²"},
+    "gvflow/structures/gates.py": {8.0: "Belanger's 8 F²", 200: "iteration cap"},
     "gvflow/structures/overtopping.py": {32.174: "standard gravity in ft/s² (9.80665 m/s² exactly)",
                                          100: "iteration cap", 0.3: "plot style", 0.99: "plot label position",
                                          1.02: "plot axis margin", 1.2: "plot line width", 5: "figure size",
