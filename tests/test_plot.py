@@ -152,7 +152,12 @@ def test_everything_drawn_is_inside_the_view(demo):
     ax = demo.plot()
     lo, hi = ax.get_ylim()
     assert lo < demo.bed.min() and hi > demo.energy_grade.max()
-    assert ax.get_xlim() == (0.0, demo.x[-1])
+    # the reach and, upstream of it, the sluice gate at its head
+    x0, x1 = ax.get_xlim()
+    assert x0 < 0.0 and x1 == demo.x[-1]
+    for patch in ax.patches:
+        xy = patch.get_xy()
+        assert x0 <= xy[:, 0].min() and xy[:, 0].max() <= x1 and lo <= xy[:, 1].min() and xy[:, 1].max() <= hi
 
 
 def test_png_written(demo, tmp_path):
