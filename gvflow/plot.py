@@ -78,13 +78,21 @@ def _label(ax, text, xy, *, xycoords="data", offset=(0.0, 8.0), arrow_colour="0.
 
 
 def _extent(text):
-    """Display box (x0, y0, x1, y1) of a text with its background box, measured by the renderer."""
-    box = text.get_window_extent()
+    """Display box (x0, y0, x1, y1) of a text with its background box, measured by the renderer.
+
+    The background box is the text's extent grown by the box style's pad (a
+    fraction of the font size), the way matplotlib sizes it when drawing; the
+    patch's own extent is only brought up to date by a full draw.
+    """
+    from matplotlib.text import Text
+
+    box = Text.get_window_extent(text)  # the text alone: an annotation's own extent includes its arrow
     patch = text.get_bbox_patch()
+    grow = 0.0
     if patch is not None:
-        pb = patch.get_window_extent()
-        return (min(box.x0, pb.x0), min(box.y0, pb.y0), max(box.x1, pb.x1), max(box.y1, pb.y1))
-    return (box.x0, box.y0, box.x1, box.y1)
+        pad = getattr(patch.get_boxstyle(), "pad", 0.0)
+        grow = pad * text.get_fontsize() * text.figure.dpi / 72.0 + 0.5 * patch.get_linewidth() * text.figure.dpi / 72.0
+    return (box.x0 - grow, box.y0 - grow, box.x1 + grow, box.y1 + grow)
 
 
 def _shift(text, dx, dy, px_per_point):
