@@ -199,8 +199,7 @@ def place_labels(ax, labels=None, *, gap: float = 2.0, min_fontsize: float = 6.0
                 break
             size = t.get_fontsize()
             if size - 1.0 >= min_fontsize:
-                t.set_fontsize(size - 1.0)
-                fig.draw_without_rendering()
+                t.set_fontsize(size - 1.0)  # measured again from the text layout, no new draw needed
                 continue
             t.set_visible(False)
             warnings.warn(f"the label {t.get_text()!r} found no free place inside the axes and is not drawn; "
