@@ -1,10 +1,19 @@
-"""Long-section plot of a solved reach.
+"""Long-section plots of a reach: a solved profile, and a Monte Carlo envelope.
 
 :func:`plot_profile` draws what an engineer puts in a report: the bed, the
 water surface, the energy grade line, the normal- and critical-depth lines of
 each segment, the hydraulic jumps with their upstream Froude numbers, the
-type of each profile piece (M1, S2, ...) and the segment boundaries, with the
-units of the reach on the axes.
+type of each profile piece (M1, S2, ...), the segment boundaries, and the
+structures at their true levels: a weir's crest, a culvert's barrel from
+invert to crown with the road embankment above it, a gate's plate from its
+lip up, a pool's level, a free overfall's brink, the crown of a closed
+conduit and the bank or lining top of each segment that gives one.
+:func:`plot_envelope` draws a Monte Carlo run's percentile band on the same
+long section and says which inputs were uncertain.
+
+Labels are placed by :func:`place_labels`, which measures each label with the
+figure's renderer and moves it until no two labels overlap and every label
+lies inside the axes.
 
 Matplotlib is imported when a plot is drawn, not when gvflow is imported.
 To write a figure without a display, pass an Axes of a
@@ -13,9 +22,15 @@ To write a figure without a display, pass an Axes of a
 
 from __future__ import annotations
 
+import textwrap
+import warnings
+from dataclasses import dataclass
+
 import numpy as np
 
-__all__ = ["plot_profile"]
+from .errors import GVFlowWarning, InvalidInputError
+
+__all__ = ["plot_profile", "plot_envelope", "place_labels", "uncertain_inputs", "LABEL_GID"]
 
 # Plain matplotlib "tab" colours; one per quantity, used the same way in every figure.
 _COLOURS = {
@@ -28,12 +43,430 @@ _COLOURS = {
     "jump": "tab:purple",
     "boundary": "0.55",
     "structure": "0.20",
+    "fill": "0.55",
+    "embankment": "0.78",
+    "bank": "tab:brown",
+    "crown": "0.15",
 }
 _TEXT_BOX = {"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.85}
 
+#: gid of the labels :func:`place_labels` arranges when it is given no list.
+LABEL_GID = "gvflow-label"
+
+
+# ---------------------------------------------------------------------------
+# label placement
+# ---------------------------------------------------------------------------
+
+def _label(ax, text, xy, *, xycoords="data", offset=(0.0, 8.0), arrow_colour="0.5", **style):
+    """An annotation written ``offset`` points from ``xy``, tagged for :func:`place_labels`.
+
+    It is left out of the figure's layout so that moving it never changes the axes.
+    """
+    style.setdefault("fontsize", 8)
+    style.setdefault("ha", "center")
+    style.setdefault("va", "bottom")
+    style.setdefault("zorder", 8)
+    style.setdefault("bbox", _TEXT_BOX)
+    arrow = None if arrow_colour is None else {"arrowstyle": "-", "color": arrow_colour, "linewidth": 0.6,
+                                                "shrinkA": 0.0, "shrinkB": 1.0}
+    ann = ax.annotate(text, xy=xy, xycoords=xycoords, xytext=offset, textcoords="offset points",
+                      arrowprops=arrow, annotation_clip=False, **style)
+    ann.set_gid(LABEL_GID)
+    ann.set_in_layout(False)
+    return ann
+
+
+def _extent(text):
+    """Display box (x0, y0, x1, y1) of a text with its background box, measured by the renderer.
+
+    The background box is the text's extent grown by the box style's pad (a
+    fraction of the font size), the way matplotlib sizes it when drawing; the
+    patch's own extent is only brought up to date by a full draw.
+    """
+    from matplotlib.text import Text
+
+    box = Text.get_window_extent(text)  # the text alone: an annotation's own extent includes its arrow
+    patch = text.get_bbox_patch()
+    grow = 0.0
+    if patch is not None:
+        pad = getattr(patch.get_boxstyle(), "pad", 0.0)
+        grow = pad * text.get_fontsize() * text.figure.dpi / 72.0 + 0.5 * patch.get_linewidth() * text.figure.dpi / 72.0
+    return (box.x0 - grow, box.y0 - grow, box.x1 + grow, box.y1 + grow)
+
+
+def _shift(text, dx, dy, px_per_point):
+    """Move a text by (dx, dy) display pixels."""
+    from matplotlib.text import Annotation
+
+    if isinstance(text, Annotation) and text.anncoords == "offset points":
+        ox, oy = text.xyann
+        text.xyann = (ox + dx / px_per_point, oy + dy / px_per_point)
+    else:
+        tr = text.get_transform()
+        x, y = tr.transform(text.get_position())
+        text.set_position(tuple(tr.inverted().transform((x + dx, y + dy))))
+
+
+def _candidates(width, height, box, limit_x, limit_y, gap):
+    """Shifts (dx, dy) in display pixels, cheapest first: upward before downward, vertical before sideways."""
+    step_y = 0.5 * (height + gap)
+    step_x = 0.25 * (width + gap)
+    ny = int(np.ceil(limit_y / step_y)) + 1
+    nx = int(np.ceil(limit_x / step_x)) + 1
+    dy = step_y * np.arange(-ny, ny + 1)
+    dx = step_x * np.arange(-nx, nx + 1)
+    DX, DY = np.meshgrid(dx, dy)
+    cost = np.where(DY >= 0, DY, 1.4 * -DY) + 1.6 * np.abs(DX)
+    order = np.argsort(cost, axis=None, kind="stable")
+    return DX.ravel()[order], DY.ravel()[order]
+
+
+def place_labels(ax, labels=None, *, gap: float = 2.0, min_fontsize: float = 6.0):
+    """Move labels so that no two overlap and every one lies inside the axes.
+
+    Each label is measured with the figure's renderer (with its background
+    box). In the order given, each keeps its place if that is free and inside
+    the axes, else it moves to the nearest free place (upward first, then
+    downward, then sideways); annotations keep their arrow to the point they
+    label. A label with no free place left is drawn smaller, down to
+    ``min_fontsize``, and hidden with a :class:`~gvflow.errors.GVFlowWarning`
+    if it still does not fit. Texts of the axes that are not in ``labels``
+    stay where they are and are avoided, and so is the legend.
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+    labels : list of matplotlib.text.Text, optional
+        The labels to arrange, most important first; by default every text
+        of ``ax`` whose gid is :data:`LABEL_GID` (the labels gvflow's plots
+        write), in the order they were written.
+    gap : float
+        Clearance between labels and from the axes edge [points].
+    min_fontsize : float
+        Smallest font size a label may be shrunk to [points].
+
+    Returns
+    -------
+    list of matplotlib.text.Text
+        The labels left visible.
+
+    Notes
+    -----
+    Positions are measured for the figure's size at the time of the call; the
+    offsets are in points, so the result holds at any dpi. After resizing the
+    figure call it again.
+    """
+    fig = ax.figure
+    if labels is None:
+        labels = [t for t in ax.texts if t.get_gid() == LABEL_GID]
+    labels = [t for t in labels if t.get_visible() and t.get_text()]
+    if not labels:
+        return []
+    for t in labels:
+        t.set_in_layout(False)
+    fig.draw_without_rendering()
+    px = fig.dpi / 72.0
+    g = gap * px
+    ab = ax.bbox
+    inner = (ab.x0 + g, ab.y0 + g, ab.x1 - g, ab.y1 - g)
+    chosen = set(map(id, labels))
+    fixed = [_extent(t) for t in ax.texts if id(t) not in chosen and t.get_visible() and t.get_text()]
+    legend = ax.get_legend()
+    if legend is not None and legend.get_visible():
+        lb = legend.get_window_extent()
+        fixed.append((lb.x0, lb.y0, lb.x1, lb.y1))
+    placed = np.array(fixed, dtype=float).reshape(-1, 4)
+    shown = []
+    for t in labels:
+        while True:
+            x0, y0, x1, y1 = _extent(t)
+            w, h = x1 - x0, y1 - y0
+            dx, dy = _candidates(w, h, inner, ab.width, ab.height, g)
+            cx0, cy0, cx1, cy1 = x0 + dx, y0 + dy, x1 + dx, y1 + dy
+            ok = (cx0 >= inner[0]) & (cy0 >= inner[1]) & (cx1 <= inner[2]) & (cy1 <= inner[3])
+            if placed.size:
+                clear = ((cx1[:, None] + g <= placed[None, :, 0]) | (cx0[:, None] >= placed[None, :, 2] + g)
+                         | (cy1[:, None] + g <= placed[None, :, 1]) | (cy0[:, None] >= placed[None, :, 3] + g))
+                ok &= np.all(clear, axis=1)
+            hit = np.flatnonzero(ok)
+            if hit.size:
+                i = int(hit[0])
+                if dx[i] or dy[i]:
+                    _shift(t, float(dx[i]), float(dy[i]), px)
+                placed = np.vstack([placed, (cx0[i], cy0[i], cx1[i], cy1[i])])
+                shown.append(t)
+                break
+            size = t.get_fontsize()
+            if size - 1.0 >= min_fontsize:
+                t.set_fontsize(size - 1.0)  # measured again from the text layout, no new draw needed
+                continue
+            t.set_visible(False)
+            warnings.warn(f"the label {t.get_text()!r} found no free place inside the axes and is not drawn; "
+                          "make the figure larger or draw fewer labels", GVFlowWarning, stacklevel=2)
+            break
+    return shown
+
+
+# ---------------------------------------------------------------------------
+# structures and reach furniture at their true levels
+# ---------------------------------------------------------------------------
+
+@dataclass
+class _Shape:
+    """One drawn piece of a structure, in data coordinates.
+
+    kind: "fill" (a filled polygon), "outline" (a polygon drawn as an edge on
+    a white face), "line", "water" (a water body), "ground" (filled from the
+    points down to the floor) or "drop" (a vertical edge from the point down
+    to the floor). role names it (the artist's gid); label, anchored at
+    ``anchor``, is written beside it.
+    """
+
+    kind: str
+    xy: np.ndarray
+    role: str
+    label: str | None = None
+    anchor: tuple[float, float] | None = None
+    legend: str | None = None
+
+
+def _segment_ends(reach):
+    """x and bed elevation at both ends of each segment, shape (K, 2)."""
+    xb = np.asarray(reach.boundaries)
+    nseg = len(reach.segments)
+    xs = np.column_stack([xb[:-1], xb[1:]])
+    zs = reach.bed_elevation(xs, np.repeat(np.arange(nseg), 2).reshape(-1, 2))
+    return xs, zs
+
+
+def _barrel_name(barrel, L):
+    count = f"{barrel.barrels} x " if barrel.barrels > 1 else ""
+    if barrel.shape == "circular":
+        return f"{count}pipe D {barrel.diameter:.2f} {L}"
+    return f"{count}box {barrel.span:.2f} x {barrel.rise:.2f} {L}"
+
+
+def _reach_shapes(reach, x, bed, water_top, head=None):
+    """Every structure and reach line to draw, at its true elevation.
+
+    Parameters
+    ----------
+    reach : Reach
+    x, bed : ndarray
+        Stations and bed elevations [length].
+    water_top : ndarray
+        Highest water level drawn at each station [length] (the stage, or
+        the top of an envelope); it sets how far up a gate's plate reaches.
+    head : float, optional
+        Level of the water behind an upstream gate [length]; by default the
+        highest water of the first segment.
+    """
+    from .controls import SluiceGate
+    from .sections import Surveyed
+    from .structures.controls import Culvert, FreeOverfall, Pool, StageDischargeTable, Weir
+
+    L = reach.resolved_units.length
+    x = np.asarray(x, float)
+    bed = np.asarray(bed, float)
+    water_top = np.asarray(water_top, float)
+    length = float(reach.boundaries[-1])
+    margin = 0.03 * length
+    xs, zs = _segment_ends(reach)
+    shapes = []
+
+    # lines along each segment: the bank or lining top, the crown of a closed conduit
+    for k, seg in enumerate(reach.segments):
+        bank = seg.bank_height
+        if bank is None and isinstance(seg.section, Surveyed):
+            bank = seg.section.bank_depth
+        if bank is not None:
+            shapes.append(_Shape("line", np.column_stack([xs[k], zs[k] + bank]), "bank top",
+                                 legend="bank or lining top"))
+        if seg.section.closed:
+            shapes.append(_Shape("line", np.column_stack([xs[k], zs[k] + seg.section.max_depth]), "conduit crown",
+                                 legend="conduit crown"))
+
+    # gates at segment heads: a plate from the lip up past the water it holds
+    for k, seg in enumerate(reach.segments):
+        if seg.gate is None:
+            continue
+        xk = float(xs[k, 0])
+        z = float(zs[k, 0])
+        at = np.isclose(x, xk)
+        held = float(np.max(water_top[at])) if np.any(at) else z + seg.gate.opening
+        shapes.extend(_gate(xk, z, seg.gate.opening, held, length, L))
+
+    # upstream end
+    x0, z0 = float(xs[0, 0]), float(zs[0, 0])
+    up = reach.upstream
+    if isinstance(up, SluiceGate):
+        first = (x >= x0) & (x <= xs[0, 1])
+        held = float(np.max(water_top[first])) if head is None else float(head)
+        shapes.append(_Shape("ground", np.array([[x0 - margin, z0], [x0, z0]]), "ground"))
+        shapes.extend(_gate(x0, z0, up.opening, held, length, L))
+    elif isinstance(up, Pool):
+        shapes.append(_Shape("ground", np.array([[x0 - margin, z0], [x0, z0]]), "ground"))
+        shapes.append(_Shape("water", np.array([[x0 - margin, z0], [x0 - margin, up.level], [x0, up.level],
+                                                [x0, z0]]), "pool", f"pool level {up.level:.2f} {L}",
+                             (x0 - 0.5 * margin, up.level)))
+
+    # downstream end
+    xe, ze = float(xs[-1, 1]), float(zs[-1, 1])
+    down = reach.downstream
+    if isinstance(down, Weir):
+        thick = (0.02 if down.formula == "broad_crested" else 0.006) * length
+        zc = down.crest_elevation(ze)
+        shapes.append(_Shape("fill", np.array([[xe, ze], [xe, zc], [xe + thick, zc], [xe + thick, ze]]), "weir",
+                             f"weir crest {zc:.2f} {L}", (xe + 0.5 * thick, zc)))
+        shapes.append(_Shape("ground", np.array([[xe, ze], [xe + thick + margin, ze]]), "ground"))
+        if down.tailwater_level is not None:
+            tw = down.tailwater_level
+            if tw > ze:
+                shapes.append(_Shape("water", np.array([[xe + thick, ze], [xe + thick, tw], [xe + thick + margin, tw],
+                                                        [xe + thick + margin, ze]]), "tailwater",
+                                     f"tailwater {tw:.2f} {L}", (xe + thick + 0.5 * margin, tw)))
+    elif isinstance(down, Culvert):
+        b = down.barrel
+        zi = ze + down.invert_offset
+        lb = float(b.length)
+        zo = zi - b.slope * lb
+        rise = float(b.height)
+        shapes.append(_Shape("ground", np.array([[xe, ze], [xe, min(ze, zi)], [xe + lb, zo],
+                                                 [xe + lb + margin, zo]]), "ground"))
+        shapes.append(_Shape("outline", np.array([[xe, zi], [xe + lb, zo], [xe + lb, zo + rise], [xe, zi + rise]]),
+                             "culvert barrel", f"culvert {_barrel_name(b, L)}\ninvert {zi:.2f}, crown "
+                             f"{zi + rise:.2f} {L}", (xe + 0.5 * lb, zi + 0.5 * rise - 0.5 * b.slope * lb)))
+        if down.road is not None:
+            zr = zi + down.road.low_point
+            low = " (low point)" if down.road.offsets is not None else ""
+            if zr > zi + rise:
+                shapes.append(_Shape("fill", np.array([[xe, zi + rise], [xe, zr], [xe + lb, zr],
+                                                       [xe + lb, zo + rise]]), "embankment"))
+            shapes.append(_Shape("line", np.array([[xe, zr], [xe + lb, zr]]), "road crest",
+                                 f"road crest {zr:.2f} {L}{low}", (xe + 0.5 * lb, zr)))
+        if down.tailwater is not None:
+            tw = zo + down.tailwater
+            shapes.append(_Shape("water", np.array([[xe + lb, zo], [xe + lb, tw], [xe + lb + margin, tw],
+                                                    [xe + lb + margin, zo]]), "tailwater",
+                                 f"tailwater {tw:.2f} {L}", (xe + lb + 0.5 * margin, tw)))
+    elif isinstance(down, FreeOverfall):
+        shapes.append(_Shape("drop", np.array([[xe, ze]]), "brink", "free overfall", (xe, ze)))
+        shapes.append(_Shape("ground", np.array([[xe, -np.inf], [xe + margin, -np.inf]]), "ground"))
+    elif isinstance(down, StageDischargeTable):
+        zw = float(water_top[-1])
+        shapes.append(_Shape("line", np.array([[xe, zw], [xe + margin, zw]]), "rating",
+                             "stage from the rating table", (xe + 0.5 * margin, zw)))
+        shapes.append(_Shape("ground", np.array([[xe, ze], [xe + margin, ze]]), "ground"))
+    return shapes
+
+
+def _gate(xg, z_bed, opening, held, length, L):
+    """A gate's plate: from the lip (bed + opening) to a little above the water it holds."""
+    lip = z_bed + opening
+    top = max(held, lip) + 0.15 * max(held - z_bed, opening)
+    t = 0.004 * length
+    return [_Shape("fill", np.array([[xg - t, lip], [xg - t, top], [xg + t, top], [xg + t, lip]]), "gate",
+                   f"gate, lip {lip:.2f} {L}", (xg, top))]
+
+
+def _shape_extent(shapes):
+    """(x min, x max, y max) of the shapes, None where no shape bounds it."""
+    pts = [s.xy for s in shapes if s.kind != "drop"]
+    if not pts:
+        return None, None, None
+    allp = np.vstack(pts)
+    fin = np.isfinite(allp[:, 1])
+    return float(allp[:, 0].min()), float(allp[:, 0].max()), float(allp[fin, 1].max()) if np.any(fin) else None
+
+
+def _draw_shapes(ax, shapes, floor, *, labels=True):
+    """Draw the shapes; returns the label annotations written."""
+    from matplotlib.patches import Polygon
+
+    written, legend_done = [], set()
+    for s in shapes:
+        xy = s.xy
+        legend = s.legend if s.legend not in legend_done else None
+        legend_done.add(s.legend)
+        if s.kind == "ground":
+            top = np.where(np.isfinite(xy[:, 1]), xy[:, 1], floor)
+            ax.fill_between(xy[:, 0], top, floor, color=_COLOURS["ground"], linewidth=0, zorder=1, gid=s.role)
+            if np.all(np.isfinite(xy[:, 1])):
+                ax.plot(xy[:, 0], xy[:, 1], color=_COLOURS["bed"], linewidth=1.6, zorder=4, gid=s.role)
+        elif s.kind == "fill":
+            face = _COLOURS["embankment"] if s.role == "embankment" else _COLOURS["fill"]
+            ax.add_patch(Polygon(xy, closed=True, facecolor=face, edgecolor=_COLOURS["structure"], linewidth=1.0,
+                                 zorder=6, gid=s.role))
+        elif s.kind == "outline":
+            ax.add_patch(Polygon(xy, closed=True, facecolor="white", edgecolor=_COLOURS["structure"], linewidth=1.6,
+                                 zorder=6, gid=s.role))
+        elif s.kind == "water":
+            ax.add_patch(Polygon(xy, closed=True, facecolor=_COLOURS["water"], alpha=0.18, linewidth=0, zorder=2,
+                                 gid=s.role))
+            ax.plot(xy[1:3, 0], xy[1:3, 1], color=_COLOURS["water"], linewidth=1.8, zorder=5, gid=s.role)
+        elif s.kind == "drop":
+            ax.plot([xy[0, 0], xy[0, 0]], [xy[0, 1], floor], color=_COLOURS["structure"], linewidth=2.0, zorder=6,
+                    gid=s.role)
+        elif s.role == "road crest":
+            ax.plot(xy[:, 0], xy[:, 1], color=_COLOURS["structure"], linewidth=3.0, solid_capstyle="butt", zorder=7,
+                    gid=s.role)
+        elif s.role == "bank top":
+            ax.plot(xy[:, 0], xy[:, 1], color=_COLOURS["bank"], linewidth=1.3, linestyle=(0, (8, 2, 2, 2)),
+                    zorder=3, gid=s.role, label=legend)
+        elif s.role == "conduit crown":
+            ax.plot(xy[:, 0], xy[:, 1], color=_COLOURS["crown"], linewidth=1.6, zorder=4, gid=s.role, label=legend)
+        else:  # tailwater and rating levels
+            ax.plot(xy[:, 0], xy[:, 1], color=_COLOURS["water"], linewidth=1.4, zorder=5, gid=s.role)
+        if labels and s.label:
+            written.append(_label(ax, s.label, s.anchor, color=_COLOURS["structure"], arrow_colour="0.4"))
+    return written
+
+
+def _frame(ax, reach, x, bed, shapes, top, *, labels=True):
+    """Ground, bed, segment boundaries, structures and limits of a long section; returns the floor."""
+    xb = np.asarray(reach.boundaries)
+    x_lo, x_hi, y_hi = _shape_extent(shapes)
+    tops = [top] + ([y_hi] if y_hi is not None else [])
+    top = float(max(tops))
+    low = float(np.min(bed))
+    span = max(top - low, 1e-6)
+    floor = low - 0.10 * span
+    ax.fill_between(x, bed, floor, color=_COLOURS["ground"], linewidth=0, zorder=1)
+    ax.plot(x, bed, color=_COLOURS["bed"], linewidth=1.6, label="bed", zorder=4)
+    for xk in xb[1:-1]:
+        ax.axvline(xk, color=_COLOURS["boundary"], linewidth=0.8, linestyle=":", zorder=0)
+    _draw_shapes(ax, shapes, floor, labels=labels)
+    ax.set_xlim(min(xb[0], x_lo if x_lo is not None else xb[0]), max(xb[-1], x_hi if x_hi is not None else xb[-1]))
+    ax.set_ylim(floor, top + 0.25 * span)
+    ax.grid(True, color="0.9", linewidth=0.6, zorder=0)
+    ax.set_axisbelow(True)
+    return floor, span
+
+
+def _segment_names(ax, reach, slope_classes):
+    xb = np.asarray(reach.boundaries)
+    for k, seg in enumerate(reach.segments):
+        name = seg.name or f"segment {k}"
+        _label(ax, f"{name}\n{slope_classes[k]}, S0 = {seg.slope:g}", (0.5 * (xb[k] + xb[k + 1]), 0.0),
+               xycoords=ax.get_xaxis_transform(), offset=(0.0, 3.0), arrow_colour=None, fontsize=7.5, color="0.25")
+
+
+def _legend(ax):
+    """The legend below the axes, where it covers neither the profile nor the labels."""
+    handles, names = ax.get_legend_handles_labels()
+    ncol = min(len(names), 4) or 1
+    ax.legend(handles, names, loc="upper center", bbox_to_anchor=(0.5, -0.13), ncol=ncol, fontsize=8,
+              frameon=False)
+
+
+# ---------------------------------------------------------------------------
+# the long section of a solved profile
+# ---------------------------------------------------------------------------
 
 def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: bool = True,
-                 show_critical: bool = True, show_labels: bool = True, title: str | None = None):
+                 show_critical: bool = True, show_labels: bool = True, show_structures: bool = True,
+                 title: str | None = None):
     """Draw the long section of a solved reach.
 
     Parameters
@@ -41,7 +474,7 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
     profile : Profile
         Result of :meth:`gvflow.Reach.solve`.
     ax : matplotlib.axes.Axes, optional
-        Axes to draw on; a new figure (10 x 4.8 in) is made when omitted.
+        Axes to draw on; a new figure (10 x 5.4 in) is made when omitted.
     show_energy : bool
         Draw the energy grade line (stage plus velocity head).
     show_normal : bool
@@ -51,14 +484,23 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
         Draw bed + critical depth over each segment.
     show_labels : bool
         Label each profile piece with its type, mark each jump with its
-        upstream Froude number and name the segments along the bottom.
+        upstream Froude number, label the structures with their levels and
+        name the segments along the bottom; the labels are arranged by
+        :func:`place_labels`.
+    show_structures : bool
+        Draw the structures and lines at their true elevations: a weir's
+        crest, a culvert's barrel (invert to crown, over its length beyond
+        the reach end) with the road crest and embankment above it, a gate's
+        plate from its lip up, a pool's level, a free overfall's brink, the
+        crown of a closed conduit and each segment's bank or lining top
+        (``bank_height``, or the lower end point of a surveyed section).
     title : str, optional
         Figure title; by default the reach name, or the discharge.
 
     Returns
     -------
     matplotlib.axes.Axes
-        The Axes drawn on.
+        The Axes drawn on. The legend sits below the axes.
 
     Examples
     --------
@@ -74,7 +516,7 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
     if ax is None:
         import matplotlib.pyplot as plt
 
-        _, ax = plt.subplots(figsize=(10.0, 4.8), layout="constrained")
+        _, ax = plt.subplots(figsize=(10.0, 5.4), layout="constrained")
 
     reach = profile.reach
     units = profile.units
@@ -82,115 +524,64 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
     x = np.asarray(profile.x)
     bed = np.asarray(profile.bed)
     stage = np.asarray(profile.stage)
-    xb = np.asarray(reach.boundaries)
+    energy = np.asarray(profile.energy_grade)
     nseg = len(reach.segments)
-    zb = reach.bed_elevation(np.column_stack([xb[:-1], xb[1:]]), np.repeat(np.arange(nseg), 2).reshape(-1, 2))
+    xs, zb = _segment_ends(reach)
 
-    # vertical extent: everything drawn, plus room for labels above and ground below
     tops = [stage.max()]
     if show_energy:
-        tops.append(np.max(profile.energy_grade))
+        tops.append(np.max(energy))
     if show_normal and np.any(np.isfinite(profile.normal_depths)):
         tops.append(np.nanmax(zb + np.asarray(profile.normal_depths)[:, None]))
     if show_critical:
         tops.append(np.max(zb + np.asarray(profile.critical_depths)[:, None]))
-    marks = _structure_marks(profile)
-    tops += [mark[2] for mark in marks]
-    top = float(max(tops))
-    low = float(bed.min())
-    span = max(top - low, 1e-6)
-    floor = low - 0.10 * span
+    shapes = _reach_shapes(reach, x, bed, stage, head=float(energy[0])) if show_structures else []
+    floor, span = _frame(ax, reach, x, bed, shapes, float(max(tops)), labels=show_labels)
 
-    ax.fill_between(x, bed, floor, color=_COLOURS["ground"], linewidth=0, zorder=1)
     ax.fill_between(x, bed, stage, color=_COLOURS["water"], alpha=0.18, linewidth=0, zorder=2)
-    ax.plot(x, bed, color=_COLOURS["bed"], linewidth=1.6, label="bed", zorder=4)
     ax.plot(x, stage, color=_COLOURS["water"], linewidth=1.8, label="water surface", zorder=5)
     if show_energy:
-        ax.plot(x, profile.energy_grade, color=_COLOURS["energy"], linewidth=1.1, label="energy grade line",
-                zorder=4)
+        ax.plot(x, energy, color=_COLOURS["energy"], linewidth=1.1, label="energy grade line", zorder=4)
 
     first_n = first_c = True
     for k in range(nseg):
-        xs = xb[k:k + 2]
         yn = float(profile.normal_depths[k])
         if show_normal and np.isfinite(yn):
-            ax.plot(xs, zb[k] + yn, color=_COLOURS["normal"], linestyle=(0, (6, 3)), linewidth=1.0,
+            ax.plot(xs[k], zb[k] + yn, color=_COLOURS["normal"], linestyle=(0, (6, 3)), linewidth=1.0,
                     label="normal depth" if first_n else None, zorder=3)
             first_n = False
         if show_critical:
-            ax.plot(xs, zb[k] + float(profile.critical_depths[k]), color=_COLOURS["critical"],
+            ax.plot(xs[k], zb[k] + float(profile.critical_depths[k]), color=_COLOURS["critical"],
                     linestyle=(0, (2, 2)), linewidth=1.0, label="critical depth" if first_c else None, zorder=3)
             first_c = False
-
-    for xk in xb[1:-1]:
-        ax.axvline(xk, color=_COLOURS["boundary"], linewidth=0.8, linestyle=":", zorder=0)
 
     for i, jp in enumerate(profile.jumps):
         z = float(reach.bed_elevation(jp.x, jp.segment))
         ax.plot([jp.x, jp.x], [z + jp.upstream_depth, z + jp.downstream_depth], color=_COLOURS["jump"],
                 linewidth=3.0, solid_capstyle="butt", label="hydraulic jump" if i == 0 else None, zorder=6)
         if show_labels:
-            top_here = z + jp.downstream_depth
-            ax.annotate(f"jump\nF1 = {jp.froude:.2f}", xy=(jp.x, top_here), xytext=(jp.x, top_here + 0.14 * span),
-                        fontsize=8, color=_COLOURS["jump"], ha="center", va="bottom", zorder=7,
-                        arrowprops={"arrowstyle": "-", "color": _COLOURS["jump"], "linewidth": 0.8},
-                        bbox=_TEXT_BOX)
-
-    for i, (label, xs, z_top, z_bed, ha) in enumerate(marks):
-        ax.plot([xs, xs], [z_bed, z_top], color=_COLOURS["structure"], linewidth=4.0, solid_capstyle="butt",
-                label="structure" if i == 0 else None, zorder=6, clip_on=False)
-        if show_labels:
-            ax.annotate(label, xy=(xs, z_top), xytext=(xs, z_top + 0.06 * span), fontsize=8, ha=ha, va="bottom",
-                        color=_COLOURS["structure"], zorder=7, bbox=_TEXT_BOX)
+            _label(ax, f"jump\nF1 = {jp.froude:.2f}", (jp.x, z + jp.downstream_depth), offset=(0.0, 14.0),
+                   color=_COLOURS["jump"], arrow_colour=_COLOURS["jump"])
 
     if show_labels:
-        _label_pieces(ax, profile, span)
-        for k, seg in enumerate(reach.segments):
-            name = seg.name or f"segment {k}"
-            ax.text(0.5 * (xb[k] + xb[k + 1]), 0.02, f"{name}\n{profile.slope_classes[k]}, S0 = {seg.slope:g}",
-                    transform=ax.get_xaxis_transform(), ha="center", va="bottom", fontsize=7.5, color="0.25",
-                    zorder=7)
+        _label_pieces(ax, profile)
+        _segment_names(ax, reach, profile.slope_classes)
 
-    ax.set_xlim(xb[0], xb[-1])
-    ax.set_ylim(floor, top + 0.22 * span)
     ax.set_xlabel(f"Distance from upstream end [{L}]")
     ax.set_ylabel(f"Elevation [{L}]")
     if title is None:
         title = reach.name or f"Water-surface profile, Q = {profile.discharge:g} {units.discharge}"
     ax.set_title(title)
-    ax.grid(True, color="0.9", linewidth=0.6, zorder=0)
-    ax.set_axisbelow(True)
-    ax.legend(loc="best", fontsize=8, framealpha=0.92)
+    _legend(ax)
+    if show_labels:
+        place_labels(ax)
     return ax
 
 
-def _structure_marks(profile):
-    """(label, x, top, bottom, text alignment) of each structure to draw as a bar.
-
-    End controls mark themselves (Control.plot_mark) from the bed up; a gate
-    between segments is drawn from its lip up to above the water it holds.
-    """
-    marks = []
-    for ctrl, i, ha in ((profile.reach.upstream, 0, "left"), (profile.reach.downstream, -1, "right")):
-        mark = None if ctrl is None else ctrl.plot_mark(float(profile.bed[i]))
-        if mark is not None:
-            marks.append((mark[0], float(profile.x[i]), float(mark[1]), float(profile.bed[i]), ha))
-    xb = profile.reach.boundaries
-    for k, seg in enumerate(profile.reach.segments):
-        if seg.gate is not None:
-            at = np.isclose(profile.x, xb[k])
-            z_bed = float(profile.bed[at][0])
-            held = float(np.max(profile.stage[at]))
-            marks.append(("gate", float(xb[k]), held + 0.15 * (held - z_bed), z_bed + seg.gate.opening, "center"))
-    return marks
-
-
-def _label_pieces(ax, profile, span):
-    """Write each piece's type just above the water surface at its middle; stagger labels that crowd."""
+def _label_pieces(ax, profile):
+    """Write each piece's type just above the water surface at its middle."""
     x = np.asarray(profile.x)
     stage = np.asarray(profile.stage)
-    length = float(x[-1] - x[0]) or 1.0
-    placed = []  # (x, level) of the labels written so far
     for piece in profile.pieces:
         xm = 0.5 * (piece.x_start + piece.x_end)
         inside = ((x >= piece.x_start) & (x <= piece.x_end) & (profile.segment == piece.segment)
@@ -199,11 +590,137 @@ def _label_pieces(ax, profile, span):
             ym = float(np.interp(xm, x[inside], stage[inside]))
         else:
             ym = float(stage[np.argmin(np.abs(x - xm))])
-        near = {lv for xp, lv in placed if abs(xp - xm) < 0.045 * length}
-        level = 0
-        while level in near:
-            level += 1
-        placed.append((xm, level))
-        ax.annotate(piece.label, xy=(xm, ym), xytext=(xm, ym + (0.06 + 0.07 * level) * span), ha="center",
-                    va="bottom", fontsize=9, fontweight="bold", color="0.15", zorder=7,
-                    arrowprops={"arrowstyle": "-", "color": "0.5", "linewidth": 0.6}, bbox=_TEXT_BOX)
+        _label(ax, piece.label, (xm, ym), offset=(0.0, 10.0), fontsize=9, fontweight="bold", color="0.15")
+
+
+# ---------------------------------------------------------------------------
+# Monte Carlo envelope
+# ---------------------------------------------------------------------------
+
+_COEFFICIENT_NAMES = {"manning": "Manning's n", "chezy": "Chezy C", "darcy_weisbach": "sand roughness ks"}
+
+
+def _range_text(u, unit=""):
+    unit = f" {unit}" if unit else ""
+    if u.distribution == "uniform":
+        return f"{u.minimum:g} to {u.maximum:g}{unit} (uniform)"
+    return f"{u.minimum:g} to {u.maximum:g}{unit} (triangular, most likely {u.normal:g})"
+
+
+def uncertain_inputs(mc) -> str:
+    """One sentence naming what a Monte Carlo run sampled and over which ranges."""
+    reach = mc.sweep.reach
+    units = mc.units
+    parts = []
+    if mc.discharge_range is not None:
+        parts.append(f"discharge {_range_text(mc.discharge_range, units.discharge)}")
+    specs = mc.roughness_ranges or []
+    sampled = [(k, s) for k, s in enumerate(specs) if s is not None]
+    if sampled:
+        def coef(k):
+            law = reach.segments[k].roughness.law
+            return _COEFFICIENT_NAMES.get(law, law) + (f" [{units.length}]" if law == "darcy_weisbach" else "")
+
+        if len(sampled) == len(reach.segments) and len({s for _, s in sampled}) == 1:
+            k, s = sampled[0]
+            text = f"{coef(k)} {_range_text(s)} in every segment"
+        else:
+            text = "; ".join(f"{coef(k)} of {reach.segments[k].name or f'segment {k}'} {_range_text(s)}"
+                             for k, s in sampled)
+        if len(sampled) > 1:
+            text += " (one draw for all segments)" if mc.correlated else " (drawn independently per segment)"
+        parts.append(text)
+    if mc.discharge_range is None:
+        parts.append(f"discharge fixed at {reach.discharge:g} {units.discharge}")
+    return "Uncertain: " + "; ".join(parts)
+
+
+def plot_envelope(mc, ax=None, *, quantity: str = "stage", jumps: bool = True, show_structures: bool = True,
+                  title: str | None = None):
+    """Draw a Monte Carlo run's percentile envelope on the reach's long section.
+
+    The band spans the lowest to the highest percentile of the run, the line
+    is the one nearest the median; a line under the title names the
+    uncertain inputs and their ranges. With ``quantity="stage"`` the section
+    is drawn as in :func:`plot_profile` (ground, bed, segment boundaries,
+    bank tops, conduit crowns and structures at their true levels); with
+    ``"depth"`` the depths are drawn over a zero bed, with the bank and
+    crown heights. With ``jumps`` the range of the jump's location (lowest to
+    highest percentile) is shaded and each sample's jump marked on the axis.
+
+    Parameters
+    ----------
+    mc : MonteCarloResult
+    ax : matplotlib.axes.Axes, optional
+        Axes to draw on; a new figure (10 x 5.4 in) is made when omitted.
+    quantity : {"stage", "depth"}
+    jumps : bool
+    show_structures : bool
+    title : str, optional
+        First title line; by default the reach name and the sample count.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+    """
+    if quantity not in ("stage", "depth"):
+        raise InvalidInputError(f"quantity must be 'stage' or 'depth'; got {quantity!r}")
+    if ax is None:
+        import matplotlib.pyplot as plt
+
+        _, ax = plt.subplots(figsize=(10.0, 5.4), layout="constrained")
+    reach = mc.sweep.reach
+    L = mc.units.length
+    x = np.asarray(mc.x)
+    p = mc.percentiles
+    lo, hi = int(np.argmin(p)), int(np.argmax(p))
+    mid = int(np.argmin(np.abs(p - 50.0)))
+    if quantity == "stage":
+        env = mc.stage_envelope
+        bed = np.asarray(mc.bed)
+        shapes = _reach_shapes(reach, x, bed, env[hi]) if show_structures else []
+    else:
+        env = mc.depth_envelope
+        bed = np.zeros_like(x)
+        shapes = []
+        if show_structures:
+            xs, _ = _segment_ends(reach)
+            for k, seg in enumerate(reach.segments):
+                for h, role, legend in ((seg.bank_height, "bank top", "bank or lining top"),
+                                        (seg.section.max_depth if seg.section.closed else None, "conduit crown",
+                                         "conduit crown")):
+                    if h is not None:
+                        shapes.append(_Shape("line", np.column_stack([xs[k], [h, h]]), role, legend=legend))
+    floor, span = _frame(ax, reach, x, bed, shapes, float(np.max(env[hi])))
+    ax.fill_between(x, bed, env[lo], color=_COLOURS["water"], alpha=0.10, linewidth=0, zorder=2)
+    ax.fill_between(x, env[lo], env[hi], color=_COLOURS["water"], alpha=0.35, linewidth=0, zorder=2,
+                    label=f"{p[lo]:g}th to {p[hi]:g}th percentile")
+    ax.plot(x, env[mid], color=_COLOURS["water"], linewidth=1.8, zorder=5, label=f"{p[mid]:g}th percentile")
+    if jumps and np.any(np.isfinite(mc.jump_x)):
+        j = mc.jump_x_percentiles
+        ax.axvspan(j[lo], j[hi], color=_COLOURS["jump"], alpha=0.10, linewidth=0, zorder=0,
+                   label=f"jump location, {p[lo]:g}th to {p[hi]:g}th percentile ({mc.jump_probability:.0%} of "
+                         "samples jump)")
+        where = mc.jump_x[np.isfinite(mc.jump_x)]
+        ax.plot(where, np.full(where.size, 0.0), "|", color=_COLOURS["jump"], ms=8, alpha=0.3,
+                transform=ax.get_xaxis_transform(), zorder=3)
+    _segment_names(ax, reach, _envelope_slope_classes(mc))
+    ax.set_xlabel(f"Distance from upstream end [{L}]")
+    ax.set_ylabel(f"Elevation [{L}]" if quantity == "stage" else f"Depth [{L}]")
+    head = title if title is not None else (f"{reach.name + ': ' if reach.name else ''}{mc.samples} samples, "
+                                            f"{'water-surface' if quantity == 'stage' else 'depth'} envelope")
+    note = textwrap.fill(uncertain_inputs(mc), width=120)
+    ax.set_title(f"{head}\n{note}", fontsize=9.5)
+    _legend(ax)
+    place_labels(ax)
+    return ax
+
+
+def _envelope_slope_classes(mc):
+    """Slope class of each segment when every sample agrees, else the classes seen ("mild/steep")."""
+    classes = np.atleast_2d(mc.sweep.slope_classes)
+    out = []
+    for k in range(classes.shape[1]):
+        seen = list(dict.fromkeys(classes[:, k].tolist()))
+        out.append("/".join(seen))
+    return out

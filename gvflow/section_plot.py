@@ -9,7 +9,7 @@ import math
 
 import numpy as np
 
-from .plot import _COLOURS, _TEXT_BOX
+from .plot import _COLOURS, _label, place_labels
 from .uniform import specific_energy
 from .units import resolve_units
 
@@ -113,11 +113,12 @@ def plot_section(section, depth: float, discharge: float | None = None, ax=None,
             if flow["area"][i] <= 0:
                 continue
             lo, hi = max(bounds[i], left), min(bounds[i + 1], right)
-            ax.text(0.5 * (lo + hi), level - 0.06 * y, f"V = {v:.2f} {u.length}/s", ha="center", va="top",
-                    fontsize=8, bbox=_TEXT_BOX)
+            _label(ax, f"V = {v:.2f} {u.length}/s", (0.5 * (lo + hi), level), offset=(0.0, -6.0), arrow_colour=None,
+                   va="top")
     ax.set_xlabel(f"Offset [{u.length}]")
     ax.set_ylabel(f"Elevation [{u.length}]")
     ax.set_title(title if title is not None else f"Cross-section at depth {y:.3f} {u.length}")
     ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), fontsize=8, frameon=False, ncol=4)
     ax.margins(x=0.02, y=0.12)
+    place_labels(ax)
     return ax

@@ -340,42 +340,20 @@ class MonteCarloResult:
             return np.zeros(0, int), np.zeros(0)
         return np.histogram(self.jump_x[has], bins=bins)
 
-    def plot_envelope(self, ax=None, quantity: str = "stage", jumps: bool = True):
-        """Plot the percentile envelope of ``quantity`` ("stage" or "depth") along the reach.
+    def plot_envelope(self, ax=None, quantity: str = "stage", jumps: bool = True, **kwargs):
+        """Plot the percentile envelope of ``quantity`` ("stage" or "depth") on the reach's long section.
 
         The band spans the lowest to the highest percentile, the line is the
-        middle one; with ``quantity="stage"`` the bed is drawn too. With
-        ``jumps`` the range of jump locations (lowest to highest percentile)
-        is shaded and each sample's jump marked on the axis. Returns the
-        matplotlib Axes.
+        middle one, and the title names the uncertain inputs; with
+        ``quantity="stage"`` the bed, banks and structures are drawn at their
+        levels as in the long section. With ``jumps`` the range of jump
+        locations (lowest to highest percentile) is shaded and each sample's
+        jump marked on the axis. See :func:`gvflow.plot.plot_envelope`.
+        Returns the matplotlib Axes.
         """
-        if quantity not in ("stage", "depth"):
-            raise InvalidInputError(f"quantity must be 'stage' or 'depth'; got {quantity!r}")
-        if ax is None:
-            import matplotlib.pyplot as plt
+        from .plot import plot_envelope
 
-            _, ax = plt.subplots(figsize=(9, 4))
-        L = self.units.length
-        env = self.stage_envelope if quantity == "stage" else self.depth_envelope
-        p = self.percentiles
-        lo, hi = int(np.argmin(p)), int(np.argmax(p))
-        mid = int(np.argmin(np.abs(p - 50.0)))
-        ax.fill_between(self.x, env[lo], env[hi], color="tab:blue", alpha=0.25, lw=0,
-                        label=f"{p[lo]:g}th-{p[hi]:g}th percentile")
-        ax.plot(self.x, env[mid], color="tab:blue", lw=1.5, label=f"{p[mid]:g}th percentile")
-        if quantity == "stage":
-            ax.plot(self.x, self.bed, color="saddlebrown", lw=1.5, label="bed")
-        if jumps and np.any(np.isfinite(self.jump_x)):
-            j = self.jump_x_percentiles
-            ax.axvspan(j[lo], j[hi], color="tab:red", alpha=0.12,
-                       label=f"jump location ({self.jump_probability:.0%} of samples)")
-            ax.plot(self.jump_x[np.isfinite(self.jump_x)], np.full(np.count_nonzero(np.isfinite(self.jump_x)), 0.0),
-                    "|", color="tab:red", ms=8, alpha=0.3, transform=ax.get_xaxis_transform())
-        ax.set_xlabel(f"distance from upstream end [{L}]")
-        ax.set_ylabel(f"water-surface elevation [{L}]" if quantity == "stage" else f"depth [{L}]")
-        ax.set_title(f"{self.samples} samples")
-        ax.legend(loc="best", fontsize="small")
-        return ax
+        return plot_envelope(self, ax=ax, quantity=quantity, jumps=jumps, **kwargs)
 
     def __repr__(self):
         u = self.units

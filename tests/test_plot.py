@@ -9,6 +9,7 @@ import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 from matplotlib.axes import Axes  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
+from matplotlib.text import Text  # noqa: E402
 
 import gvflow as gv  # noqa: E402
 
@@ -152,7 +153,12 @@ def test_everything_drawn_is_inside_the_view(demo):
     ax = demo.plot()
     lo, hi = ax.get_ylim()
     assert lo < demo.bed.min() and hi > demo.energy_grade.max()
-    assert ax.get_xlim() == (0.0, demo.x[-1])
+    # the reach and, upstream of it, the sluice gate at its head
+    x0, x1 = ax.get_xlim()
+    assert x0 < 0.0 and x1 == demo.x[-1]
+    for patch in ax.patches:
+        xy = patch.get_xy()
+        assert x0 <= xy[:, 0].min() and xy[:, 0].max() <= x1 and lo <= xy[:, 1].min() and xy[:, 1].max() <= hi
 
 
 def test_png_written(demo, tmp_path):
@@ -160,3 +166,261 @@ def test_png_written(demo, tmp_path):
     out = tmp_path / "long_section.png"
     ax.figure.savefig(out, dpi=60)
     assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+# ---------------------------------------------------------------------------
+# label placement
+# ---------------------------------------------------------------------------
+
+def _boxes(labels):
+    """Display boxes (x0, y0, x1, y1) of labels with their background boxes, after a fresh layout."""
+    from gvflow.plot import _extent
+
+    labels[0].figure.draw_without_rendering()
+    return np.array([_extent(t) for t in labels])
+
+
+def _assert_apart_and_inside(ax, labels):
+    boxes = _boxes(labels)
+    inside = ax.bbox
+    assert np.all(boxes[:, 0] >= inside.x0) and np.all(boxes[:, 2] <= inside.x1)
+    assert np.all(boxes[:, 1] >= inside.y0) and np.all(boxes[:, 3] <= inside.y1)
+    for i in range(len(boxes)):
+        for j in range(i + 1, len(boxes)):
+            a, b = boxes[i], boxes[j]
+            apart = a[2] <= b[0] or b[2] <= a[0] or a[3] <= b[1] or b[3] <= a[1]
+            assert apart, f"labels {labels[i].get_text()!r} and {labels[j].get_text()!r} overlap"
+
+
+def test_crowded_labels_are_pulled_apart_and_kept_inside():
+    from gvflow.plot import _label, place_labels
+
+    fig = Figure(figsize=(7.0, 4.5), layout="constrained")
+    ax = fig.add_subplot()
+    ax.set_xlim(0.0, 10.0)
+    ax.set_ylim(0.0, 10.0)
+    rng = np.random.default_rng(7)
+    # thirty labels heaped on one point, ten at the corners and edges where they would be cut off
+    labels = [_label(ax, f"label {i}\nsecond line", (5.0 + 0.01 * rng.standard_normal(), 5.0)) for i in range(30)]
+    for x, y in ((0, 0), (10, 10), (0, 10), (10, 0), (5, 10), (5, 0), (0, 5), (10, 5), (9.9, 9.9), (0.1, 0.1)):
+        labels.append(_label(ax, f"edge {x},{y}", (x, y)))
+    before = _boxes(labels)
+    assert np.any(before[:, 2] > ax.bbox.x1) and np.any(before[:, 3] > ax.bbox.y1)  # the test starts crowded
+    shown = place_labels(ax)
+    assert len(shown) == len(labels)
+    _assert_apart_and_inside(ax, labels)
+    # offsets are in points: the arrangement holds when written at another dpi
+    fig.set_dpi(150)
+    _assert_apart_and_inside(ax, labels)
+
+
+def test_labels_avoid_fixed_texts_and_the_legend():
+    from gvflow.plot import _label, place_labels
+
+    fig = Figure(figsize=(6.0, 4.0), layout="constrained")
+    ax = fig.add_subplot()
+    ax.plot([0, 1], [0, 1], label="a line")
+    ax.legend(loc="upper right")
+    fixed = ax.text(0.5, 0.5, "fixed note", ha="center", va="center", fontsize=12)
+    labels = [_label(ax, f"movable {i}", (0.5, 0.5), offset=(0.0, 0.0), va="center") for i in range(5)]
+    labels += [_label(ax, f"near the legend {i}", (0.95, 0.97), offset=(0.0, 0.0), va="top", ha="right")
+               for i in range(3)]
+    place_labels(ax)
+    fig.draw_without_rendering()
+    fb, lb = fixed.get_window_extent(), ax.get_legend().get_window_extent()
+    for t in labels:
+        box = Text.get_window_extent(t)  # the text without its arrow
+        assert not box.overlaps(fb) and not box.overlaps(lb), t.get_text()
+    _assert_apart_and_inside(ax, labels)
+
+
+def test_a_label_with_no_room_left_is_hidden_with_a_warning():
+    from gvflow.plot import _label, place_labels
+
+    fig = Figure(figsize=(2.0, 1.5))
+    ax = fig.add_subplot()
+    labels = [_label(ax, f"a rather long label {i}", (0.5, 0.5)) for i in range(40)]
+    with pytest.warns(gv.GVFlowWarning, match="no free place"):
+        shown = place_labels(ax)
+    assert 0 < len(shown) < len(labels)
+    assert all(not t.get_visible() for t in labels if t not in shown)
+    _assert_apart_and_inside(ax, shown)
+
+
+@pytest.fixture(scope="module")
+def crowded():
+    """Short alternating mild and steep segments: a piece label, a jump and a name for every few metres."""
+    rect = gv.Rectangular(width=3.0)
+    segs = [gv.Segment(length=40.0, slope=0.02 if k % 2 else 0.0008, section=rect, roughness=0.015)
+            for k in range(10)]
+    return gv.Reach(segments=segs, discharge=6.0, upstream=gv.SluiceGate(opening=0.35),
+                    downstream=gv.FixedDepth(1.4)).solve(n_steps=20)
+
+
+def test_long_section_labels_never_overlap_or_leave_the_axes(crowded, tmp_path):
+    assert len(crowded.pieces) >= 10 and len(crowded.jumps) >= 3
+    ax = crowded.plot()
+    labels = [t for t in ax.texts if t.get_gid() == "gvflow-label" and t.get_visible()]
+    assert len(labels) == len(crowded.pieces) + len(crowded.jumps) + len(crowded.reach.segments) + 1  # + the gate
+    _assert_apart_and_inside(ax, labels)
+    ax.figure.savefig(tmp_path / "crowded.png", dpi=70)
+    _assert_apart_and_inside(ax, labels)
+
+
+# ---------------------------------------------------------------------------
+# structures at their true levels
+# ---------------------------------------------------------------------------
+
+def _patch(ax, gid):
+    found = [p for p in ax.patches if p.get_gid() == gid]
+    assert len(found) == 1, f"{len(found)} patches named {gid!r}"
+    xy = found[0].get_xy()
+    return xy[:-1] if len(xy) > 1 and np.array_equal(xy[0], xy[-1]) else xy  # without the closing vertex
+
+
+def _lines(ax, gid):
+    return [ln for ln in ax.get_lines() if ln.get_gid() == gid]
+
+
+def test_weir_crest_and_bank_top_at_their_levels():
+    tr = gv.Trapezoidal(bottom_width=6.0, side_slope=1.5)
+    reach = gv.Reach(segments=[gv.Segment(length=1500.0, slope=0.0006, section=tr, roughness=0.025, bank_height=3.2)],
+                     discharge=20.0, downstream=gv.Weir(crest_height=1.5, crest_length=6.0, tailwater_level=98.5),
+                     datum=98.0)
+    ax = reach.solve(n_steps=20).plot()
+    weir = _patch(ax, "weir")
+    assert weir[:, 0].min() == 1500.0 and weir[:, 1].min() == 98.0 and weir[:, 1].max() == 98.0 + 1.5
+    assert "weir crest 99.50 m" in _texts(ax)
+    bank = _lines(ax, "bank top")[0]
+    np.testing.assert_allclose(bank.get_xdata(), [0.0, 1500.0])
+    np.testing.assert_allclose(bank.get_ydata(), [98.0 + 0.9 + 3.2, 98.0 + 3.2], rtol=1e-12)
+    assert _patch(ax, "tailwater")[:, 1].max() == 98.5
+    assert "bank or lining top" in [t.get_text() for t in ax.get_legend().get_texts()]
+
+
+def test_culvert_barrel_road_and_embankment_at_their_levels():
+    from gvflow.structures import BoxBarrel, RoadCrest
+
+    box = BoxBarrel(span=2.0, rise=1.5, length=30.0, slope=0.005, roughness=0.013)
+    reach = gv.Reach(segments=[gv.Segment(length=300.0, slope=0.002, section=gv.Rectangular(width=4.0),
+                                          roughness=0.03)], discharge=6.0, datum=50.0,
+                     downstream=gv.Culvert(barrel=box, tailwater=1.0, invert_offset=0.1,
+                                           road=RoadCrest(length=40.0, elevation=3.0)))
+    ax = reach.solve(n_steps=20).plot()
+    zi, zo = 50.1, 50.1 - 0.005 * 30.0
+    barrel = _patch(ax, "culvert barrel")
+    np.testing.assert_allclose(barrel, [[300.0, zi], [330.0, zo], [330.0, zo + 1.5], [300.0, zi + 1.5]], rtol=1e-12)
+    road = _lines(ax, "road crest")[0]
+    np.testing.assert_allclose(road.get_ydata(), [zi + 3.0, zi + 3.0], rtol=1e-12)
+    bank = _patch(ax, "embankment")
+    assert bank[:, 1].min() == pytest.approx(zo + 1.5) and bank[:, 1].max() == pytest.approx(zi + 3.0)
+    assert _patch(ax, "tailwater")[:, 1].max() == pytest.approx(zo + 1.0)
+    texts = _texts(ax)
+    assert "road crest 53.10 m" in texts and "culvert box 2.00 x 1.50 m\ninvert 50.10, crown 51.60 m" in texts
+    assert ax.get_xlim()[1] > 330.0
+
+
+def test_gates_hang_from_their_lips_and_the_pool_stands_at_its_level():
+    rect = gv.Rectangular(width=3.0)
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=0.001, section=rect, roughness=0.015),
+                               gv.Segment(length=200.0, slope=0.001, section=rect, roughness=0.015,
+                                          gate=gv.SluiceGate(opening=0.5))],
+                     discharge=5.0, upstream=gv.Pool(level=103.0), downstream=gv.FixedDepth(1.6), datum=100.0)
+    profile = reach.solve(n_steps=20)
+    ax = profile.plot()
+    gate = _patch(ax, "gate")
+    assert gate[:, 1].min() == pytest.approx(100.2 + 0.5)  # bed at the gate 100.2, opening 0.5
+    held = float(np.max(profile.stage[np.isclose(profile.x, 200.0)]))
+    assert gate[:, 1].max() > held  # the plate stands above the water it holds
+    assert _patch(ax, "pool")[:, 1].max() == 103.0
+    gated = gv.demo_reach().solve()
+    plate = _patch(gated.plot(), "gate")
+    assert plate[:, 1].min() == pytest.approx(gated.bed[0] + 0.6) and plate[:, 1].max() > gated.energy_grade[0]
+
+
+def test_conduit_crown_and_overfall_brink():
+    pipe = gv.Circular(diameter=1.2)
+    reach = gv.Reach(segments=[gv.Segment(length=120.0, slope=0.004, section=pipe, roughness=0.013),
+                               gv.Segment(length=80.0, slope=0.001, section=pipe, roughness=0.013)],
+                     discharge=0.8, downstream=gv.FreeOverfall(), datum=20.0)
+    ax = reach.solve(n_steps=20).plot()
+    crowns = _lines(ax, "conduit crown")
+    assert len(crowns) == 2
+    np.testing.assert_allclose(crowns[1].get_ydata(), [20.08 + 1.2, 20.0 + 1.2], rtol=1e-12)
+    brink = _lines(ax, "brink")[0]
+    assert brink.get_xdata()[0] == 200.0 and brink.get_ydata()[0] == 20.0
+    assert brink.get_ydata()[1] == ax.get_ylim()[0]
+    assert "free overfall" in _texts(ax)
+
+
+def test_structures_can_be_left_out(demo):
+    ax = gv.plot_profile(demo, show_structures=False)
+    assert not ax.patches and ax.get_xlim() == (0.0, demo.x[-1])
+
+
+# ---------------------------------------------------------------------------
+# Monte Carlo envelope and the other plots
+# ---------------------------------------------------------------------------
+
+def test_envelope_in_long_section_style_names_what_was_uncertain():
+    from gvflow.structures import BoxBarrel
+
+    rect = gv.Rectangular(width=3.0)
+    reach = gv.Reach(segments=[gv.Segment(length=300.0, slope=0.001, section=rect, roughness=0.015, name="upper",
+                                          bank_height=2.4),
+                               gv.Segment(length=200.0, slope=0.001, section=rect, roughness=0.015)],
+                     discharge=4.0, name="Envelope test reach",
+                     downstream=gv.Culvert(barrel=BoxBarrel(span=2.0, rise=1.5, length=20.0, slope=0.005,
+                                                            roughness=0.013), tailwater=0.9))
+    mc = gv.monte_carlo(reach, 30, roughness=[gv.Uncertain(0.012, 0.015, 0.02), None],
+                        discharge=gv.Uncertain(3.0, 4.0, 5.0, "uniform"), seed=2, n_steps=15)
+    fig = Figure(figsize=(10.0, 5.4), layout="constrained")
+    ax = fig.add_subplot()
+    assert mc.plot_envelope(ax=ax) is ax
+    title = ax.get_title()
+    assert title.startswith("Envelope test reach: 30 samples")
+    flat = " ".join(title.split())
+    assert "Uncertain: discharge 3 to 5 m³/s (uniform)" in flat
+    assert "Manning's n of upper 0.012 to 0.02 (triangular, most likely 0.015)" in flat
+    assert "segment 1" not in flat  # a fixed segment is not named as uncertain
+    p = mc.percentiles
+    median = _line(ax, f"{p[1]:g}th percentile")
+    np.testing.assert_array_equal(median.get_ydata(), mc.stage_envelope[1])
+    assert _line(ax, "bed") is not None and _lines(ax, "bank top")
+    assert _patch(ax, "culvert barrel")[:, 1].max() == pytest.approx(reach.datum + 1.5)
+    band = [c for c in ax.collections if c.get_label() == f"{p[0]:g}th to {p[-1]:g}th percentile"][0]
+    verts = band.get_paths()[0].vertices
+    assert verts[:, 1].min() == pytest.approx(mc.stage_envelope[0].min())
+    assert verts[:, 1].max() == pytest.approx(mc.stage_envelope[-1].max())
+    labels = [t for t in ax.texts if t.get_gid() == "gvflow-label" and t.get_visible()]
+    _assert_apart_and_inside(ax, labels)
+    one = gv.monte_carlo(reach, 10, roughness=gv.Uncertain(0.012, 0.015, 0.02), correlated=True, seed=2, n_steps=10)
+    flat = " ".join(one.plot_envelope().get_title().split())
+    assert ("Manning's n 0.012 to 0.02 (triangular, most likely 0.015) in every segment (one draw for all "
+            "segments); discharge fixed at 4 m³/s") in flat
+
+
+def test_every_plot_takes_an_axes_and_returns_it():
+    from gvflow.structures import CircularBarrel, culvert_headwater
+
+    profile = gv.Reach(segments=[gv.Segment(length=200.0, slope=0.001, section=gv.Rectangular(width=3.0),
+                                            roughness=0.015)], discharge=4.0).solve(n_steps=10)
+    mc = gv.monte_carlo(profile.reach, 8, discharge=gv.Uncertain(3.0, 4.0, 5.0), seed=1, n_steps=10)
+    pipe = CircularBarrel(diameter=1.2, length=30.0, slope=0.01, roughness=0.012)
+    calls = [lambda ax: gv.plot_profile(profile, ax), lambda ax: profile.plot(ax=ax),
+             lambda ax: gv.plot_section(gv.Rectangular(width=3.0), 1.0, discharge=4.0, ax=ax),
+             lambda ax: mc.plot_envelope(ax=ax), lambda ax: mc.plot_envelope(ax=ax, quantity="depth"),
+             lambda ax: culvert_headwater(pipe, np.linspace(0.5, 3.0, 8), tailwater=0.5).plot(ax=ax)]
+    for call in calls:
+        ax = Figure().add_subplot()
+        assert call(ax) is ax
+        assert isinstance(call(None), Axes)
+
+
+def test_importing_gvflow_does_not_import_matplotlib():
+    import subprocess
+    import sys
+
+    code = "import sys, gvflow; print('matplotlib' in sys.modules)"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"

@@ -537,11 +537,11 @@ def test_long_section_marks_the_structures(tmp_path):
     reach = gv.Reach(segments=[seg(800.0, 0.001)], discharge=4.0, upstream=gv.Pool(level=3.5),
                      downstream=gv.Culvert(barrel=BOX, tailwater=1.2, invert_offset=0.2))
     ax = reach.solve().plot()
-    bars = [ln for ln in ax.get_lines() if ln.get_label() == "structure"]
-    assert len(bars) == 1  # labelled once in the legend
     texts = [t.get_text() for t in ax.texts]
-    assert "culvert" in texts and "pool" in texts
-    # the culvert bar reaches the barrel soffit above the inlet invert
-    tops = [max(ln.get_ydata()) for ln in ax.get_lines() if ln.get_linewidth() == 4.0]
-    assert pytest.approx(0.2 + 1.5) in tops and pytest.approx(3.5) in tops
+    assert "pool level 3.50 m" in texts and any(t.startswith("culvert box 2.00 x 1.50 m") for t in texts)
+    # the barrel stands from the inlet invert (0.2 above the bed at the reach end, datum 0) to its soffit
+    barrel = [p for p in ax.patches if p.get_gid() == "culvert barrel"][0].get_xy()
+    assert barrel[:, 1].max() == pytest.approx(0.2 + 1.5) and barrel[:, 1].min() == pytest.approx(0.2 - 0.005 * 30.0)
+    pool = [p for p in ax.patches if p.get_gid() == "pool"][0].get_xy()
+    assert pool[:, 1].max() == pytest.approx(3.5)
     ax.figure.savefig(tmp_path / "culvert.png")

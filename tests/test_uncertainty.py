@@ -163,13 +163,13 @@ def test_envelopes_and_jump_distribution_are_wired_to_the_sweep():
 def test_plot_envelope_labels_units():
     mc = gv.monte_carlo(CHUTE, 20, roughness=gv.Uncertain(0.012, 0.014, 0.017), seed=1, n_steps=20)
     ax = mc.plot_envelope()
-    assert ax.get_xlabel() == "distance from upstream end [m]"
-    assert ax.get_ylabel() == "water-surface elevation [m]"
+    assert ax.get_xlabel() == "Distance from upstream end [m]"
+    assert ax.get_ylabel() == "Elevation [m]"
     import matplotlib.pyplot as plt
 
     fig, ax2 = plt.subplots()
     assert mc.plot_envelope(ax=ax2, quantity="depth") is ax2
-    assert ax2.get_ylabel() == "depth [m]"
+    assert ax2.get_ylabel() == "Depth [m]"
     plt.close("all")
     us = gv.Reach(segments=[gv.Segment(length=1000.0, slope=0.001, section=gv.Rectangular(width=10.0),
                                        roughness=0.014)], discharge=200.0, downstream=gv.FixedDepth(4.0), units="US")

@@ -516,6 +516,8 @@ def plot_performance(res, ax=None, units: UnitsLike = "SI"):
     the allowable headwater; returns the matplotlib Axes."""
     import matplotlib.pyplot as plt
 
+    from ..plot import _label, place_labels
+
     u = resolve_units(units)
     L = u.length
     if ax is None:
@@ -540,14 +542,17 @@ def plot_performance(res, ax=None, units: UnitsLike = "SI"):
                     label=f"{name} control governs in the barrel")
     xmax = float(q.max()) * 1.02
     road = res.road
-    if road is not None:
-        ax.axhline(road.low_point, color="0.3", lw=1.0, ls="-.")
-        ax.annotate(f"road crest (low point) {road.low_point:.2f} {L}", (0.99, road.low_point),
-                    xycoords=("axes fraction", "data"), va="bottom", ha="right", fontsize=8, color="0.3")
+    labels = []
     if res.allowable_headwater is not None:
         ax.axhline(res.allowable_headwater, color="C3", lw=1.0, ls="--")
-        ax.annotate(f"allowable headwater {res.allowable_headwater:.2f} {L}", (0.99, res.allowable_headwater),
-                    xycoords=("axes fraction", "data"), va="top", ha="right", fontsize=8, color="C3")
+        labels.append(_label(ax, f"allowable headwater {res.allowable_headwater:.2f} {L}",
+                             (0.99, res.allowable_headwater), xycoords=("axes fraction", "data"), offset=(0.0, 1.0),
+                             arrow_colour=None, ha="right", color="C3"))
+    if road is not None:
+        ax.axhline(road.low_point, color="0.3", lw=1.0, ls="-.")
+        labels.append(_label(ax, f"road crest (low point) {road.low_point:.2f} {L}", (0.99, road.low_point),
+                             xycoords=("axes fraction", "data"), offset=(0.0, 1.0), arrow_colour=None, ha="right",
+                             color="0.3"))
     ax.set_xlim(0.0, xmax)
     ax.set_ylim(bottom=0.0)
     ax.set_xlabel(f"discharge [{L}³/s]")
@@ -555,4 +560,5 @@ def plot_performance(res, ax=None, units: UnitsLike = "SI"):
     ax.set_title("culvert performance")
     ax.grid(True, alpha=0.3)
     ax.legend(loc="lower right", fontsize=8)
+    place_labels(ax, labels)
     return ax
