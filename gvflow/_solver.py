@@ -539,7 +539,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                     continue
                 jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
             # refine the jumps inside this segment, all scenarios at once
-            _refine(jumps, marcher, seg, x, sub_y, k, notes)
+            _refine(jumps, marcher, seg, x, sub_y, k, notes, pressure_runs)
             gov_sup_end = first_loss == m
             y_end = ysup[:, -1]
         else:
@@ -671,7 +671,52 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
                              f"normal depth {yn[s]:.3f} {units.length}"))
 
 
-def _refine(jumps, marcher, seg, x, sub_y, k, notes):
+def _jump_into_full(jump, marcher, seg, x, sub_y, runs):
+    """Locate a jump whose subcritical side runs full at the station below it.
+
+    Between the stations the supercritical depth is stepped from the station above; on the subcritical
+    side the pressure head is linear in x where the conduit runs full (the grade line at the full-flow
+    friction slope) and, upstream of where the grade line crosses the crown (an end of a full stretch in
+    ``runs``), the free surface stepped upstream from the crown. The jump stands where the two specific
+    forces balance (the full side's includes the pressure on the full area, see :mod:`gvflow._core.flow`),
+    found by Brent's method on x to 1e-10 of the station spacing.
+    """
+    from scipy.optimize import brentq
+
+    s, _, y_sup0, _, k, after, junc = jump
+    top = seg.section.max_depth
+    a, b = float(x[after]), float(x[after + 1])
+    h_a, h_b = float(sub_y[s, after]), float(sub_y[s, after + 1])
+    if h_a > top:
+        t, h_t = a, h_a
+    else:
+        inside = [e for kk, x_up, x_dn in runs[s] if kk == k for e in (x_up, x_dn) if a <= e <= b]
+        t, h_t = (inside[0] if inside else a), top
+    one = _subset(seg, np.array([s]))
+
+    def sub_depth(xq):
+        if xq >= t:
+            return h_b + (h_t - h_b) * (b - xq) / (b - t) if b > t else h_b
+        return marcher.step_to(seg, s, top, t, xq, SUB)
+
+    def sup_depth(xq):
+        return marcher.step_to(seg, s, float(y_sup0), a, xq, SUPER)
+
+    def balance(xq):
+        m = one.specific_force(np.array([[sup_depth(xq), sub_depth(xq)]]))[0]
+        return m[0] - m[1]
+
+    fa, fb = balance(a), balance(b)
+    if not fa > 0.0:
+        xj = a
+    elif not fb < 0.0:
+        xj = b
+    else:
+        xj = brentq(balance, a, b, xtol=1e-10 * (b - a) + 1e-12, rtol=1e-14, maxiter=200)
+    return (s, float(xj), sup_depth(xj), sub_depth(xj), k, after, junc)
+
+
+def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
     """Locate, by root finding, every jump of segment k whose x is still unknown (NaN).
 
     A jump whose two specific forces still differ by more than :data:`JUMP_BALANCE_TOLERANCE` (the
@@ -679,6 +724,13 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes):
     of balancing the other) gets a note saying so.
     """
     rows = [j for j, jp in enumerate(jumps) if jp[4] == k and math.isnan(jp[1])]
+    if rows and seg.section.closed:
+        # a jump whose subcritical side runs full is located against the grade line (_jump_into_full)
+        top = seg.section.max_depth
+        into_full = [j for j in rows if sub_y[jumps[j][0], jumps[j][5] + 1] > top]
+        for j in into_full:
+            jumps[j] = _jump_into_full(jumps[j], marcher, seg, x, sub_y, runs)
+        rows = [j for j in rows if j not in into_full]
     if not rows:
         return
     s_idx = np.array([jumps[j][0] for j in rows])
