@@ -54,9 +54,26 @@ def _labelled(sol, cls, k, r, x0, x1, med, ynk, yck) -> list[ProfilePiece]:
             for lab, kk, rr, a, b in zip(labels, k.tolist(), r.tolist(), x0.tolist(), x1.tolist(), strict=True)]
 
 
+#: regime code given, for the piece search only, to stations where a closed conduit runs full: they
+#: belong to no gradually varied flow piece (a piece ends where the water reaches the crown)
+_FULL = 2
+
+
+def crowns(sol) -> np.ndarray:
+    """Crown height above the invert of each segment's section (infinite for open sections)."""
+    return np.array([sg.section.max_depth for sg in sol.segs], dtype=float)
+
+
+def without_full(rs, ys, ks, crown):
+    """Regime codes ``rs`` with the stations whose depth ``ys`` stands above the crown of their segment
+    ``ks`` (pressure flow) set to :data:`_FULL`."""
+    return np.where(ys > crown[ks], _FULL, rs).astype(np.int64)
+
+
 def scenario_pieces(sol, i, xs, ys, rs, ks, yn, yc) -> list[ProfilePiece]:
     """The labelled pieces of scenario ``i``, from its station sequence (:func:`scenario_sequence`) and
     its normal and critical depth per segment."""
+    rs = without_full(rs, ys, ks, crowns(sol))
     k, r, x0, x1, med = core("pieces", xs.size).one_scenario_pieces(xs, ys, rs, ks, yn, UNIFORM_TOLERANCE)
     return _labelled(sol, sol.slope_class[i][k], k, r, x0, x1, med, yn[k], yc[k])
 
@@ -75,7 +92,8 @@ def profile_pieces(sol, scenarios) -> list[list[ProfilePiece]]:
     for k, sg in enumerate(sol.segs):
         yn[:, k], yc[:, k] = sg.yn[sc], sg.yc[sc]
     s, k, r, x0, x1, med = core("pieces", sol.depth.size).all_pieces(
-        sol.x, np.ascontiguousarray(sol.depth[sc], float), np.ascontiguousarray(sol.regime[sc], np.int64),
+        sol.x, np.ascontiguousarray(sol.depth[sc], float),
+        np.ascontiguousarray(without_full(sol.regime[sc], sol.depth[sc], sol.segment, crowns(sol)), np.int64),
         np.ascontiguousarray(sol.segment, np.int64), ptr, sol.jump_after[rows], sol.jump_x[rows],
         sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows], yn,
         UNIFORM_TOLERANCE)

@@ -64,6 +64,9 @@ class BatchSolution:
     jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
     notes: list = field(default_factory=list)  # per scenario: list of (x, kind, text)
+    # per scenario: list of (segment, x_up, x_down) where the subcritical pass found the conduit full
+    # (pressure flow), before the supercritical profile governs any of it
+    pressure_runs: list = field(default_factory=list)
 
     _PER_SCENARIO = ("depth", "regime", "slope_class")
     _JUMPS = ("jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after", "jump_at_junction")
@@ -84,6 +87,7 @@ class BatchSolution:
                                      cat["yc"], cat["yn"], cb, s0.fl))
         out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
                   notes=[note for p in parts for note in p.notes],
+                  pressure_runs=[run for p in parts for run in p.pressure_runs],
                   jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
                   **{f: np.concatenate([getattr(p, f) for p in parts], axis=0) for f in cls._PER_SCENARIO},
                   **{f: np.concatenate([getattr(p, f) for p in parts]) for f in cls._JUMPS})
@@ -119,15 +123,35 @@ def _check_inside(seg, y, ctrl, end):
             "crown: the conduit would flow full (pressure flow is outside gvflow's free-surface model)")
 
 
-def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
-    """Depth in ``seg_to`` with the specific energy of ``y`` in ``seg_from`` (same bed level).
+def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch, gain: float = 0.0):
+    """Depth in ``seg_to`` with the specific energy of ``y`` in ``seg_from`` plus ``gain``.
 
-    Returns (depth, critical_flag): where the branch has no root the depth is
-    critical and the flag is set.
+    ``gain`` is how far the bed of ``seg_to`` lies below that of ``seg_from`` at the junction (an invert
+    drop: +drop passing downstream, -drop passing upstream); the energy crosses it without loss. Returns
+    (depth, critical_flag): where the branch has no root the depth is critical and the flag is set. On
+    the subcritical branch a closed ``seg_to`` that the energy fills runs full: its depth is the pressure
+    head above the invert, E - alpha Q²/(2 g A_full²) (:func:`_pressure_head_with_energy`).
     """
-    if seg_from.same_section(seg_to):
+    if gain == 0.0 and seg_from.same_section(seg_to):
         return y.copy(), np.zeros(y.shape, bool)
-    return _depth_with_energy(seg_to, seg_from.specific_energy(y), branch)
+    e = seg_from.specific_energy(y) + gain
+    if branch == SUB and seg_to.section.closed:
+        return _pressure_head_with_energy(seg_to, e)
+    return _depth_with_energy(seg_to, e, branch)
+
+
+def _pressure_head_with_energy(seg: SegmentBatch, e):
+    """Subcritical depth in a closed ``seg`` with specific energy ``e``, or its pressure head where ``e``
+    exceeds the energy of the conduit just full (surcharged: head = D + e - E(D)); (depth, critical flag)."""
+    top = seg.section.max_depth
+    e_full = seg.specific_energy(np.full(seg.n, top))
+    over = e > e_full
+    out, flag = np.empty(e.shape), np.zeros(e.shape, bool)
+    out[over] = top + (e - e_full)[over]
+    if not np.all(over):
+        idx = np.flatnonzero(~over)
+        out[idx], flag[idx] = _depth_with_energy(_subset(seg, idx), e[idx], SUB)
+    return out, flag
 
 
 def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):
@@ -139,11 +163,12 @@ def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):
         raise ControlError(f"{gate!r} between segments: {exc}") from None
 
 
-def _check_stop_codes(marcher, seg, code, stop, grp, x_order):
-    """Raise for the scenarios whose march stopped at a conduit's crown (code 2) or without convergence (3)."""
+def _check_stop_codes(marcher, seg, code, stop, grp, x_order, full_ok=False):
+    """Raise for the scenarios whose march stopped at a conduit's crown (code 2, unless ``full_ok``: the
+    caller continues in pressure flow) or without convergence (3)."""
     m = x_order.shape[0]
     full = code == 2
-    if np.any(full):
+    if np.any(full) and not full_ok:
         r = int(np.flatnonzero(full)[0])
         raise NoSolutionError(
             f"the water surface reaches the crown of {seg.section!r} near x = "
@@ -158,11 +183,14 @@ def _check_stop_codes(marcher, seg, code, stop, grp, x_order):
             "method")
 
 
-def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, rival=None):
+def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, rival=None, full_at=None):
     """March a branch; where it fails fill critical depth, restarting where the slope allows.
 
     ``rival`` (n, m): specific force of the competing profile at each station; a
     scenario whose branch falls below it there may stop (depths NaN beyond).
+    ``full_at`` (n,) int, optional: where given, a scenario whose water reaches a
+    conduit's crown stops there (depths NaN beyond) and ``full_at`` receives the
+    first station it could not reach (-1 for the others); without it, that raises.
     """
     n, m = seg.n, x_order.shape[0]
     crit = np.zeros((n, m), bool)
@@ -175,9 +203,12 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
 
     res = march(seg, 0, np.asarray(y0, dtype=float), slice(None))
     if res.code.max() >= 2:
-        _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order)
+        _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order, full_at is not None)
     # first station each scenario's branch could not reach (an overtaken one needs no more)
     stop = np.where(res.code == 4, m, res.n_valid)
+    if full_at is not None:
+        full_at[:] = np.where(res.code == 2, res.n_valid, -1)
+        stop[res.code == 2] = m
     if stop.min() == m:  # every scenario reached the end of the segment or was overtaken
         return res.depth, crit
     cols = np.arange(m)
@@ -194,8 +225,11 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
             res = march(seg.take(grp), start, seg.yc[grp], grp)
             stop = start + res.n_valid
             if res.code.max() >= 2:
-                _check_stop_codes(marcher, seg, res.code, stop, grp, x_order)
+                _check_stop_codes(marcher, seg, res.code, stop, grp, x_order, full_at is not None)
             stop[res.code == 4] = m
+            if full_at is not None:
+                full_at[grp[res.code == 2]] = stop[res.code == 2]
+                stop[res.code == 2] = m
             failed = cols[None, start:] >= stop[:, None]
             y[grp, start:] = np.where(failed, seg.yc[grp, None], res.depth)
             crit[grp, start + 1:] = failed[:, 1:]  # a restart station stays critical
@@ -206,6 +240,91 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
         order = np.argsort(idx)
         idx, j0 = idx[order], j0[order]
     return y, crit
+
+
+#: Gauss-Legendre panels of the crown-crossing integral (:func:`gvflow._core.march.crown_distance`)
+_CROWN_PANELS = 8
+
+
+def _crown_crossing(marcher, seg, rows, x1, y1, x2):
+    """Where the subcritical profile from depth ``y1`` at station ``x1`` (rows ``rows`` of ``seg``) rises to
+    the crown on its way upstream to station ``x2`` < ``x1``: x1 less the x(y) integral from y1 to the
+    crown, kept within [x2, x1] (x2 where the integral finds no crossing: the discrete step overshot)."""
+    out = np.empty(rows.size)
+    core("march", 50 * rows.size).crown_distances(
+        seg.cb, seg.fl, np.ascontiguousarray(rows, np.int64), np.ascontiguousarray(seg.discharge[rows]),
+        seg.slope, np.ascontiguousarray(y1, float), float(seg.section.max_depth), seg.alpha,
+        float(getattr(marcher, "eddy_loss", 0.0)), _CROWN_PANELS, out)
+    out = np.where(np.isfinite(out), out, x1 - x2)
+    return x1 - np.clip(out, 0.0, x1 - x2)
+
+
+def _sub_segment(marcher, seg, xs, y0, c0, can_restart, k, runs):
+    """Subcritical pass over one segment, stations ``xs`` in marching order (upstream), from ``y0``.
+
+    Returns (depth, critical flags) as :func:`_march_with_fallback`. In a closed conduit the water may
+    fill the section: where the free surface reaches the crown (or the depth handed in from below
+    stands above it) the conduit runs full and the depth is the pressure head h above the invert, so
+    the stage is the hydraulic grade line. With the velocity Q/A_full fixed, the energy equation
+    between two stations Δx apart reduces to h_up = h_down + (Sf_full - S0) Δx, Sf_full = (Q/K_full)²,
+    K_full the conveyance at the crown (exact for any friction-slope average, since Sf is constant).
+    Where Sf_full < S0 the grade line falls back to the crown going upstream and the free-surface
+    march resumes there from the crown. Each full stretch is appended to ``runs[s]`` as
+    (k, x_up, x_down).
+    """
+    if not seg.section.closed:
+        return _march_with_fallback(marcher, seg, xs, y0, c0, SUB, can_restart)
+    n, m = seg.n, xs.shape[0]
+    top = seg.section.max_depth
+    rise = seg.friction_slope(np.full(n, top)) - seg.slope  # rise of the pressure head per length upstream
+    y0 = np.asarray(y0, dtype=float)
+    y = np.full((n, m), np.nan)
+    c = np.zeros((n, m), bool)
+    pressure = []  # (scenario, x where the full stretch starts, first station index at or above it, head there)
+
+    def free_run(rows, x_start, j0, y_start, crit0):
+        """March rows from (x_start, y_start); station columns from j0 on (x_start is station j0 itself
+        when x_start == xs[j0])."""
+        on_station = x_start == xs[j0]
+        xarr = xs[j0:] if on_station else np.concatenate([[x_start], xs[j0:]])
+        full_at = np.full(rows.size, -1)
+        yy, cc = _march_with_fallback(marcher, _subset(seg, rows), xarr, np.full(rows.size, y_start) if
+                                      np.ndim(y_start) == 0 else y_start, crit0, SUB, can_restart[rows],
+                                      full_at=full_at)
+        skip = 0 if on_station else 1
+        y[rows, j0:] = yy[:, skip:]
+        c[rows, j0:] = cc[:, skip:]
+        hit = np.flatnonzero(full_at >= 0)
+        if hit.size:
+            jj = full_at[hit]  # first station of xarr not reached, >= 1
+            xt = _crown_crossing(marcher, seg, rows[hit], xarr[jj - 1], yy[hit, jj - 1], xarr[jj])
+            for r, j, x_t in zip(hit.tolist(), jj.tolist(), xt.tolist(), strict=True):
+                pressure.append((int(rows[r]), x_t, j0 + j - skip, top))
+
+    free = np.flatnonzero(~(y0 > top))
+    if free.size:
+        free_run(free, xs[0], 0, y0[free], np.asarray(c0)[free])
+    pressure += [(int(r), xs[0], 0, float(y0[r])) for r in np.flatnonzero(y0 > top)]
+    # a full stretch ends where the grade line meets the crown (only where Sf_full < S0), and the free
+    # surface resumes there; each scenario switches at most once each way (rise keeps its sign)
+    while pressure:
+        s_, x0, j0, h0 = pressure.pop()
+        h = h0 + rise[s_] * (x0 - xs[j0:])
+        x_up = xs[-1]
+        if rise[s_] < 0.0:
+            x_r = x0 + (h0 - top) / rise[s_]  # the grade line meets the crown here
+            back = np.flatnonzero(xs[j0:] < x_r)
+            if back.size:
+                jb = j0 + int(back[0])
+                y[s_, j0:jb] = h[:jb - j0]
+                x_up = x_r
+                free_run(np.array([s_]), x_r, jb, np.array([top]), np.zeros(1, bool))
+            else:
+                y[s_, j0:] = h
+        else:
+            y[s_, j0:] = h
+        runs[s_].append((k, float(x_up), float(x0)))
+    return y, c
 
 
 def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
@@ -247,7 +366,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     else:
         ctrl.check_end("downstream")
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
-        _check_inside(last, y_down, ctrl, "downstream")
+        # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
         governs_down = y_down >= last.yc * (1 - 1e-12)
         must_be_sub = (classes[:, -1] != "steep") & (classes[:, -1] != "critical") & ~governs_down
         if np.any(must_be_sub):
@@ -266,10 +385,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     y_start = np.where(governs_down, y_down, last.yc)
     # a control at critical depth (a brink) makes the end station critical
     c_start = ~governs_down | (np.abs(y_down - last.yc) <= 1e-12 * last.yc)
+    drops = [s.drop for s in segments]
+    pressure_runs = [[] for _ in range(n)]
     for k in range(nseg - 1, -1, -1):
         i0, m = bounds[k]
         xs = x[i0:i0 + m][::-1]
-        y, c = _march_with_fallback(marcher, segs[k], xs, y_start, c_start, SUB, can_sub_restart[k])
+        y, c = _sub_segment(marcher, segs[k], xs, y_start, c_start, can_sub_restart[k], k, pressure_runs)
         sub_y[:, i0:i0 + m] = y[:, ::-1]
         sub_c[:, i0:i0 + m] = c[:, ::-1]
         if k > 0 and segments[k].gate is not None:
@@ -280,9 +401,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             y_start, gate_submerged[k] = _through_gate(gate, segs[k - 1], segs[k], jet, tail)
             c_start = np.zeros(n, bool)
         elif k > 0:
-            y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
-            # critical on the upstream side too where the section is the same, or where it has no subcritical root
-            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]))
+            y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB, -drops[k])
+            # critical on the upstream side too where the section and bed are the same, or where it has no
+            # subcritical root
+            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]) & (drops[k] == 0))
 
     # ---------------- supercritical pass and governance ------------------------------------
     depth = sub_y.copy()
@@ -350,7 +472,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                     continue
                 jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
             # refine the jumps inside this segment, all scenarios at once
-            _refine(jumps, marcher, seg, x, sub_y, k, notes)
+            _refine(jumps, marcher, seg, x, sub_y, k, notes, pressure_runs)
             gov_sup_end = first_loss == m
             y_end = ysup[:, -1]
         else:
@@ -362,7 +484,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         if k + 1 < nseg:
             if act.size and np.any(gov_sup_end):
                 idx = act[gov_sup_end]
-                yt, flag = _transfer(_subset(seg, idx), _subset(segs[k + 1], idx), y_end[gov_sup_end], SUPER)
+                yt, flag = _transfer(_subset(seg, idx), _subset(segs[k + 1], idx), y_end[gov_sup_end], SUPER,
+                                     drops[k + 1])
                 nxt[idx] = yt
                 carried[idx] = True
             j0 = bounds[k + 1][0]
@@ -376,7 +499,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             crit_dn = sub_end & ~crit_up & sub_c[:, j0] & can_sup_start[k + 1]
             if np.any(crit_up):
                 idx = np.flatnonzero(crit_up)
-                yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER)
+                yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER, drops[k + 1])
                 nxt[idx] = yt
                 carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
             nxt = np.where(crit_dn, nseg1.yc, nxt)
@@ -431,8 +554,15 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             notes[s].append((0.0, "upstream control", f"{up.describe(units)} governs"))
         _add_details(notes, up, up_state, depth[:, 0], 0.0)
 
+    if ctrl is not None:
+        top = last.section.max_depth
+        for s in np.flatnonzero(governs_down & (y_down > top)):
+            notes[s].append((float(x[-1]), "submerged outlet",
+                             f"the downstream water level stands {y_down[s] - top:.3f} {units.length} above the crown "
+                             "of the outlet: the grade line in the conduit at its outlet is the tailwater level "
+                             "(the velocity head is lost at the exit)"))
     sol = BatchSolution(x=x, segment=seg_ix, bed=bed, depth=depth, regime=regime, segs=segs,
-                        slope_class=classes, notes=notes)
+                        slope_class=classes, notes=notes, pressure_runs=pressure_runs)
     if jumps:
         arr = list(zip(*jumps, strict=True))
         sol.jump_scenario = np.array(arr[0], int)
@@ -474,7 +604,52 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
                              f"normal depth {yn[s]:.3f} {units.length}"))
 
 
-def _refine(jumps, marcher, seg, x, sub_y, k, notes):
+def _jump_into_full(jump, marcher, seg, x, sub_y, runs):
+    """Locate a jump whose subcritical side runs full at the station below it.
+
+    Between the stations the supercritical depth is stepped from the station above; on the subcritical
+    side the pressure head is linear in x where the conduit runs full (the grade line at the full-flow
+    friction slope) and, upstream of where the grade line crosses the crown (an end of a full stretch in
+    ``runs``), the free surface stepped upstream from the crown. The jump stands where the two specific
+    forces balance (the full side's includes the pressure on the full area, see :mod:`gvflow._core.flow`),
+    found by Brent's method on x to 1e-10 of the station spacing.
+    """
+    from scipy.optimize import brentq
+
+    s, _, y_sup0, _, k, after, junc = jump
+    top = seg.section.max_depth
+    a, b = float(x[after]), float(x[after + 1])
+    h_a, h_b = float(sub_y[s, after]), float(sub_y[s, after + 1])
+    if h_a > top:
+        t, h_t = a, h_a
+    else:
+        inside = [e for kk, x_up, x_dn in runs[s] if kk == k for e in (x_up, x_dn) if a <= e <= b]
+        t, h_t = (inside[0] if inside else a), top
+    one = _subset(seg, np.array([s]))
+
+    def sub_depth(xq):
+        if xq >= t:
+            return h_b + (h_t - h_b) * (b - xq) / (b - t) if b > t else h_b
+        return marcher.step_to(seg, s, top, t, xq, SUB)
+
+    def sup_depth(xq):
+        return marcher.step_to(seg, s, float(y_sup0), a, xq, SUPER)
+
+    def balance(xq):
+        m = one.specific_force(np.array([[sup_depth(xq), sub_depth(xq)]]))[0]
+        return m[0] - m[1]
+
+    fa, fb = balance(a), balance(b)
+    if not fa > 0.0:
+        xj = a
+    elif not fb < 0.0:
+        xj = b
+    else:
+        xj = brentq(balance, a, b, xtol=1e-10 * (b - a) + 1e-12, rtol=1e-14, maxiter=200)
+    return (s, float(xj), sup_depth(xj), sub_depth(xj), k, after, junc)
+
+
+def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
     """Locate, by root finding, every jump of segment k whose x is still unknown (NaN).
 
     A jump whose two specific forces still differ by more than :data:`JUMP_BALANCE_TOLERANCE` (the
@@ -482,6 +657,13 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes):
     of balancing the other) gets a note saying so.
     """
     rows = [j for j, jp in enumerate(jumps) if jp[4] == k and math.isnan(jp[1])]
+    if rows and seg.section.closed:
+        # a jump whose subcritical side runs full is located against the grade line (_jump_into_full)
+        top = seg.section.max_depth
+        into_full = [j for j in rows if sub_y[jumps[j][0], jumps[j][5] + 1] > top]
+        for j in into_full:
+            jumps[j] = _jump_into_full(jumps[j], marcher, seg, x, sub_y, runs)
+        rows = [j for j in rows if j not in into_full]
     if not rows:
         return
     s_idx = np.array([jumps[j][0] for j in rows])

@@ -96,6 +96,14 @@ class Segment(FrozenModel):
         Height of the bank or lining top above the bed [length]: the
         profile's station table reports the freeboard to it, and a warning
         says where the water surface rises above it.
+    drop : float
+        Invert drop at the head of this segment [length]: its bed starts
+        ``drop`` below the downstream end of the segment above (a drop at a
+        manhole or junction between pipes); 0 (default) continues the bed.
+        Not on the first segment. The solver carries the energy across the
+        drop without loss (subcritical flow: E_above = E_below - drop, falling
+        to critical depth at the end of the segment above where that leaves
+        it too little energy; supercritical flow: E_below = E_above + drop).
     """
 
     length: float = Field(gt=0, allow_inf_nan=False)
@@ -105,6 +113,14 @@ class Segment(FrozenModel):
     name: str | None = None
     gate: SluiceGate | None = None
     bank_height: float | None = Field(default=None, gt=0, allow_inf_nan=False)
+    drop: float = Field(default=0.0, ge=0, allow_inf_nan=False)
+
+    @model_validator(mode="after")
+    def _drop_without_gate(self):
+        if self.drop > 0 and self.gate is not None:
+            raise InvalidInputError("drop: a segment with a gate at its head cannot also have an invert drop there; "
+                                    "put the drop on a short segment of its own")
+        return self
 
     @model_validator(mode="after")
     def _roughness_once(self):
@@ -128,8 +144,9 @@ class Segment(FrozenModel):
         label = f"{self.name!r}, " if self.name else ""
         gate = f", gate={self.gate!r}" if self.gate is not None else ""
         rough = f", roughness={self.roughness!r}" if self.roughness is not None else ""
+        drop = f", drop={self.drop:g}" if self.drop else ""
         return (f"Segment({label}length={self.length:g}, slope={self.slope:g}, section={self.section!r}"
-                f"{rough}{gate})")
+                f"{rough}{gate}{drop})")
 
 
 class Reach(FrozenModel):
@@ -171,6 +188,9 @@ class Reach(FrozenModel):
         if self.segments[0].gate is not None:
             raise ControlError("a gate at the head of the first segment is the reach's upstream control: "
                                "give it as Reach(upstream=gv.SluiceGate(...))")
+        if self.segments[0].drop:
+            raise InvalidInputError("segments[0].drop: a drop stands at the junction with the segment above, and "
+                                    "the first segment has none; leave its drop at 0")
         for end in ("upstream", "downstream"):
             ctrl = getattr(self, end)
             if ctrl is not None:
@@ -207,7 +227,7 @@ class Reach(FrozenModel):
 
     def _segment_ends(self) -> tuple[list[float], list[float]]:
         """x and bed elevation of each segment's downstream end; the bed at x in segment k is
-        z_end[k] + S0_k (x_end[k] - x)."""
+        z_end[k] + S0_k (x_end[k] - x). A segment's ``drop`` lowers its bed below the end of the one above."""
         x_end, z_end = [], []
         xb, drop = 0.0, 0.0
         for s in self.segments:
@@ -215,7 +235,7 @@ class Reach(FrozenModel):
             x_end.append(xb)
         for s in reversed(self.segments):
             z_end.append(self.datum + drop)
-            drop += s.slope * s.length
+            drop += s.slope * s.length + s.drop
         z_end.reverse()
         return x_end, z_end
 

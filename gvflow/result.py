@@ -75,6 +75,8 @@ def _coefficients_used(reach, jumps, notes) -> list:
             continue
         out += [(x, replace(rec, used_by=f"{where}, {rec.used_by}" if rec.used_by else where))
                 for rec in ctrl.coefficients()]
+    out += [(x, used("conduit.exit_loss", used_by="submerged conduit outlet"))
+            for x, kind, _ in notes if kind == "submerged outlet"]
     if jumps:
         x = float(jumps[0].x)
         out += [(x, used("jump.length_curve", used_by="hydraulic jump length")),
@@ -99,6 +101,50 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
     return out
 
 
+def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
+    """Length running full in each segment, and the notes on it, for scenario i's governing stations
+    (``x``, ``y``, segment ``seg``, jumps inserted).
+
+    Between two stations both full the whole interval is; between a full and a free one the part from
+    where the grade line crosses the crown (an end of a full stretch of the subcritical pass,
+    ``sol.pressure_runs``) to the full station. A jump's subcritical side above the crown starts a full
+    stretch at the jump.
+    """
+    nseg = len(reach.segments)
+    crown = np.array([s.section.max_depth for s in reach.segments], dtype=float)
+    full = y > crown[seg]
+    lengths = np.zeros(nseg)
+    if not np.any(full):
+        return lengths, []
+    runs = sol.pressure_runs[i] if sol.pressure_runs else []
+    ends = {k: [] for k in range(nseg)}
+    for k, x_up, x_down in runs:
+        ends[k] += [x_up, x_down]
+    for j in range(x.size - 1):
+        k = seg[j]
+        if seg[j + 1] != k or not (full[j] or full[j + 1]):
+            continue
+        xa, xb = x[j], x[j + 1]
+        if full[j] and full[j + 1]:
+            lengths[k] += xb - xa
+            continue
+        inside = [t for t in ends[k] if xa <= t <= xb]
+        t = inside[0] if inside else 0.5 * (xa + xb)
+        lengths[k] += (xb - t) if full[j + 1] else (t - xa)
+    L = reach.resolved_units.length
+    notes = []
+    for k in np.flatnonzero(lengths > 0):
+        sel = (seg == k) & full
+        h = y[sel] - crown[k]
+        xs = x[sel]
+        notes.append((float(xs.min()), "surcharge",
+                      f"segment {k} runs full (surcharged, pressure flow) over {lengths[k]:.2f} {L} from x = "
+                      f"{xs.min():.2f} to {xs.max():.2f} {L}: the grade line stands up to {h.max():.3f} {L} above "
+                      f"its crown (at x = {xs[np.argmax(h)]:.2f} {L}) and rises at the full-flow friction slope "
+                      f"{float(sol.segs[k].friction_slope(np.full(sol.segs[k].n, crown[k]))[i]):.6g}"))
+    return lengths, notes
+
+
 class Profile:
     """Water-surface profile of a reach (immutable result of :meth:`Reach.solve`).
 
@@ -120,6 +166,19 @@ class Profile:
     on), ``coefficients`` (those coefficients as records with their sources,
     see :mod:`gvflow.coefficients`),
     ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
+
+    Closed conduits that run full (surcharged): where a conduit cannot carry
+    the flow with a free surface, ``depth`` is the pressure head above the
+    invert, so ``stage`` is the hydraulic grade line there; ``velocity`` is
+    Q/A_full, ``froude`` 0 (no free surface) and ``regime`` "subcritical".
+    ``surcharged`` (bool per station) says where; ``hydraulic_grade`` is the
+    grade line at every station (the water surface where it is free, the
+    same values as ``stage``); ``head_above_crown`` the grade line above the
+    crown (negative: the air space above a free surface; NaN in open
+    sections); ``surcharged_lengths`` the length running full in each
+    segment and ``max_head_above_crown`` the highest head above a crown
+    (0 without surcharge). Full stretches belong to no profile piece.
+
     Computed on request, one value per station: ``area``, ``top_width``,
     ``hydraulic_radius``, ``shear_stress`` (gamma R Sf), ``bank_height`` and
     ``freeboard`` (to the segment's ``bank_height``); all are columns of
@@ -127,7 +186,7 @@ class Profile:
     """
 
     def __init__(self, *, reach, method, stations, regime, segment, jumps, pieces, controls, normal_depths,
-                 critical_depths, slope_classes):
+                 critical_depths, slope_classes, surcharged_lengths=None):
         self.reach = reach
         self.method = method
         self.units = reach.resolved_units
@@ -149,7 +208,15 @@ class Profile:
         self.normal_depths = normal_depths
         self.critical_depths = critical_depths
         self.slope_classes = slope_classes
-        for name in ("stage", "specific_energy", "energy_grade", "regime", "segment"):
+        crown = np.array([s.section.max_depth for s in reach.segments], dtype=float)[self.segment]
+        self.hydraulic_grade = self.stage
+        self.head_above_crown = np.where(np.isfinite(crown), self.depth - crown, np.nan)
+        self.surcharged = self.depth > crown
+        self.surcharged_lengths = (np.zeros(len(reach.segments)) if surcharged_lengths is None
+                                   else np.asarray(surcharged_lengths, dtype=float))
+        self.max_head_above_crown = float(np.max(self.head_above_crown, where=self.surcharged, initial=0.0))
+        for name in ("stage", "specific_energy", "energy_grade", "regime", "segment", "head_above_crown",
+                     "surcharged", "surcharged_lengths"):
             getattr(self, name).setflags(write=False)
 
     def _state(self) -> tuple:
@@ -159,15 +226,15 @@ class Profile:
         return (self.method, self._stations, self._regime_code, self.segment,
                 [tuple(vars(j).values()) for j in self.jumps], [tuple(vars(p).values()) for p in self.pieces],
                 [(c.x, c.kind, c.text) for c in self.controls], self.normal_depths, self.critical_depths,
-                self.slope_classes)
+                self.slope_classes, self.surcharged_lengths)
 
     @classmethod
     def _from_state(cls, reach, state) -> Profile:
-        method, stations, regime, segment, jumps, pieces, controls, yn, yc, classes = state
+        method, stations, regime, segment, jumps, pieces, controls, yn, yc, classes, full = state
         return cls(reach=reach, method=method, stations=stations, regime=regime, segment=segment,
                    jumps=[Jump(*j) for j in jumps], pieces=[ProfilePiece(*p) for p in pieces],
                    controls=[ControlNote(*c) for c in controls], normal_depths=yn, critical_depths=yc,
-                   slope_classes=classes)
+                   slope_classes=classes, surcharged_lengths=full)
 
     def __reduce__(self):
         return Profile._from_state, (self.reach, self._state())
@@ -186,8 +253,10 @@ class Profile:
         classes = [str(c) for c in sol.slope_class[i]]
         pieces = scenario_pieces(sol, i, x, y, reg, seg, yn, yc)
         # a junction station appears twice; keep one where nothing changes across it
+        drop = np.array([s.drop for s in reach.segments])
         keep = np.ones(x.size, bool)
-        keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1]))
+        keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
+                     & (drop[seg[1:]] == 0))
         x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
@@ -209,11 +278,13 @@ class Profile:
                               segment=int(k2[r]),
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
-        notes = list(sol.notes[i])
+        full_len, full_notes = _surcharge(reach, sol, i, x, y, seg)
+        notes = list(sol.notes[i]) + full_notes
         notes += [(x, "coefficient", rec.line()) for x, rec in _coefficients_used(reach, jumps, sol.notes[i])]
         controls = sorted((ControlNote(float(a), b, c) for a, b, c in notes), key=lambda c: c.x)
         profile = cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
-                      pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes)
+                      pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes,
+                      surcharged_lengths=full_len)
         if any(s.bank_height is not None for s in reach.segments):
             profile._warn_overbank()
         return profile
@@ -334,16 +405,19 @@ class Profile:
         Columns: x, bed, depth, stage, velocity, froude, specific_energy,
         energy_grade, friction_slope, area, top_width, hydraulic_radius,
         shear_stress (gamma R Sf, see :attr:`shear_stress`), freeboard (to the
-        segment's ``bank_height``, NaN where none), segment, regime.
+        segment's ``bank_height``, NaN where none), hydraulic_grade,
+        head_above_crown (NaN in open sections), segment, regime, surcharged.
         """
         names = ["x", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
-                 "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
-        dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
+                 "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard",
+                 "hydraulic_grade", "head_above_crown"]
+        dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13"), ("surcharged", "?")]
         out = np.empty(self.x.size, dtype=dt)
         for n in names:
             out[n] = getattr(self, n)
         out["segment"] = self.segment
         out["regime"] = self.regime
+        out["surcharged"] = self.surcharged
         return out
 
     def to_pandas(self):
@@ -374,7 +448,13 @@ class Profile:
                          f"{yn:>8} {self.critical_depths[k]:>8.3f}")
         lines.append("")
         lines.append("Profile types: " + (", ".join(f"{p.label} (seg {p.segment}, x {p.x_start:.1f}-{p.x_end:.1f})"
-                                                   for p in self.pieces) or "uniform flow only"))
+                                                   for p in self.pieces)
+                                         or ("none (the conduits run full)" if self.surcharged.all()
+                                             else "uniform flow only")))
+        if self.surcharged.any():
+            lines.append("Surcharge: " + ", ".join(f"segment {k} full over {v:.2f} {L}"
+                                                   for k, v in enumerate(self.surcharged_lengths) if v > 0)
+                         + f"; grade line up to {self.max_head_above_crown:.3f} {L} above a crown")
         if self.jumps:
             for jp in self.jumps:
                 lines.append(f"Hydraulic jump at x = {jp.x:.2f} {L}: y1 = {jp.upstream_depth:.3f}, "
@@ -397,8 +477,11 @@ class Profile:
         lines.append(f"{'x':>9} {'bed':>9} {'depth':>8} {'stage':>9} {'V':>7} {'Fr':>6} {'regime':>13}")
         for j in idx:
             lines.append(f"{self.x[j]:>9.2f} {self.bed[j]:>9.3f} {self.depth[j]:>8.3f} {self.stage[j]:>9.3f} "
-                         f"{self.velocity[j]:>7.3f} {self.froude[j]:>6.2f} {self.regime[j]:>13}")
-        lines.append(f"({L}, {u.velocity}; {self.x.size} stations in all)")
+                         f"{self.velocity[j]:>7.3f} {self.froude[j]:>6.2f} {self.regime[j]:>13}"
+                         + (" full" if self.surcharged[j] else ""))
+        lines.append(f"({L}, {u.velocity}; {self.x.size} stations in all"
+                     + ("; full: the conduit runs full, depth is the pressure head and stage the grade line"
+                        if self.surcharged.any() else "") + ")")
         return "\n".join(lines)
 
     def __repr__(self):

@@ -262,12 +262,23 @@ def test_gate_too_wide_open_is_an_error():
         reach.solve()
 
 
-def test_conduit_flowing_full_is_reported():
-    pipe = gv.Circular(diameter=1.2)
-    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=0.005, section=pipe, roughness=0.013)],
-                     discharge=1.0, downstream=gv.FixedDepth(1.25))
-    with pytest.raises(gv.ControlError, match="crown"):
-        reach.solve()
+def test_conduit_under_a_tailwater_above_its_crown_runs_full():
+    """A tailwater above the crown submerges the outlet: the pipe runs full where the grade line stays
+    above its crown (Manning full flow: h = TW + (Sf_full - S0) (L - x), the hand energy equation), and
+    the free surface resumes where the grade line falls to the crown (Sf_full < S0 here)."""
+    d, n, s0, q, tw = 1.2, 0.013, 0.005, 1.0, 1.25
+    pipe = gv.Circular(diameter=d)
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=s0, section=pipe, roughness=n)],
+                     discharge=q, downstream=gv.FixedDepth(tw))
+    p = reach.solve()
+    a = np.pi * d * d / 4
+    sf = (q * n / (a * (d / 4) ** (2 / 3))) ** 2
+    x_crown = 200.0 - (tw - d) / (s0 - sf)
+    full = p.x >= x_crown
+    assert p.surcharged.tolist() == full.tolist()
+    np.testing.assert_allclose(p.depth[full], tw + (sf - s0) * (200.0 - p.x[full]), rtol=0, atol=1e-12)
+    assert p.surcharged_lengths[0] == pytest.approx(200.0 - x_crown, rel=1e-12)
+    assert np.all(p.depth[~full] < d)
 
 
 def test_upstream_control_that_cannot_govern_is_reported_unused():

@@ -9,6 +9,15 @@ unconverged iterate is ever used as an answer.
 Specific energy E = y + alpha Q²/(2 g A²) and specific force
 M = beta Q²/(g A) + A ybar (Chow, *Open-Channel Hydraulics*, 1959, ch. 3); critical
 flow where dE/dy = 0, that is alpha Q² T = g A³ for a section with constant alpha.
+
+Above the crown of a closed conduit (a surcharged, full conduit) the depth y stands
+for the pressure head above the invert, so y is the hydraulic grade line above the
+invert: the area is the full area A_f, E = y + alpha Q²/(2 g A_f²), and the
+pressure on the full area adds A_f (y - D) to the first moment, so
+M = beta Q²/(g A_f) + A_f (y - y_centroid), continuous with the free-surface value
+at the crown (the hydrostatic pressure force of the full section under the grade
+line, as in the momentum balance of a jump that fills a conduit; Chow 1959, §3-4,
+with the pressure term taken at the centroid, from memory).
 """
 
 from __future__ import annotations
@@ -41,9 +50,13 @@ def specific_energy(ch, fl, q, y, alpha):
 
 @kernel
 def specific_force(ch, fl, q, y, alpha):
-    """M = beta(y) Q²/(g A) + A ybar [length³]."""
+    """M = beta(y) Q²/(g A) + A ybar [length³]; above a closed conduit's crown the full area under the
+    pressure head y (module notes)."""
     a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
     al, be = velocity_coefficients(ch, fl, y, alpha)
+    top = max_depth(ch.kind, ch.par)
+    if y > top:
+        m += a * (y - top)
     return be * q * q / (fl.g * a) + m
 
 

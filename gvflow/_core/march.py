@@ -241,6 +241,39 @@ def x_of_y(ch, fl, q, s0, alpha, ce, sxy, ya, yb, panels):
 
 
 @kernel
+def crown_distance(ch, fl, q, s0, y1, ymax, alpha, ce, panels):
+    """Distance upstream from a station at depth y1 to where a subcritical profile rising upstream reaches
+    the crown ymax of a closed conduit: minus the integral of dx/dy = (1 - Fr²)/(S0 - Sf) from y1 to ymax
+    (the x(y) form of the GVF equation, Chow 1959, eq. 9-13, regular at the crown where the top width
+    vanishes). The top width falls as sqrt(ymax - y) there, so the integral is taken in s = sqrt(ymax - y)
+    (dy = -2 s ds), where the integrand is smooth: 6-point Gauss-Legendre on ``panels`` equal panels.
+    NaN where the profile does not rise to the crown (S0 - Sf changes sign on the way, or y1 >= ymax)."""
+    if not y1 < ymax:
+        return math.nan
+    s_hi = math.sqrt(ymax - y1)
+    w = s_hi / panels
+    tot = 0.0
+    for j in range(panels):
+        c = (j + 0.5) * w
+        for i in range(6):
+            s = c + 0.5 * w * _GL_X[i]
+            # dx/dy with the eddy loss, depth rising as x falls (sxy = -1)
+            f = _dxdy(ch, fl, q, s0, alpha, ce, -1.0, ymax - s * s)
+            if not f < 0.0:
+                return math.nan  # not rising upstream here (Sf <= S0): the profile cannot reach the crown
+            tot += _GL_W[i] * 0.5 * w * f * (-2.0 * s)  # dy/ds = -2 s
+    # tot is the integral of dx/dy dy from ymax down to y1 taken as ds from 0 to s_hi: x(y1) - x(ymax)
+    return tot
+
+
+@kernel
+def crown_distances(cb, fl, rows, q, s0, y1, ymax, alpha, ce, panels, out):
+    """:func:`crown_distance` for each element i (scenario rows[i], discharge q[i], depth y1[i])."""
+    for i in range(y1.shape[0]):
+        out[i] = crown_distance(scenario(cb, rows[i]), fl, q[i], s0, y1[i], ymax, alpha, ce, panels)
+
+
+@kernel
 def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
     """March near critical depth in the x(y) form, where the depth changes as the square root of distance.
 

@@ -423,6 +423,16 @@ _c("culvert.exit_loss", "exit loss coefficient kx", 1.0, f"{_HDS5_2012}, ch. 3 (
 
 
 # ---------------------------------------------------------------------------
+# closed conduits running full (storm sewers)
+# ---------------------------------------------------------------------------
+
+_c("conduit.exit_loss", "exit loss coefficient of a conduit running full into standing water (its velocity head "
+   "is lost, so the grade line at the outlet is the tailwater level)", 1.0,
+   "Borda-Carnot loss of a sudden expansion, (V1 - V2)²/2g, into still water (V2 = 0): Henderson, F. M. (1966). "
+   "Open Channel Flow, Macmillan; also White, F. M. Fluid Mechanics, §6.9 (minor losses)", RECALLED,
+   note="the same value as culvert.exit_loss (HDS-5); a tailwater moving away from the outlet would lose less")
+
+# ---------------------------------------------------------------------------
 # road overtopping at a culvert
 # ---------------------------------------------------------------------------
 
