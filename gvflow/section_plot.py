@@ -9,7 +9,8 @@ import math
 
 import numpy as np
 
-from .plot import _COLOURS, _label, place_labels
+from ._labels import _label, place_labels
+from .plot import _COLOURS
 from .uniform import specific_energy
 from .units import resolve_units
 

@@ -174,7 +174,7 @@ def test_png_written(demo, tmp_path):
 
 def _boxes(labels):
     """Display boxes (x0, y0, x1, y1) of labels with their background boxes, after a fresh layout."""
-    from gvflow.plot import _extent
+    from gvflow._labels import _extent
 
     labels[0].figure.draw_without_rendering()
     return np.array([_extent(t) for t in labels])
@@ -193,7 +193,7 @@ def _assert_apart_and_inside(ax, labels):
 
 
 def test_crowded_labels_are_pulled_apart_and_kept_inside():
-    from gvflow.plot import _label, place_labels
+    from gvflow._labels import _label, place_labels
 
     fig = Figure(figsize=(7.0, 4.5), layout="constrained")
     ax = fig.add_subplot()
@@ -215,7 +215,7 @@ def test_crowded_labels_are_pulled_apart_and_kept_inside():
 
 
 def test_labels_avoid_fixed_texts_and_the_legend():
-    from gvflow.plot import _label, place_labels
+    from gvflow._labels import _label, place_labels
 
     fig = Figure(figsize=(6.0, 4.0), layout="constrained")
     ax = fig.add_subplot()
@@ -235,7 +235,7 @@ def test_labels_avoid_fixed_texts_and_the_legend():
 
 
 def test_a_label_with_no_room_left_is_hidden_with_a_warning():
-    from gvflow.plot import _label, place_labels
+    from gvflow._labels import _label, place_labels
 
     fig = Figure(figsize=(2.0, 1.5))
     ax = fig.add_subplot()

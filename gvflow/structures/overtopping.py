@@ -516,7 +516,7 @@ def plot_performance(res, ax=None, units: UnitsLike = "SI"):
     the allowable headwater; returns the matplotlib Axes."""
     import matplotlib.pyplot as plt
 
-    from ..plot import _label, place_labels
+    from .._labels import _label, place_labels
 
     u = resolve_units(units)
     L = u.length
