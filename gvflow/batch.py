@@ -513,7 +513,13 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
         :func:`vary_choices` lists the names a reach accepts. Each distinct
         control is built and checked as if given to the reach (a bad value
         raises the control's own error, naming the scenario). Control
-        numbers stay in the vectorised batch. A slope changes the bed, so
+        numbers stay in the vectorised batch: the profiles of all scenarios
+        are marched together, and each distinct control gives the depth at
+        its end for its own scenarios. That is cheap for a level or a depth;
+        a structure whose relation is solved by iteration (a weir, a
+        culvert) pays it once per distinct value, so a Monte Carlo over a
+        weir's crest costs several times one over roughness alone. A slope
+        changes the bed, so
         the scenarios are solved in groups of equal slopes: a sweep over a
         few slopes costs a few batches, a Monte Carlo over a slope one
         solve per sample.
