@@ -288,6 +288,37 @@ def test_sweep_10000_roughness_scenarios(benchmark):
         assert got.jumps[0].x == pytest.approx(alone.jumps[0].x, rel=1e-12)
 
 
+ROUGHNESS_RANGE = gv.Uncertain(0.012, 0.014, 0.017)  # Manning's n, invented range around the reach's 0.014
+TAILWATER_RANGE = gv.Uncertain(1.3, 1.5, 1.8)  # tailwater depth [m], invented range around 1.5 m
+
+
+def _monte_carlo(benchmark, vary):
+    full = full_size(benchmark)
+    n = 2000 if full else 50
+    reach = chute_reach()
+    gv.monte_carlo(reach, 20, roughness=ROUGHNESS_RANGE, vary=vary, seed=5, n_steps=200)  # load the kernels
+    mc = benchmark.pedantic(gv.monte_carlo, args=(reach, n),
+                            kwargs=dict(roughness=ROUGHNESS_RANGE, vary=vary, seed=5, n_steps=200),
+                            rounds=5 if full else 1, iterations=1)
+    benchmark.extra_info.update(samples=n, stations=int(mc.x.size), varied=sorted(vary or {}))
+    assert mc.sweep.depth.shape == (n, mc.x.size) and np.all(mc.sweep.jump_count == 1)
+    for i in (0, n - 1):  # a sample is the profile of its reach solved alone (to 1e-12)
+        alone = mc.sweep.scenario_reach(i).solve(n_steps=200)
+        np.testing.assert_allclose(mc.sweep[i].depth, alone.depth, rtol=1e-12, atol=0)
+    return mc
+
+
+def test_monte_carlo_2000_roughness(benchmark):
+    """(e) Monte Carlo over the roughness, 2,000 samples at 200 steps per segment: the baseline of (f)."""
+    _monte_carlo(benchmark, None)
+
+
+def test_monte_carlo_2000_roughness_and_tailwater(benchmark):
+    """(f) Monte Carlo over the roughness and the tailwater, 2,000 samples (target: at most twice (e))."""
+    mc = _monte_carlo(benchmark, {"downstream": TAILWATER_RANGE})
+    np.testing.assert_allclose(mc.sweep.depth[:, -1], mc.varied["downstream"], rtol=1e-14)
+
+
 def many_reaches(count):
     """Small, different reaches: one to three mild or steep segments, various discharges and tailwaters."""
     rng = np.random.default_rng(99)

@@ -327,9 +327,22 @@ def _sub_segment(marcher, seg, xs, y0, c0, can_restart, k, runs):
     return y, c
 
 
+def _one(ctrl, s):
+    """The control of scenario ``s``: ``ctrl`` itself, or its scenario's control when it varies per scenario."""
+    pick = getattr(ctrl, "for_scenario", None)
+    return ctrl if pick is None else pick(s)
+
+
 def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
-                critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE) -> BatchSolution:
-    """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None)."""
+                critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, controls=None) -> BatchSolution:
+    """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None).
+
+    ``controls`` replaces controls of the reach for this batch: a dict with keys "upstream",
+    "downstream" or a segment index (the gate at its head), each value a control or a set of
+    per-scenario controls with the same methods (``depth_at`` and ``notes`` answer per scenario,
+    ``for_scenario(s)`` gives one scenario's control, attributes are per-scenario arrays).
+    """
+    controls = {} if controls is None else controls
     units = reach.resolved_units
     segments = reach.segments
     nseg = len(segments)
@@ -359,7 +372,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     sub_c = np.zeros((n, M), bool)
     last = segs[-1]
     end_state = EndState("downstream", last, float(bed[-1]), classes[:, -1])
-    ctrl = reach.downstream
+    ctrl = controls.get("downstream", reach.downstream)
     if ctrl is None:
         y_down = np.where(classes[:, -1] == "mild", last.yn, last.yc)
         governs_down = classes[:, -1] != "steep"
@@ -372,7 +385,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         if np.any(must_be_sub):
             i = int(np.flatnonzero(must_be_sub)[0])
             raise ControlError(
-                f"downstream control {ctrl!r} gives depth {y_down[i]:.4g}, below critical depth "
+                f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, below critical depth "
                 f"{last.yc[i]:.4g} (discharge {q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
                 "subcritical, so its downstream control must be at or above critical depth. For a free "
                 "overfall or a drop use gv.CriticalFlow()")
@@ -394,7 +407,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         sub_y[:, i0:i0 + m] = y[:, ::-1]
         sub_c[:, i0:i0 + m] = c[:, ::-1]
         if k > 0 and segments[k].gate is not None:
-            gate = segments[k].gate
+            gate = controls.get(k, segments[k].gate)
             jet = np.asarray(gate.depth_at(EndState("upstream", segs[k], float(bed[i0]), classes[:, k])), float)
             gate_jet[k] = jet
             tail = np.where(sub_c[:, i0], np.nan, sub_y[:, i0])  # no subcritical water below: free flow
@@ -413,7 +426,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     first = segs[0]
     sup_state = np.full(n, np.nan)
     sup_from_control = np.zeros(n, bool)
-    up = reach.upstream
+    up = controls.get("upstream", reach.upstream)
     if up is not None:
         up.check_end("upstream")
         up_state = EndState("upstream", first, float(bed[0]), classes[:, 0])
@@ -424,8 +437,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         sup_from_control = ok.copy()
         for s in np.flatnonzero(~ok):
             notes[s].append((0.0, "unused control",
-                             f"upstream control {up.describe(units)} does not govern: the flow entering the reach "
-                             "is subcritical and is governed from downstream"))
+                             f"upstream control {_one(up, s).describe(units)} does not govern: the flow entering the "
+                             "reach is subcritical and is governed from downstream"))
     entry = np.isnan(sup_state) & sub_c[:, 0] & can_sup_start[0]
     sup_state = np.where(entry, first.yc, sup_state)
     for s in np.flatnonzero(entry):
@@ -520,28 +533,29 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 s = act[r]
                 if ctrl is not None and governs_down[s]:
                     notes[s].append((float(x[-1]), "jump swept out",
-                                     f"the downstream control ({ctrl.describe(units)}) is too low to hold a jump: "
-                                     "the supercritical flow leaves the reach and the jump forms downstream of it"))
+                                     f"the downstream control ({_one(ctrl, s).describe(units)}) is too low to hold a "
+                                     "jump: the supercritical flow leaves the reach and the jump forms downstream of "
+                                     "it"))
         sup_state = nxt
 
     _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
     near_critical_notes(notes, segs, bounds, x, depth, units)
     for k, jet in gate_jet.items():
         i0 = bounds[k][0]
-        gate = segments[k].gate
+        gate = controls.get(k, segments[k].gate)
         for s in range(n):
             how = ("submerged by the water below it" if gate_submerged[k][s]
                    else f"free flow, jet {jet[s]:.3f} {units.length} deep")
-            notes[s].append((float(x[i0]), "gate", f"{gate.describe(units)} at the head of segment {k}: {how}; "
-                             f"the water upstream stands {depth[s, i0 - 1]:.3f} {units.length} deep"))
+            notes[s].append((float(x[i0]), "gate", f"{_one(gate, s).describe(units)} at the head of segment {k}: "
+                             f"{how}; the water upstream stands {depth[s, i0 - 1]:.3f} {units.length} deep"))
     if ctrl is not None:
         for s in range(n):
             if governs_down[s] and regime[s, -1] != REGIME_SUPER:
-                notes[s].append((float(x[-1]), "downstream control", f"{ctrl.describe(units)} governs"))
+                notes[s].append((float(x[-1]), "downstream control", f"{_one(ctrl, s).describe(units)} governs"))
             elif not governs_down[s]:
                 notes[s].append((float(x[-1]), "unused control",
-                                 f"downstream control {ctrl.describe(units)} does not govern: the flow leaving "
-                                 "the reach is supercritical"))
+                                 f"downstream control {_one(ctrl, s).describe(units)} does not govern: the flow "
+                                 "leaving the reach is supercritical"))
         _add_details(notes, ctrl, end_state, depth[:, -1], float(x[-1]))
     elif reach.downstream is None:
         for s in range(n):
@@ -551,7 +565,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                                  f"no downstream control given: {kind} assumed at the downstream end"))
     if up is not None:
         for s in np.flatnonzero(sup_from_control):
-            notes[s].append((0.0, "upstream control", f"{up.describe(units)} governs"))
+            notes[s].append((0.0, "upstream control", f"{_one(up, s).describe(units)} governs"))
         _add_details(notes, up, up_state, depth[:, 0], 0.0)
 
     if ctrl is not None:

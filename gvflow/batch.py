@@ -25,17 +25,21 @@ import math
 import os
 import pickle
 import sys
+import types
+import typing
 import warnings
 from concurrent.futures import Executor, as_completed
 from functools import cached_property
 
 import numpy as np
+from pydantic import BaseModel
 
 from ._core.codes import REGIME_NAMES
 from ._pieces import profile_pieces
-from ._plausible import arithmetic_guard
+from ._plausible import _check_end_depths, arithmetic_guard
 from ._solver import BatchSolution, solve_batch
-from ._validate import positive_array
+from ._validate import finite_array, positive_array
+from .controls import EndState
 from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 from .friction import check_manning_n
 from .jumps import Jump, _length_ratio, jump_type
@@ -146,8 +150,8 @@ def _scaled_coefficients(rough, factors: np.ndarray) -> np.ndarray:
     return np.array([rough.scaled(float(f)).kernel_spec()[1] for f in factors])  # pragma: no cover
 
 
-def _scenario_inputs(reach, discharge, roughness, roughness_scale):
-    """(discharge (n,), coef (n, K) or None) from the sweep keywords, validated."""
+def _scenario_inputs(reach, discharge, roughness, roughness_scale, vary=None):
+    """(discharge (n,), coef (n, K) or None, varied {name: (n,)}) from the sweep keywords, validated."""
     segs = reach.segments
     nseg = len(segs)
     given = {}
@@ -180,8 +184,11 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale):
         if f.ndim > 1:
             raise InvalidInputError(f"roughness_scale must be a number or a 1-D array; got shape {f.shape}")
         given["roughness_scale"] = f
+    varied = _parse_vary(reach, vary)
+    given.update(varied)
     if not given:
-        raise InvalidInputError("nothing to sweep: give discharge=, roughness= or roughness_scale= as an array")
+        raise InvalidInputError("nothing to sweep: give discharge=, roughness=, roughness_scale= or vary= as an "
+                                "array")
     sizes = {k: (v.shape[0] if v.ndim else 1) for k, v in given.items()}
     empty = [k for k, size in sizes.items() if size == 0]
     if empty:
@@ -204,18 +211,274 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale):
         for k, s in enumerate(segs):
             if s.roughness.law == "manning":
                 check_manning_n(coef[:, k], f"Manning's n of segment {k}")
-    return np.ascontiguousarray(q), None if coef is None else np.ascontiguousarray(coef)
+    varied = {name: np.broadcast_to(v, (n,)).astype(float) for name, v in varied.items()}
+    for v in varied.values():
+        v.setflags(write=False)
+    return np.ascontiguousarray(q), None if coef is None else np.ascontiguousarray(coef), varied
 
 
-def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
+# -- inputs other than discharge and roughness (``vary``) ------------------------------------------
+
+
+def _float_leaves(annotation) -> bool:
+    """Whether a field's annotation admits a float (``float``, ``float | None``, ``Annotated[float, ...]``)."""
+    origin = typing.get_origin(annotation)
+    if origin is typing.Annotated:
+        return _float_leaves(typing.get_args(annotation)[0])
+    if origin in (typing.Union, types.UnionType):
+        return any(_float_leaves(a) for a in typing.get_args(annotation))
+    return annotation is float
+
+
+def _number_fields(model, prefix=()) -> list[tuple[str, ...]]:
+    """Paths of the float fields of a model, nested models included (a culvert's barrel, say)."""
+    out = []
+    for name, info in type(model).model_fields.items():
+        value = getattr(model, name)
+        if isinstance(value, BaseModel):
+            out += _number_fields(value, prefix + (name,))
+        elif _float_leaves(info.annotation):
+            out.append(prefix + (name,))
+    return out
+
+
+def vary_choices(reach) -> dict[str, tuple]:
+    """The names ``vary`` accepts for this reach, each with its target (location, field path).
+
+    Locations: ``"upstream"``, ``"downstream"``, a segment index k (the gate at the head of
+    segment k) and ``"slope"`` (field path: the segment index). A control with a main value
+    (``FixedDepth.depth``, ``FixedStage.elevation``, ``SluiceGate.opening``, ``Pool.level``) is
+    also named by its location alone.
+
+    Examples
+    --------
+    >>> import gvflow as gv
+    >>> from gvflow.batch import vary_choices
+    >>> reach = gv.Reach(segments=[gv.Segment(length=500.0, slope=0.001, section=gv.Rectangular(width=3.0),
+    ...                                       roughness=0.015)], discharge=5.0, downstream=gv.FixedStage(2.0))
+    >>> list(vary_choices(reach))
+    ['downstream', 'downstream.elevation', 'segments.0.slope']
+    """
+    out: dict[str, tuple] = {}
+
+    def control(label, loc, ctrl):
+        main = getattr(type(ctrl), "_value_field", "")
+        if main:
+            out[label] = (loc, (main,))
+        for path in _number_fields(ctrl):
+            out[label + "." + ".".join(path)] = (loc, path)
+
+    if reach.upstream is not None:
+        control("upstream", "upstream", reach.upstream)
+    if reach.downstream is not None:
+        control("downstream", "downstream", reach.downstream)
+    for k, seg in enumerate(reach.segments):
+        out[f"segments.{k}.slope"] = ("slope", k)
+        if seg.gate is not None:
+            control(f"segments.{k}.gate", k, seg.gate)
+    return out
+
+
+def _rebuild(model, updates: dict):
+    """``model`` with the float fields at the paths of ``updates`` replaced, validated like new input."""
+    heads: dict[str, dict] = {}
+    for path, value in updates.items():
+        heads.setdefault(path[0], {})[path[1:]] = value
+    data = {name: getattr(model, name) for name in type(model).model_fields}
+    for head, sub in heads.items():
+        data[head] = sub[()] if () in sub else _rebuild(data[head], sub)
+    return type(model)(**data)
+
+
+def _parse_vary(reach, vary) -> dict[str, np.ndarray]:
+    """``vary`` checked against :func:`vary_choices`: name -> finite values (1-D)."""
+    if vary is None:
+        return {}
+    if not isinstance(vary, dict):
+        raise InvalidInputError(f"vary must be a dict of parameter name -> values; got {type(vary).__name__}")
+    choices = vary_choices(reach)
+    out, seen = {}, {}
+    for name, values in vary.items():
+        if name in ("discharge", "roughness", "roughness_scale"):
+            raise InvalidInputError(f"vary[{name!r}]: give {name} by its own keyword ({name}=...)")
+        if name not in choices:
+            raise InvalidInputError(
+                f"vary: unknown parameter {name!r} for this reach; valid choices are: {', '.join(choices)}. "
+                "A control's level is named by its end ('downstream', 'upstream' or 'segments.K.gate'), another "
+                "of its numbers by the end and the field ('downstream.crest_height'), a bed slope by "
+                "'segments.K.slope'")
+        target = choices[name]
+        if target in seen:
+            raise InvalidInputError(f"vary: {name!r} and {seen[target]!r} name the same parameter; give it once")
+        seen[target] = name
+        v = finite_array(values, f"vary[{name!r}]")
+        if v.ndim > 1:
+            raise InvalidInputError(f"vary[{name!r}] must be a number or a 1-D array; got shape {v.shape}")
+        out[name] = v
+    return out
+
+
+class _PerScenarioControl:
+    """Controls that differ from scenario to scenario, seen by the solver as one control.
+
+    ``depth_at`` and ``notes`` ask each distinct control about its own scenarios;
+    ``for_scenario(s)`` is the control of scenario s; any other attribute is the
+    per-scenario array of that attribute (``gate.opening``, say).
+    """
+
+    def __init__(self, controls, inverse):
+        self.controls = controls
+        self.inverse = np.asarray(inverse, dtype=np.intp)
+        order = np.argsort(self.inverse, kind="stable")  # scenario indices stay sorted within a control
+        cuts = np.flatnonzero(np.diff(self.inverse[order])) + 1
+        self._parts = [(int(self.inverse[g[0]]), g) for g in np.split(order, cuts)]
+
+    def for_scenario(self, s):
+        return self.controls[self.inverse[s]]
+
+    def check_end(self, end):
+        self.controls[0].check_end(end)
+
+    def _states(self, state):
+        for j, idx in self._parts:
+            sub = EndState(state.end, state.seg.take(idx), state.bed_elevation, np.asarray(state.slope_class)[idx])
+            yield self.controls[j], idx, sub
+
+    def depth_at(self, state):
+        out = np.empty(state.seg.n)
+        for ctrl, idx, sub in self._states(state):
+            out[idx] = np.asarray(ctrl.depth_at(sub), dtype=float)
+        return out
+
+    def notes(self, state, depth):
+        out: list = [None] * state.seg.n
+        depth = np.asarray(depth, dtype=float)
+        for ctrl, idx, sub in self._states(state):
+            for i, lines in zip(idx, ctrl.notes(sub, depth[idx]), strict=True):
+                out[i] = lines
+        return out
+
+    def __getattr__(self, name):
+        if name.startswith("_") or name in ("controls", "inverse"):
+            raise AttributeError(name)
+        values = [getattr(c, name) for c in self.controls]
+        if any(callable(v) for v in values):
+            raise AttributeError(f"{name} is a method; call it on one scenario's control (for_scenario)")
+        return np.array(values)[self.inverse]
+
+    def __repr__(self):
+        return f"{self.controls[0]!r} (one of {len(self.controls)} varied per scenario)"
+
+
+class _Scenarios:
+    """How the scenarios of a sweep differ beyond discharge and roughness (``vary``).
+
+    Scenarios sharing their bed slopes form a group, solved together on that group's reach;
+    varied control numbers stay inside a group's batch: every distinct control is built and
+    validated once and answers for its own scenarios.
+    """
+
+    def __init__(self, reach, varied: dict[str, np.ndarray], n: int):
+        self.reach = reach
+        self.varied = varied
+        choices = vary_choices(reach)
+        slopes = [(name, choices[name][1]) for name in varied if choices[name][0] == "slope"]
+        by_loc: dict = {}
+        for name in varied:
+            loc, path = choices[name]
+            if loc != "slope":
+                by_loc.setdefault(loc, []).append((name, path))
+        # groups of equal slopes
+        if slopes:
+            table = np.stack([varied[name] for name, _ in slopes], axis=1)
+            rows, inverse = np.unique(table, axis=0, return_inverse=True)
+            inverse = inverse.ravel()
+            self.groups = []
+            for j, row in enumerate(rows):
+                segs = list(reach.segments)
+                for (name, k), value in zip(slopes, row, strict=True):
+                    try:
+                        segs[k] = _rebuild(segs[k], {("slope",): float(value)})
+                    except GVFlowError as exc:
+                        i = int(np.flatnonzero(inverse == j)[0])
+                        raise InvalidInputError(f"vary[{name!r}] = {value:g} (scenario {i}): {exc}") from None
+                self.groups.append((reach.model_copy(update={"segments": segs}), np.flatnonzero(inverse == j)))
+        else:
+            self.groups = [(reach, np.arange(n))]
+        self.group_of = np.zeros(n, np.intp)
+        self.local = np.zeros(n, np.intp)
+        for g, (_, idx) in enumerate(self.groups):
+            self.group_of[idx] = g
+            self.local[idx] = np.arange(idx.size)
+        # distinct controls per location
+        self.controls: dict = {}
+        for loc, fields in by_loc.items():
+            base = reach.downstream if loc == "downstream" else reach.upstream if loc == "upstream" else \
+                reach.segments[loc].gate
+            table = np.stack([varied[name] for name, _ in fields], axis=1)
+            rows, inverse = np.unique(table, axis=0, return_inverse=True)
+            inverse = inverse.ravel()
+            built = []
+            for j, row in enumerate(rows):
+                try:
+                    built.append(_rebuild(base, {path: float(v) for (_, path), v in zip(fields, row, strict=True)}))
+                except GVFlowError as exc:
+                    i = int(np.flatnonzero(inverse == j)[0])
+                    given = ", ".join(f"{name} = {v:g}" for (name, _), v in zip(fields, row, strict=True))
+                    raise InvalidInputError(f"vary: {given} (scenario {i}): {exc}") from None
+            self.controls[loc] = (built, inverse)
+        self._check_depths()
+
+    def _check_depths(self):
+        """The plausibility checks of a reach's end depths, for every distinct control in every group."""
+        units = self.reach.resolved_units
+        for reach_g, idx in self.groups:
+            for loc, (built, inverse) in self.controls.items():
+                for j in np.unique(inverse[idx]):
+                    try:
+                        _check_end_depths(self._with(reach_g, {loc: built[j]}), units, units.length_per_metre)
+                    except InvalidInputError as exc:
+                        i = int(idx[np.flatnonzero(inverse[idx] == j)[0]])
+                        raise InvalidInputError(f"vary (scenario {i}): {exc}") from None
+
+    @staticmethod
+    def _with(reach, controls: dict):
+        """``reach`` with controls replaced ({"upstream" | "downstream" | segment index: control})."""
+        update, segs = {}, None
+        for loc, ctrl in controls.items():
+            if isinstance(loc, str):
+                update[loc] = ctrl
+            else:
+                segs = list(reach.segments) if segs is None else segs
+                segs[loc] = segs[loc].model_copy(update={"gate": ctrl})
+        if segs is not None:
+            update["segments"] = segs
+        return reach.model_copy(update=update) if update else reach
+
+    def controls_for(self, idx: np.ndarray) -> dict:
+        """The solver's ``controls`` for scenarios ``idx`` (sorted): a control, or per-scenario controls."""
+        out = {}
+        for loc, (built, inverse) in self.controls.items():
+            inv = inverse[idx]
+            out[loc] = built[int(inv[0])] if np.all(inv == inv[0]) else _PerScenarioControl(built, inv)
+        return out
+
+    def reach_of(self, i: int):
+        """Scenario i's reach, discharge and roughness aside: its group's slopes and its own controls."""
+        reach_g = self.groups[self.group_of[i]][0]
+        return self._with(reach_g, {loc: built[inverse[i]] for loc, (built, inverse) in self.controls.items()})
+
+
+def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=None, method="standard_step",
           n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE,
           progress=None, chunk_size: int | None = None, **options) -> SweepResult:
-    """Solve one reach for many scenarios of discharge and roughness at once.
+    """Solve one reach for many scenarios of discharge, roughness, control levels, structures and slopes.
 
-    Scenario i takes ``discharge[i]`` and the roughness of row i; arrays of
-    the same length pair up scenario by scenario, a single value applies to
-    every scenario (for every combination of two swept inputs build a grid
-    with :func:`numpy.meshgrid` and pass the flattened arrays).
+    Scenario i takes ``discharge[i]``, the roughness of row i and value i of
+    every array in ``vary``; arrays of the same length pair up scenario by
+    scenario, a single value applies to every scenario (for every
+    combination of two swept inputs build a grid with
+    :func:`numpy.meshgrid` and pass the flattened arrays).
 
     Parameters
     ----------
@@ -231,6 +494,36 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     roughness_scale : array_like, shape (n,), optional
         Factor multiplying every segment's resistance, with the semantics of
         the roughness objects' ``scaled``: Manning n·f, Chezy C/f, ks·f.
+    vary : dict of str to array_like, shape (n,), optional
+        Other inputs of the reach, each named by its field path in the reach
+        and given one value per scenario, in the field's own unit:
+
+        * ``"downstream"``, ``"upstream"``: the main value of that end's
+          control: the depth of a :class:`~gvflow.FixedDepth`, the level of a
+          :class:`~gvflow.FixedStage` or :class:`~gvflow.Pool`, the opening
+          of a :class:`~gvflow.SluiceGate` (e.g. a tailwater level).
+        * ``"downstream.FIELD"``, ``"upstream.FIELD"``: any number of that
+          control, nested ones too: ``"downstream.crest_height"`` and
+          ``"downstream.tailwater_level"`` of a :class:`~gvflow.Weir`,
+          ``"downstream.tailwater"`` and ``"downstream.barrel.span"`` of a
+          :class:`~gvflow.Culvert`, ``"upstream.contraction"``...
+        * ``"segments.K.gate"``, ``"segments.K.gate.FIELD"``: the gate at
+          the head of segment K.
+        * ``"segments.K.slope"``: the bed slope of segment K [-].
+
+        :func:`vary_choices` lists the names a reach accepts. Each distinct
+        control is built and checked as if given to the reach (a bad value
+        raises the control's own error, naming the scenario). Control
+        numbers stay in the vectorised batch: the profiles of all scenarios
+        are marched together, and each distinct control gives the depth at
+        its end for its own scenarios. That is cheap for a level or a depth;
+        a structure whose relation is solved by iteration (a weir, a
+        culvert) pays it once per distinct value, so a Monte Carlo over a
+        weir's crest costs several times one over roughness alone. A slope
+        changes the bed, so
+        the scenarios are solved in groups of equal slopes: a sweep over a
+        few slopes costs a few batches, a Monte Carlo over a slope one
+        solve per sample.
     method : str or Marcher subclass
         Marcher, as in :meth:`Reach.solve`.
     n_steps, max_step, critical_tolerance :
@@ -254,8 +547,9 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     ------
     InvalidInputError
         Nothing to sweep, arrays of mismatched lengths, non-positive or
-        non-finite values, or a 1-D roughness array on segments with
-        different friction laws.
+        non-finite values, a 1-D roughness array on segments with
+        different friction laws, or a name in ``vary`` this reach does not
+        have (the message lists the valid ones).
 
     Examples
     --------
@@ -268,11 +562,22 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
     (3, (3, 101))
     >>> result.profile_types
     [['M1'], ['M1'], ['M1']]
+
+    A tailwater level and a weir's crest:
+
+    >>> tail = reach.sweep(vary={"downstream": [1.8, 2.0, 2.2]})
+    >>> tail.depth[:, -1].tolist()
+    [1.8, 2.0, 2.2]
+    >>> weir = reach.model_copy(update={"downstream": gv.Weir(crest_height=1.5)})
+    >>> crest = weir.sweep(vary={"downstream.crest_height": [1.2, 1.5]})
+    >>> crest.depth_at(500.0).round(4).tolist()
+    [2.0917, 2.4019]
     """
     marcher = get_marcher(method, **options)
     n_steps, max_step = _check_steps(n_steps, max_step)
-    q, coef = _scenario_inputs(reach, discharge, roughness, roughness_scale)
+    q, coef, varied = _scenario_inputs(reach, discharge, roughness, roughness_scale, vary)
     n = q.size
+    plan = _Scenarios(reach, varied, n)
     show = progress_wanted(progress)
     if chunk_size is None:
         chunk = max(1000, math.ceil(n / 50)) if show else n
@@ -280,21 +585,59 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
         if not isinstance(chunk_size, (int, np.integer)) or isinstance(chunk_size, bool) or chunk_size < 1:
             raise InvalidInputError(f"chunk_size must be a positive integer; got {chunk_size!r}")
         chunk = int(chunk_size)
-    bar = _bar(progress, n, "sweep", "scenario") if n > chunk else _NoBar()
-    parts = []
+    bar = _bar(progress, n, "sweep", "scenario") if n > chunk or len(plan.groups) > 1 else _NoBar()
+    sols = []
     try:
-        for start in range(0, n, chunk):
-            sl = slice(start, min(start + chunk, n))
-            with arithmetic_guard():
-                parts.append(solve_batch(reach, marcher, q[sl], None if coef is None else coef[sl], n_steps,
-                                         max_step, critical_tolerance))
-            bar.update(sl.stop - sl.start)
+        for reach_g, idx in plan.groups:
+            parts = []
+            for start in range(0, idx.size, chunk):
+                sub = idx[start:start + chunk]
+                with arithmetic_guard():
+                    parts.append(solve_batch(reach_g, marcher, q[sub], None if coef is None else coef[sub], n_steps,
+                                             max_step, critical_tolerance, controls=plan.controls_for(sub)))
+                bar.update(sub.size)
+            sols.append(BatchSolution.concatenate(parts))
     finally:
         bar.close()
-    sol = BatchSolution.concatenate(parts)
     if coef is None:
-        coef = np.stack([s.coef for s in sol.segs], axis=1)
-    return SweepResult(reach, sol, q, coef, method=getattr(marcher, "name", str(method)))
+        coef = np.empty((n, len(reach.segments)))
+        for (_, idx), sol in zip(plan.groups, sols, strict=True):
+            coef[idx] = np.stack([s.coef for s in sol.segs], axis=1)
+    return SweepResult(reach, sols if len(sols) > 1 else sols[0], q, coef,
+                       method=getattr(marcher, "name", str(method)), scenarios=plan)
+
+
+def _jumps_of(sol: BatchSolution, discharge: np.ndarray, g: float):
+    """(scenario, Jump) for every jump of ``sol``, by scenario then x (as in :attr:`Profile.jumps`)."""
+    nj = sol.jump_scenario.size
+    fr = np.empty(nj)
+    loss = np.empty(nj)
+    junc = sol.jump_at_junction.astype(bool)
+    k2 = sol.jump_segment.astype(int)
+    k1 = np.where(junc, k2 - 1, k2)
+    for k in np.unique(np.concatenate([k1, k2])) if nj else []:
+        seg = sol.segs[k]
+        up = np.flatnonzero(k1 == k)
+        if up.size:
+            sub = seg.take(sol.jump_scenario[up])
+            y1 = sol.jump_y1[up]
+            a1, _, t1, _, _ = sub.properties(y1)
+            q = discharge[sol.jump_scenario[up]]
+            fr[up] = q / a1 * np.sqrt(t1 / (g * a1))
+            loss[up] = sub.specific_energy(y1)
+        dn = np.flatnonzero(k2 == k)
+        if dn.size:
+            sub = seg.take(sol.jump_scenario[dn])
+            loss[dn] -= sub.specific_energy(sol.jump_y2[dn])
+    out = []
+    for j in range(nj):
+        y1, y2, f = float(sol.jump_y1[j]), float(sol.jump_y2[j]), float(fr[j])
+        out.append((int(sol.jump_scenario[j]), Jump(
+            x=float(sol.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=f,
+            energy_loss=float(loss[j]), length=float(_length_ratio(max(f, 1.0)) * y2),
+            kind=jump_type(max(f, 1.0)), segment=int(k2[j]),
+            where="at a segment junction" if junc[j] else "in segment")))
+    return out
 
 
 # -- the stacked result -----------------------------------------------------------------------------
@@ -316,8 +659,8 @@ class SweepResult:
     Attributes
     ----------
     reach : Reach
-        The reach swept (its own discharge and roughness are not used where
-        swept).
+        The reach swept (its own discharge, roughness and other inputs are
+        not used where swept).
     method : str
         Marcher name.
     discharge : ndarray, shape (n,)
@@ -325,8 +668,12 @@ class SweepResult:
     roughness : ndarray, shape (n, K)
         Roughness coefficient of each scenario and segment, in the segment's
         law (Manning n, Chezy C or sand roughness ks).
-    x, bed : ndarray, shape (M,)
-        Distance from the upstream end and bed elevation [length].
+    varied : dict of str to ndarray, shape (n,)
+        The inputs given in ``vary``, by name, one value per scenario.
+    x : ndarray, shape (M,)
+        Distance from the upstream end [length].
+    bed : ndarray, shape (M,), or (n, M) when the slopes vary
+        Bed elevation [length].
     segment : ndarray of int, shape (M,)
         Segment index of each station.
     depth, stage : ndarray, shape (n, M)
@@ -351,27 +698,54 @@ class SweepResult:
         Per scenario, as in :attr:`Profile.profile_types`.
     """
 
-    def __init__(self, reach, solution: BatchSolution, discharge, roughness, method: str = "standard_step"):
+    def __init__(self, reach, solution, discharge, roughness, method: str = "standard_step", scenarios=None):
         self.reach = reach
         self.method = method
         self.units = reach.resolved_units
-        self._sol = solution
         self.discharge = np.asarray(discharge, float)
         self.roughness = np.asarray(roughness, float)
-        self.x = solution.x
-        self.bed = solution.bed
-        self.segment = solution.segment
-        self.depth = solution.depth
-        self.regime = solution.regime.astype(np.int8)
-        self.normal_depths = np.stack([s.yn for s in solution.segs], axis=1)
-        self.critical_depths = np.stack([s.yc for s in solution.segs], axis=1)
-        self.slope_classes = solution.slope_class.astype(str)
-        self.jump_scenario = solution.jump_scenario
-        self.jump_x = solution.jump_x
-        self.jump_upstream_depth = solution.jump_y1
-        self.jump_downstream_depth = solution.jump_y2
-        self.jump_segment = solution.jump_segment
         n = self.discharge.size
+        self._plan = _Scenarios(reach, {}, n) if scenarios is None else scenarios
+        self.varied = dict(self._plan.varied)
+        sols = [solution] if isinstance(solution, BatchSolution) else list(solution)
+        # (scenario indices, solution) of each group of scenarios solved together
+        self._parts = [(idx, sol) for (_, idx), sol in zip(self._plan.groups, sols, strict=True)]
+        first = sols[0]
+        self.x = first.x
+        self.segment = first.segment
+        if len(sols) == 1:
+            sol = first
+            self.bed = sol.bed
+            self.depth = sol.depth
+            self.regime = sol.regime.astype(np.int8)
+            self.normal_depths = np.stack([s.yn for s in sol.segs], axis=1)
+            self.critical_depths = np.stack([s.yc for s in sol.segs], axis=1)
+            self.slope_classes = sol.slope_class.astype(str)
+            jumps = (sol.jump_scenario, sol.jump_x, sol.jump_y1, sol.jump_y2, sol.jump_segment, sol.jump_after,
+                     sol.jump_at_junction)
+        else:
+            m, k = first.x.size, len(first.segs)
+            self.depth = np.empty((n, m))
+            self.regime = np.empty((n, m), np.int8)
+            bed = np.empty((n, m))
+            self.normal_depths, self.critical_depths = np.empty((n, k)), np.empty((n, k))
+            self.slope_classes = np.empty((n, k), dtype=first.slope_class.astype(str).dtype)
+            rows = []
+            for idx, sol in self._parts:
+                self.depth[idx] = sol.depth
+                self.regime[idx] = sol.regime
+                bed[idx] = sol.bed
+                self.normal_depths[idx] = np.stack([s.yn for s in sol.segs], axis=1)
+                self.critical_depths[idx] = np.stack([s.yc for s in sol.segs], axis=1)
+                self.slope_classes[idx] = sol.slope_class.astype(self.slope_classes.dtype)
+                rows.append((idx[sol.jump_scenario], sol.jump_x, sol.jump_y1, sol.jump_y2, sol.jump_segment,
+                             sol.jump_after, sol.jump_at_junction))
+            self.bed = bed[0].copy() if np.all(bed == bed[0]) else bed
+            jumps = [np.concatenate(c) for c in zip(*rows, strict=True)]
+            order = np.lexsort((jumps[1], jumps[0]))  # by scenario, then x
+            jumps = [c[order] for c in jumps]
+        (self.jump_scenario, self.jump_x, self.jump_upstream_depth, self.jump_downstream_depth, self.jump_segment,
+         self._jump_after, self._jump_at_junction) = jumps
         self.jump_count = np.bincount(self.jump_scenario, minlength=n)
         first = np.full(n, np.nan)
         # jumps are ordered by scenario then x: the first row of each scenario is its most upstream jump
@@ -393,7 +767,9 @@ class SweepResult:
         duplicates). Variables ``depth``, ``stage``, ``velocity``, ``froude``,
         ``regime`` (scenario, station), ``roughness``, ``normal_depth``,
         ``critical_depth`` (scenario, segment_index) and ``jump_count``,
-        ``first_jump_x`` (scenario).
+        ``first_jump_x`` (scenario); each input given in ``vary`` is a
+        coordinate along ``scenario`` under its name (``bed`` is on
+        (scenario, station) when the slopes vary).
         """
         xr = import_xarray()
         L = self.units.length
@@ -418,8 +794,9 @@ class SweepResult:
                 "station": np.arange(self.x.size),
                 "discharge": ("scenario", np.asarray(self.discharge), {"units": self.units.discharge}),
                 "x": ("station", np.asarray(self.x), {"units": L}),
-                "bed": ("station", np.asarray(self.bed), {"units": L}),
+                "bed": (("station",) if self.bed.ndim == 1 else station["dims"], np.asarray(self.bed), {"units": L}),
                 "segment": ("station", np.asarray(self.segment)),
+                **{name: ("scenario", np.asarray(v)) for name, v in self.varied.items()},
             },
             attrs={"method": self.method, "units": self.units.name},
         )
@@ -428,7 +805,7 @@ class SweepResult:
     @cached_property
     def stage(self) -> np.ndarray:
         """Water-surface elevation [length], shape (n, M)."""
-        out = self.bed[None, :] + self.depth
+        out = self.bed + self.depth
         out.setflags(write=False)
         return out
 
@@ -436,11 +813,14 @@ class SweepResult:
     def _kinematics(self):
         a = np.empty(self.depth.shape)
         t = np.empty(self.depth.shape)
-        for k, s in enumerate(self._sol.segs):
-            sel = self.segment == k
-            props = s.properties(self.depth[:, sel])
-            a[:, sel] = props[0]
-            t[:, sel] = props[2]
+        for idx, sol in self._parts:
+            whole = idx.size == len(self)
+            for k, s in enumerate(sol.segs):
+                cols = np.flatnonzero(self.segment == k)
+                at = (slice(None), cols) if whole else np.ix_(idx, cols)
+                props = s.properties(self.depth[at])
+                a[at] = props[0]
+                t[at] = props[2]
         v = self.discharge[:, None] / a
         fr = v * np.sqrt(t / (self.units.g * a))
         v.setflags(write=False)
@@ -457,53 +837,98 @@ class SweepResult:
         """Froude number V / sqrt(g A/T) [-], shape (n, M) (computed on first use)."""
         return self._kinematics[1]
 
+    # -- answers at any point -------------------------------------------------------------------
+    def _query_x(self, x) -> tuple[np.ndarray, bool]:
+        xq = finite_array(x, "x")
+        if xq.ndim > 1:
+            raise InvalidInputError(f"x must be a number or a 1-D array of distances; got shape {xq.shape}")
+        if np.any((xq < self.x[0] - 1e-9) | (xq > self.x[-1] + 1e-9)):
+            raise InvalidInputError(f"x must lie within the reach, 0 to {self.x[-1]:g}; got {x!r}")
+        return np.atleast_1d(xq), xq.ndim == 0
+
+    def depth_at(self, x) -> np.ndarray:
+        """Depth of every scenario at distance(s) ``x`` from the upstream end [length].
+
+        Linear between stations, as :meth:`Profile.depth_at` of each scenario
+        (``result.depth_at(x)[i] == result[i].depth_at(x)``): across a jump
+        each side is interpolated to its own sequent depth, at the jump and at
+        a segment junction the downstream value is returned.
+
+        Parameters
+        ----------
+        x : float or array_like, shape (m,)
+            Distances within the reach [length].
+
+        Returns
+        -------
+        ndarray, shape (n,) for a number x, (n, m) for an array
+        """
+        xq, scalar = self._query_x(x)
+        xs = self.x
+        # the station interval of each x; at a repeated x (a junction) the downstream one, as numpy.interp
+        j = np.clip(np.searchsorted(xs, xq, side="right") - 1, 0, xs.size - 2)
+        x0, x1 = xs[j], xs[j + 1]
+        y0, y1 = self.depth[:, j], self.depth[:, j + 1]
+        out = (y1 - y0) / (x1 - x0) * (xq - x0) + y0
+        # a jump between two stations: interpolate to its sequent depths on each side
+        inside = np.flatnonzero(~self._jump_at_junction.astype(bool))
+        if inside.size:
+            a = self._jump_after[inside]
+            hit_jump, hit_q = np.nonzero(a[:, None] == j[None, :])
+            if hit_jump.size:
+                r = inside[hit_jump]
+                s = self.jump_scenario[r]
+                xj, ya, yb = self.jump_x[r], self.jump_upstream_depth[r], self.jump_downstream_depth[r]
+                xa, xb = xs[a[hit_jump]], xs[a[hit_jump] + 1]
+                da, db = self.depth[s, a[hit_jump]], self.depth[s, a[hit_jump] + 1]
+                xv = xq[hit_q]
+                with np.errstate(divide="ignore", invalid="ignore"):
+                    before = (ya - da) / (xj - xa) * (xv - xa) + da
+                    after = np.where(xb > xj, (db - yb) / (xb - xj) * (xv - xj) + yb, db)
+                out[s, hit_q] = np.where(xv < xj, before, after)
+        return out[:, 0] if scalar else out
+
+    def stage_at(self, x) -> np.ndarray:
+        """Water-surface elevation of every scenario at distance(s) ``x`` [length].
+
+        :meth:`depth_at` plus the bed there (each scenario's own bed when the
+        slopes vary). Shape (n,) for a number x, (n, m) for an array of m.
+        """
+        xq, scalar = self._query_x(x)
+        depth = self.depth_at(xq)
+        bed = np.empty(depth.shape)
+        for reach_g, idx in self._plan.groups:
+            bed[idx] = reach_g.bed_elevation(xq)
+        out = depth + bed
+        return out[:, 0] if scalar else out
+
     @cached_property
     def jumps(self) -> list[list[Jump]]:
         """Hydraulic jumps of every scenario, upstream to downstream (as in :attr:`Profile.jumps`)."""
-        sol = self._sol
-        nj = self.jump_scenario.size
-        fr = np.empty(nj)
-        loss = np.empty(nj)
-        junc = sol.jump_at_junction.astype(bool)
-        k2 = self.jump_segment.astype(int)
-        k1 = np.where(junc, k2 - 1, k2)
-        g = self.units.g
-        for k in np.unique(np.concatenate([k1, k2])) if nj else []:
-            seg = sol.segs[k]
-            up = np.flatnonzero(k1 == k)
-            if up.size:
-                sub = seg.take(self.jump_scenario[up])
-                y1 = self.jump_upstream_depth[up]
-                a1, _, t1, _, _ = sub.properties(y1)
-                q = self.discharge[self.jump_scenario[up]]
-                fr[up] = q / a1 * np.sqrt(t1 / (g * a1))
-                loss[up] = sub.specific_energy(y1)
-            dn = np.flatnonzero(k2 == k)
-            if dn.size:
-                sub = seg.take(self.jump_scenario[dn])
-                loss[dn] -= sub.specific_energy(self.jump_downstream_depth[dn])
         out: list[list[Jump]] = [[] for _ in range(len(self))]
-        for j in range(nj):
-            y1, y2, f = float(self.jump_upstream_depth[j]), float(self.jump_downstream_depth[j]), float(fr[j])
-            out[int(self.jump_scenario[j])].append(Jump(
-                x=float(self.jump_x[j]), upstream_depth=y1, downstream_depth=y2, froude=f,
-                energy_loss=float(loss[j]), length=float(_length_ratio(max(f, 1.0)) * y2),
-                kind=jump_type(max(f, 1.0)), segment=int(k2[j]),
-                where="at a segment junction" if junc[j] else "in segment"))
+        for idx, sol in self._parts:
+            for s, jump in _jumps_of(sol, self.discharge[idx], self.units.g):
+                out[int(idx[s])].append(jump)
         return out
 
     @cached_property
     def profile_types(self) -> list[list[str]]:
         """Profile labels of every scenario, upstream to downstream (as in :attr:`Profile.profile_types`)."""
-        return [[p.label for p in pieces] for pieces in profile_pieces(self._sol, np.arange(len(self)))]
+        out: list = [None] * len(self)
+        for idx, sol in self._parts:
+            for i, pieces in zip(idx, profile_pieces(sol, np.arange(idx.size)), strict=True):
+                out[i] = [p.label for p in pieces]
+        return out
 
     # -- scenarios as profiles ------------------------------------------------------------------
     def scenario_reach(self, i: int):
-        """The reach of scenario ``i`` alone: the swept reach with its discharge and roughness."""
+        """The reach of scenario ``i`` alone: the swept reach with the scenario's discharge, roughness and
+        the inputs given in ``vary``."""
         i = self._index(i)
+        base = self._plan.reach_of(i)
         segs = [s.model_copy(update={"roughness": type(s.roughness)(float(self.roughness[i, k]))})
-                for k, s in enumerate(self.reach.segments)]
-        return self.reach.model_copy(update={"discharge": float(self.discharge[i]), "segments": segs})
+                for k, s in enumerate(base.segments)]
+        return base.model_copy(update={"discharge": float(self.discharge[i]), "segments": segs})
 
     def _index(self, i) -> int:
         if isinstance(i, (bool, np.bool_)) or not isinstance(i, (int, np.integer)):
@@ -521,7 +946,8 @@ class SweepResult:
         if isinstance(i, slice):
             return [self[j] for j in range(*i.indices(len(self)))]
         i = self._index(i)
-        return Profile.from_batch(self.scenario_reach(i), self._sol, i, method=self.method)
+        sol = self._parts[self._plan.group_of[i]][1]
+        return Profile.from_batch(self.scenario_reach(i), sol, int(self._plan.local[i]), method=self.method)
 
     def __iter__(self):
         for i in range(len(self)):

@@ -268,17 +268,18 @@ class Reach(FrozenModel):
                               critical_tolerance)
         return _above("profile")(self, sol, 0, method=getattr(marcher, "name", str(method)))
 
-    def sweep(self, discharge=None, *, roughness=None, roughness_scale=None, method="standard_step",
+    def sweep(self, discharge=None, *, roughness=None, roughness_scale=None, vary=None, method="standard_step",
               n_steps: int = 100, max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE,
               progress=None, chunk_size: int | None = None, **options):
-        """Solve this reach for many discharges and roughness values at once.
+        """Solve this reach for many discharges, roughness values and other inputs (``vary``) at once.
 
         See :func:`gvflow.batch.sweep` for the parameters; returns a
         :class:`~gvflow.batch.SweepResult`.
         """
-        return _above("sweep")(self, discharge, roughness=roughness, roughness_scale=roughness_scale, method=method,
-                     n_steps=n_steps, max_step=max_step, critical_tolerance=critical_tolerance,
-                     progress=progress, chunk_size=chunk_size, **options)
+        return _above("sweep")(self, discharge, roughness=roughness, roughness_scale=roughness_scale, vary=vary,
+                               method=method, n_steps=n_steps, max_step=max_step,
+                               critical_tolerance=critical_tolerance, progress=progress, chunk_size=chunk_size,
+                               **options)
 
     def __repr__(self):
         segs = ", ".join(repr(s) for s in self.segments)

@@ -1,12 +1,14 @@
-"""Monte Carlo over uncertain roughness and discharge: envelopes of depth and stage along a reach.
+"""Monte Carlo over uncertain inputs: envelopes of depth and stage along a reach, levels at any point.
 
 Roughness coefficients are rarely known to better than a range: handbooks
 give a minimum, a normal and a maximum Manning's n for each lining (Chow
 1959, *Open-Channel Hydraulics*, Table 5-6). :func:`monte_carlo` samples
-roughness per segment (and, optionally, the discharge) from such ranges with
-a seeded random generator, solves all the samples as one vectorised sweep
+roughness per segment (and, optionally, the discharge, the control levels,
+structure numbers and bed slopes) from such ranges with a seeded random
+generator, solves all the samples as one vectorised sweep
 (:func:`gvflow.batch.sweep`), and summarises them as percentile envelopes of
-depth and water-surface elevation along the reach and the distribution of
+depth and water-surface elevation along the reach, percentiles and
+exceedance probabilities of the level at any point, and the distribution of
 the hydraulic jump's location.
 """
 
@@ -17,7 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._validate import finite_array, finite_float
-from .batch import SweepResult, sweep
+from .batch import SweepResult, _parse_vary, sweep
 from .errors import InvalidInputError
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
@@ -163,11 +165,11 @@ def _roughness_specs(reach, roughness):
     return specs
 
 
-def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, seed=None, correlated: bool = False,
-                percentiles=(5.0, 50.0, 95.0), method="standard_step", n_steps: int = 100,
+def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, vary=None, seed=None,
+                correlated: bool = False, percentiles=(5.0, 50.0, 95.0), method="standard_step", n_steps: int = 100,
                 max_step: float | None = None, critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, progress=None,
                 chunk_size: int | None = None, **options) -> MonteCarloResult:
-    """Monte Carlo over uncertain roughness and discharge, solved as one vectorised sweep.
+    """Monte Carlo over uncertain roughness, discharge and other inputs, solved as one vectorised sweep.
 
     Parameters
     ----------
@@ -182,9 +184,19 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, s
         list, None keeps that segment's roughness fixed.
     discharge : Uncertain, optional
         Range of the discharge [length³/s].
+    vary : dict of str to Uncertain, optional
+        Ranges of other inputs, named as in the ``vary`` of
+        :func:`gvflow.batch.sweep`: ``"downstream"`` (the downstream
+        control's level or depth: a tailwater), ``"upstream"``,
+        ``"downstream.crest_height"``, ``"segments.K.gate.opening"``,
+        ``"segments.K.slope"``... in the unit of each. Drawn independently
+        of each other and of the roughness. Control numbers stay in the
+        vectorised batch; a sampled slope makes every sample a solve of its
+        own (much slower).
     seed : int, numpy.random.Generator or None
         Seeds the random draws; the same seed gives the same samples (the
-        discharges are drawn first, then the roughness).
+        discharges are drawn first, then the roughness, then the ``vary``
+        inputs in the order given).
     correlated : bool
         False (default): the segments' roughness values are drawn
         independently. True: one probability per scenario sets every
@@ -202,8 +214,9 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, s
     ------
     InvalidInputError
         Nothing uncertain given, a non-positive sampled value, bad
-        ``samples`` or ``percentiles``, or a single roughness range on
-        segments with different friction laws.
+        ``samples`` or ``percentiles``, a single roughness range on
+        segments with different friction laws, or a name in ``vary`` the
+        reach does not have (the message lists the valid ones).
 
     Examples
     --------
@@ -215,6 +228,14 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, s
     (3, 101)
     >>> bool(all(mc.depth_envelope[0] <= mc.depth_envelope[2]))
     True
+
+    With an uncertain tailwater too, the chance that the level 100 m
+    above the outlet exceeds given levels:
+
+    >>> mc = gv.monte_carlo(reach, 200, roughness=gv.Uncertain(0.011, 0.013, 0.016),
+    ...                     vary={"downstream": gv.Uncertain(1.8, 2.0, 2.4)}, seed=1)
+    >>> mc.exceedance(400.0, [2.3, 2.5, 2.7]).shape  # (levels, points)
+    (3, 1)
     """
     if not isinstance(samples, (int, np.integer)) or isinstance(samples, bool) or samples < 1:
         raise InvalidInputError(f"samples must be a positive integer; got {samples!r}")
@@ -224,8 +245,10 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, s
     if discharge is not None and not isinstance(discharge, Uncertain):
         raise InvalidInputError(f"discharge must be a gv.Uncertain range; got {discharge!r}")
     specs = _roughness_specs(reach, roughness)
-    if discharge is None and (specs is None or all(s is None for s in specs)):
-        raise InvalidInputError("nothing is uncertain: give roughness= and/or discharge= as gv.Uncertain ranges")
+    vary_specs = _vary_specs(reach, vary)
+    if discharge is None and (specs is None or all(s is None for s in specs)) and not vary_specs:
+        raise InvalidInputError("nothing is uncertain: give roughness=, discharge= and/or vary= as gv.Uncertain "
+                                "ranges")
     n = int(samples)
     rng = np.random.default_rng(seed)
     q = None
@@ -248,9 +271,24 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, s
                 coef[:, j] = s.quantile(u[:, j])
     if q is None:
         q = np.full(n, reach.discharge)
-    result = sweep(reach, q, roughness=coef, method=method, n_steps=n_steps, max_step=max_step,
+    drawn = {name: spec.quantile(rng.random(n)) for name, spec in vary_specs.items()}
+    result = sweep(reach, q, roughness=coef, vary=drawn or None, method=method, n_steps=n_steps, max_step=max_step,
                    critical_tolerance=critical_tolerance, progress=progress, chunk_size=chunk_size, **options)
-    return MonteCarloResult(result, pct, roughness_ranges=specs, discharge_range=discharge, correlated=correlated)
+    return MonteCarloResult(result, pct, roughness_ranges=specs, discharge_range=discharge, correlated=correlated,
+                            vary_ranges=vary_specs)
+
+
+def _vary_specs(reach, vary) -> dict:
+    """``vary`` of :func:`monte_carlo` checked: names the reach has (as a sweep's ``vary``), Uncertain ranges."""
+    if vary is None:
+        return {}
+    if not isinstance(vary, dict):
+        raise InvalidInputError(f"vary must be a dict of parameter name -> gv.Uncertain; got {type(vary).__name__}")
+    for name, spec in vary.items():
+        if not isinstance(spec, Uncertain):
+            raise InvalidInputError(f"vary[{name!r}] must be a gv.Uncertain range; got {spec!r}")
+    _parse_vary(reach, {name: spec.normal for name, spec in vary.items()})  # the names, with their choices
+    return dict(vary)
 
 
 class MonteCarloResult:
@@ -264,10 +302,16 @@ class MonteCarloResult:
         Sampled discharges [length³/s].
     roughness : ndarray, shape (n, K)
         Sampled roughness coefficients per segment, in each segment's law.
+    varied : dict of str to ndarray, shape (n,)
+        Sampled values of the inputs given in ``vary``, by name.
+    vary_ranges : dict of str to Uncertain
+        Their ranges.
     percentiles : ndarray, shape (P,)
         Percentiles of the envelopes [%].
-    x, bed : ndarray, shape (M,)
-        Stations and bed elevation [length] (shared by all samples).
+    x : ndarray, shape (M,)
+        Stations [length] (shared by all samples).
+    bed : ndarray, shape (M,), or (n, M) when a slope is sampled
+        Bed elevation [length].
     depth_envelope, stage_envelope : ndarray, shape (P, M)
         Percentiles over the samples of the depth and of the water-surface
         elevation at each station [length]. Each station's percentile is
@@ -283,7 +327,7 @@ class MonteCarloResult:
     """
 
     def __init__(self, sweep_result: SweepResult, percentiles, roughness_ranges=None, discharge_range=None,
-                 correlated=False):
+                 correlated=False, vary_ranges=None):
         self.sweep = sweep_result
         self.units = sweep_result.units
         self.percentiles = np.asarray(percentiles, float)
@@ -292,6 +336,8 @@ class MonteCarloResult:
         self.correlated = correlated
         self.discharge = sweep_result.discharge
         self.roughness = sweep_result.roughness
+        self.varied = sweep_result.varied
+        self.vary_ranges = {} if vary_ranges is None else dict(vary_ranges)
         self.x = sweep_result.x
         self.bed = sweep_result.bed
         self.depth_envelope = self.envelope("depth")
@@ -332,6 +378,89 @@ class MonteCarloResult:
         if np.any((pct < 0) | (pct > 100)):
             raise InvalidInputError(f"percentiles must lie in [0, 100]; got {percentiles!r}")
         return np.percentile(getattr(self.sweep, quantity), pct, axis=0)
+
+    # -- answers at any point -------------------------------------------------------------------
+    def depth_at(self, x) -> np.ndarray:
+        """Depth of every sample at distance(s) ``x`` [length]: shape (n,), or (n, m) for m distances
+        (:meth:`gvflow.batch.SweepResult.depth_at`)."""
+        return self.sweep.depth_at(x)
+
+    def stage_at(self, x) -> np.ndarray:
+        """Water-surface elevation of every sample at distance(s) ``x`` [length]: shape (n,), or (n, m)
+        (:meth:`gvflow.batch.SweepResult.stage_at`)."""
+        return self.sweep.stage_at(x)
+
+    def _at(self, x, quantity):
+        if quantity not in ("stage", "depth"):
+            raise InvalidInputError(f"quantity must be 'stage' or 'depth'; got {quantity!r}")
+        return self.stage_at(x) if quantity == "stage" else self.depth_at(x)
+
+    def percentiles_at(self, x, quantity: str = "stage", percentiles=None) -> np.ndarray:
+        """Percentiles over the samples of the stage (or depth) at distance(s) ``x`` [length].
+
+        Parameters
+        ----------
+        x : float or array_like, shape (m,)
+            Distances from the upstream end [length].
+        quantity : {"stage", "depth"}
+        percentiles : sequence of float, optional
+            In [0, 100]; default the run's.
+
+        Returns
+        -------
+        ndarray, shape (P,) for a number x, (P, m) for an array
+            ``numpy.percentile`` (linear interpolation between order
+            statistics) of :meth:`stage_at` or :meth:`depth_at` over the
+            samples.
+        """
+        pct = self.percentiles if percentiles is None else finite_array(percentiles, "percentiles")
+        if pct.ndim > 1 or np.any((pct < 0) | (pct > 100)):
+            raise InvalidInputError(f"percentiles must be numbers in [0, 100]; got {percentiles!r}")
+        return np.percentile(self._at(x, quantity), pct, axis=0)
+
+    def exceedance(self, x, levels, quantity: str = "stage"):
+        """Chance that the water level at ``x`` exceeds each of ``levels``: a table.
+
+        The probability is the fraction of samples whose stage (or depth) at
+        x is strictly above the level; its sampling standard error is
+        sqrt(p (1 - p) / n), so n samples resolve probabilities down to
+        about 1/n.
+
+        Parameters
+        ----------
+        x : float or array_like, shape (m,)
+            Distances from the upstream end [length].
+        levels : float or array_like, shape (L,)
+            Water-surface elevations (or depths, with ``quantity="depth"``) [length].
+        quantity : {"stage", "depth"}
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per level (index ``level``), one column per x (columns
+            ``x``), values the exceedance probability [-].
+
+        Examples
+        --------
+        >>> import gvflow as gv
+        >>> reach = gv.Reach(segments=[gv.Segment(length=500.0, slope=0.001, section=gv.Rectangular(width=3.0),
+        ...                                       roughness=0.013)], discharge=5.0, downstream=gv.FixedDepth(2.0))
+        >>> mc = gv.monte_carlo(reach, 100, roughness=gv.Uncertain(0.011, 0.013, 0.016), seed=1)
+        >>> table = mc.exceedance([0.0, 250.0], [2.0, 2.3, 2.6])
+        >>> table.shape, table.index.name, table.columns.name
+        ((3, 2), 'level', 'x')
+        """
+        import pandas as pd
+
+        lv = finite_array(levels, "levels")
+        if lv.ndim > 1:
+            raise InvalidInputError(f"levels must be a number or a 1-D array; got shape {lv.shape}")
+        lv = np.atleast_1d(lv)
+        values = self._at(x, quantity)
+        values = values.reshape(values.shape[0], -1)  # (n, m)
+        prob = np.mean(values[:, None, :] > lv[None, :, None], axis=0)  # (L, m)
+        xs = np.atleast_1d(np.asarray(x, dtype=float))
+        return pd.DataFrame(prob, index=pd.Index(lv, name="level"), columns=pd.Index(xs, name="x"))
 
     def jump_histogram(self, bins=20):
         """Histogram of the jump location over the samples with a jump: (counts, bin edges [length])."""
