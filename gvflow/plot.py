@@ -447,6 +447,19 @@ def _range_text(u, unit=""):
     return f"{u.minimum:g} to {u.maximum:g}{unit} (triangular, most likely {u.normal:g})"
 
 
+def _vary_name(name: str, reach) -> str:
+    """A readable name for a ``vary`` path ("segments.0.slope" -> "bed slope of segment 0")."""
+    head, _, rest = name.partition(".")
+    if head in ("upstream", "downstream"):
+        return f"{head} control" + (f" {rest.replace('.', ' ').replace('_', ' ')}" if rest else "")
+    if head == "segments":
+        k, _, what = rest.partition(".")
+        seg = reach.segments[int(k)]
+        label = seg.name or f"segment {k}"
+        return {"slope": f"bed slope of {label}"}.get(what, f"{what.replace('.', ' ')} of {label}")
+    return name
+
+
 def uncertain_inputs(mc) -> str:
     """One sentence naming what a Monte Carlo run sampled and over which ranges."""
     reach = mc.sweep.reach
@@ -470,6 +483,8 @@ def uncertain_inputs(mc) -> str:
         if len(sampled) > 1:
             text += " (one draw for all segments)" if mc.correlated else " (drawn independently per segment)"
         parts.append(text)
+    for name, spec in (getattr(mc, "vary_ranges", None) or {}).items():
+        parts.append(f"{_vary_name(name, reach)} {_range_text(spec)}")
     if mc.discharge_range is None:
         parts.append(f"discharge fixed at {reach.discharge:g} {units.discharge}")
     return "Uncertain: " + "; ".join(parts)
@@ -515,9 +530,13 @@ def plot_envelope(mc, ax=None, *, quantity: str = "stage", jumps: bool = True, s
     p = mc.percentiles
     lo, hi = int(np.argmin(p)), int(np.argmax(p))
     mid = int(np.argmin(np.abs(p - 50.0)))
+    bed_range = None
     if quantity == "stage":
         env = mc.stage_envelope
         bed = np.asarray(mc.bed)
+        if bed.ndim == 2:  # a sampled bed slope: the frame follows the lowest bed, the range is shaded
+            bed_range = bed.min(axis=0), bed.max(axis=0)
+            bed = bed_range[0]
         shapes = _reach_shapes(reach, x, bed, env[hi]) if show_structures else []
     else:
         env = mc.depth_envelope
@@ -532,6 +551,9 @@ def plot_envelope(mc, ax=None, *, quantity: str = "stage", jumps: bool = True, s
                     if h is not None:
                         shapes.append(_Shape("line", np.column_stack([xs[k], [h, h]]), role, legend=legend))
     floor, span = _frame(ax, reach, x, bed, shapes, float(np.max(env[hi])))
+    if bed_range is not None:
+        ax.fill_between(x, *bed_range, color=_COLOURS["bed"], alpha=0.35, linewidth=0, zorder=3,
+                        label="bed (range over the samples)")
     ax.fill_between(x, bed, env[lo], color=_COLOURS["water"], alpha=0.10, linewidth=0, zorder=2)
     ax.fill_between(x, env[lo], env[hi], color=_COLOURS["water"], alpha=0.35, linewidth=0, zorder=2,
                     label=f"{p[lo]:g}th to {p[hi]:g}th percentile")

@@ -424,3 +424,23 @@ def test_importing_gvflow_does_not_import_matplotlib():
     code = "import sys, gvflow; print('matplotlib' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_envelope_with_a_sampled_slope_shades_the_bed_range_and_names_every_uncertain_input():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    reach = gv.Reach(segments=[gv.Segment(length=300, slope=0.002, section=gv.Rectangular(width=4), roughness=0.015),
+                               gv.Segment(length=300, slope=0.001, section=gv.Rectangular(width=4), roughness=0.015)],
+                     discharge=8.0, downstream=gv.FixedDepth(1.8))
+    mc = gv.monte_carlo(reach, 40, roughness=gv.Uncertain(0.012, 0.015, 0.018),
+                        vary={"segments.0.slope": gv.Uncertain(0.0015, 0.002, 0.0025),
+                              "downstream": gv.Uncertain(1.5, 1.8, 2.1)}, seed=1, n_steps=20)
+    ax = mc.plot_envelope()
+    title = ax.get_title()
+    assert "bed slope of segment 0 0.0015 to 0.0025" in title and "downstream control 1.5 to 2.1" in title
+    band = [c for c in ax.collections if c.get_label() == "bed (range over the samples)"]
+    assert len(band) == 1
+    ys = band[0].get_paths()[0].vertices[:, 1]
+    bed = np.asarray(mc.bed)
+    assert ys.min() == pytest.approx(bed.min()) and ys.max() == pytest.approx(bed.max())
