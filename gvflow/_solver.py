@@ -32,7 +32,7 @@ from ._plausible import check_reach, check_segments, note_sloping_jumps
 from ._roots import bracketed_root
 from ._validate import positive_array
 from .controls import EndState
-from .errors import ControlError, ConvergenceError, NoSolutionError
+from .errors import ControlError, ConvergenceError, InvalidInputError, NoSolutionError
 from .profiles.base import SegmentBatch
 from .profiles.classify import SLOPE_CLASSES
 from .uniform import CRITICAL_SLOPE_TOLERANCE
@@ -123,14 +123,45 @@ def _check_inside(seg, y, ctrl, end):
 
 
 def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch):
-    """Depth in ``seg_to`` with the specific energy of ``y`` in ``seg_from`` (same bed level).
+    """Depth in ``seg_to`` across the junction from depth ``y`` in ``seg_from`` (same bed level).
 
-    Returns (depth, critical_flag): where the branch has no root the depth is
-    critical and the flag is set.
+    Where the discharge changes (an inflow at the junction) and the flow is
+    supercritical, the specific force is conserved (the inflow brings no
+    momentum along the channel); otherwise the specific energy is (no loss;
+    for a tributary in subcritical flow, Akan 2006, *Open Channel Hydraulics*,
+    §4.7). Returns (depth, critical_flag): where the branch has no root the
+    depth is critical and the flag is set.
     """
-    if seg_from.same_section(seg_to):
+    same_q = np.array_equal(seg_from.discharge, seg_to.discharge)
+    if same_q and seg_from.same_section(seg_to):
         return y.copy(), np.zeros(y.shape, bool)
+    if branch == SUPER and not same_q:
+        return _depth_with_force(seg_to, seg_from.specific_force(y))
     return _depth_with_energy(seg_to, seg_from.specific_energy(y), branch)
+
+
+def _depth_with_force(seg: SegmentBatch, force):
+    """Supercritical depth whose specific force in ``seg`` is ``force``; critical depth (flagged) where the
+    force is below the section's least specific force (at critical depth)."""
+    yc = seg.yc
+    ok = force > seg.specific_force(yc)
+    out = yc.copy()
+    if np.any(ok):
+        idx = np.flatnonzero(ok)
+        sub = _subset(seg, idx)
+        target = force[idx]
+
+        def fun(z):
+            return target - sub.specific_force(z)  # rises through zero from a shallow depth to yc
+
+        lo = sub.yc * 1e-3
+        for _ in range(60):
+            need = fun(lo) > 0
+            if not np.any(need):
+                break
+            lo = np.where(need, lo * 0.5, lo)
+        out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="supercritical depth below an inflow")
+    return out, ~ok
 
 
 def _depth_with_energy(seg: SegmentBatch, e, branch):
@@ -286,7 +317,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     if coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
     check_reach(reach)  # refuse lengths and end depths no channel holds
-    built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
+    q_seg = reach.segment_discharges(q)  # (n, K): continuity at every inflow
+    if np.any(q_seg <= 0):
+        s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
+        raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
+                                f"segment {k}; the discharge must stay positive along the reach")
+    built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q_seg[:, k].copy(), units, reach.alpha,
                                    None if coef is None else coef[:, k].copy(), critical_tolerance, strict=False)
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
@@ -349,7 +385,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         elif k > 0:
             y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB)
             # critical on the upstream side too where the section is the same, or where it has no subcritical root
-            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]))
+            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]) & (segments[k].inflow == 0))
 
     # ---------------- supercritical pass and governance ------------------------------------
     depth = sub_y.copy()
@@ -453,7 +489,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 crit_up[:] = crit_dn[:] = False
             changed = not seg.same_section(nseg1)
             for s in np.flatnonzero(crit_up | crit_dn):
-                if crit_up[s] and changed:
+                if crit_up[s] and segments[k + 1].inflow:
+                    text = (f"critical depth at the end of segment {k}: below the inflow at the head of segment "
+                            f"{k + 1} the discharge needs more energy than subcritical flow above it carries")
+                elif crit_up[s] and changed:
                     text = (f"critical depth at the end of segment {k}, where the flow passes into the larger "
                             f"section of segment {k + 1}")
                 else:
@@ -468,6 +507,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                                      "the supercritical flow leaves the reach and the jump forms downstream of it"))
         sup_state = nxt
 
+    _inflow_notes(notes, segments, segs, bounds, x, regime, units)
     _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
     near_critical_notes(notes, segs, bounds, x, depth, units)
     for k, jet in gate_jet.items():
@@ -515,6 +555,22 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             setattr(sol, name, getattr(sol, name)[order])
         note_sloping_jumps(sol, reach)
     return sol
+
+
+def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
+    """One note per scenario at every inflow: the discharges either side and the balance used across it."""
+    for k in range(1, len(segments)):
+        if not segments[k].inflow:
+            continue
+        i0 = bounds[k][0]
+        for s in range(len(notes)):
+            sup = regime[s, i0 - 1] == REGIME_SUPER and regime[s, i0] == REGIME_SUPER
+            how = ("supercritical flow: specific force (momentum) conserved across the junction" if sup else
+                   "specific energy conserved across the junction (no loss)")
+            notes[s].append((float(x[i0]), "inflow",
+                             f"{segments[k].inflow:g} {units.discharge} enters at the head of segment {k}: the "
+                             f"discharge goes from {segs[k - 1].discharge[s]:g} to {segs[k].discharge[s]:g} "
+                             f"{units.discharge}; {how}"))
 
 
 def _add_details(notes, ctrl, state, depth, x):

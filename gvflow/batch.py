@@ -442,7 +442,7 @@ class SweepResult:
             props = s.properties(self.depth[:, sel])
             a[:, sel] = props[0]
             t[:, sel] = props[2]
-        v = self.discharge[:, None] / a
+        v = np.stack([s.discharge for s in self._sol.segs], axis=1)[:, self.segment] / a  # each segment's discharge
         fr = v * np.sqrt(t / (self.units.g * a))
         v.setflags(write=False)
         fr.setflags(write=False)
@@ -476,7 +476,7 @@ class SweepResult:
                 sub = seg.take(self.jump_scenario[up])
                 y1 = self.jump_upstream_depth[up]
                 a1, _, t1, _, _ = sub.properties(y1)
-                q = self.discharge[self.jump_scenario[up]]
+                q = sub.discharge
                 fr[up] = q / a1 * np.sqrt(t1 / (g * a1))
                 loss[up] = sub.specific_energy(y1)
             dn = np.flatnonzero(k2 == k)

@@ -35,7 +35,7 @@ def water_unit_weight(units) -> float:
         return 1000.0 * units.g
     return rho * units.g
 
-_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head")
+_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head", "discharge")
 _REGIME_LOOKUP = np.array([REGIME_NAMES[REGIME_SUPER], REGIME_NAMES[REGIME_CRITICAL], REGIME_NAMES[REGIME_SUB]])
 
 
@@ -94,7 +94,8 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
     core("march", depth.size).station_quantities(
         np.array([sg.cb.kind for sg in segs], np.int64), np.concatenate(pars), offsets,
         np.array([sg.cb.law for sg in segs], np.int64), roughs, np.ascontiguousarray(seg_ix, np.int64),
-        segs[0].fl, float(segs[0].discharge[i]), np.ascontiguousarray(depth, float), segs[0].alpha, out)
+        segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
+        out)
     return out
 
 
@@ -103,7 +104,9 @@ class Profile:
 
     Arrays run upstream to downstream, one value per station [units of the reach]:
     ``x`` (distance from the upstream end), ``depth``, ``stage`` (water-surface
-    elevation), ``bed`` (bed elevation), ``velocity``, ``froude``,
+    elevation), ``bed`` (bed elevation), ``discharge`` (constant unless segments
+    have inflows: at an inflow two stations share its x, the discharge above
+    it, then below it), ``velocity``, ``froude``,
     ``velocity_head``, ``specific_energy``, ``energy_grade`` (elevation of the
     energy grade line), ``friction_slope``, ``regime`` ("subcritical",
     "critical", "supercritical") and ``segment`` (index). At a hydraulic jump
@@ -130,7 +133,6 @@ class Profile:
         self.reach = reach
         self.method = method
         self.units = reach.resolved_units
-        self.discharge = reach.discharge
         self._stations = stations  # rows: _STATION_ROWS, read-only views of it
         stations.setflags(write=False)
         for name, row in zip(_STATION_ROWS, stations, strict=True):
@@ -186,7 +188,9 @@ class Profile:
         pieces = scenario_pieces(sol, i, x, y, reg, seg, yn, yc)
         # a junction station appears twice; keep one where nothing changes across it
         keep = np.ones(x.size, bool)
-        keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1]))
+        q_seg = np.array([s.discharge[i] for s in sol.segs])
+        keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
+                     & (q_seg[seg[1:]] == q_seg[seg[:-1]]))
         x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
@@ -197,7 +201,8 @@ class Profile:
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
-        stations[3:] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head
+        stations[3:7] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head
+        stations[7] = q_seg[seg]
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
@@ -330,12 +335,12 @@ class Profile:
     def table(self) -> np.ndarray:
         """Station table as a NumPy structured array (one row per station).
 
-        Columns: x, bed, depth, stage, velocity, froude, specific_energy,
+        Columns: x, discharge, bed, depth, stage, velocity, froude, specific_energy,
         energy_grade, friction_slope, area, top_width, hydraulic_radius,
         shear_stress (gamma R Sf, see :attr:`shear_stress`), freeboard (to the
         segment's ``bank_height``, NaN where none), segment, regime.
         """
-        names = ["x", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
+        names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
                  "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
         dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
         out = np.empty(self.x.size, dtype=dt)
@@ -362,7 +367,7 @@ class Profile:
         """A readable multi-line report: segments, controls, jumps, profile types, station table."""
         u = self.units
         L = u.length
-        lines = [f"Water-surface profile: Q = {self.discharge:g} {u.discharge}, {len(self.reach.segments)} "
+        lines = [f"Water-surface profile: Q = {self.reach.discharge:g} {u.discharge}, {len(self.reach.segments)} "
                  f"segment(s), {self.x[-1]:g} {L} long, method {self.method}"]
         lines.append("")
         lines.append(f"{'seg':>3} {'x from':>9} {'x to':>9} {'slope':>9} {'class':>10} {'yn':>8} {'yc':>8}")
@@ -402,6 +407,6 @@ class Profile:
 
     def __repr__(self):
         jumps = ", ".join(f"x={j.x:.2f}" for j in self.jumps) or "none"
-        return (f"<Profile Q={self.discharge:g} {self.units.discharge}, {self.x.size} stations over "
+        return (f"<Profile Q={self.reach.discharge:g} {self.units.discharge}, {self.x.size} stations over "
                 f"{self.x[-1]:g} {self.units.length}, types {self.profile_types}, jumps: {jumps}; "
                 f"depth range {self.depth.min():.3f}-{self.depth.max():.3f} {self.units.length}>")
