@@ -35,7 +35,8 @@ def water_unit_weight(units) -> float:
         return 1000.0 * units.g
     return rho * units.g
 
-_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head", "discharge")
+_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head", "energy_coefficient",
+                 "discharge")
 _REGIME_LOOKUP = np.array([REGIME_NAMES[REGIME_SUPER], REGIME_NAMES[REGIME_CRITICAL], REGIME_NAMES[REGIME_SUB]])
 
 
@@ -82,9 +83,9 @@ def _coefficients_used(reach, jumps, notes) -> list:
 
 
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
-    """(A, T, Sf, V, Fr, alpha V²/2g) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
+    """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
     segs = sol.segs
-    out = np.empty((6, depth.size))
+    out = np.empty((7, depth.size))
     pars = [sg.cb.par for sg in segs]
     offsets = np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
     zones = max(sg.cb.rough.shape[1] for sg in segs)
@@ -112,7 +113,12 @@ class Profile:
     "critical", "supercritical") and ``segment`` (index). At a hydraulic jump
     two stations share one x: the supercritical then the subcritical depth.
     ``froude`` is V / sqrt(g A/T); with an energy coefficient alpha ≠ 1 the
-    flow is critical where alpha Fr² = 1, which ``regime`` reflects.
+    flow is critical where alpha Fr² = 1, which ``regime`` reflects. In a
+    section of several roughness zones (:class:`~gvflow.Surveyed`) ``froude``
+    is the compound Froude number (1 exactly where dE/dy = 0 with alpha
+    varying with depth) and ``energy_coefficient`` (alpha at each station)
+    comes from the zone conveyances; :meth:`zone_table` gives each zone's
+    discharge and velocity.
 
     Other members: ``jumps`` (list of :class:`~gvflow.jumps.Jump`),
     ``profile_types`` (labels of the profile pieces, upstream to downstream),
@@ -201,8 +207,8 @@ class Profile:
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
-        stations[3:7] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head
-        stations[7] = q_seg[seg]
+        stations[3:8] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head, alpha
+        stations[8] = q_seg[seg]
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
@@ -335,12 +341,12 @@ class Profile:
     def table(self) -> np.ndarray:
         """Station table as a NumPy structured array (one row per station).
 
-        Columns: x, discharge, bed, depth, stage, velocity, froude, specific_energy,
+        Columns: x, discharge, bed, depth, stage, velocity, froude, energy_coefficient, specific_energy,
         energy_grade, friction_slope, area, top_width, hydraulic_radius,
         shear_stress (gamma R Sf, see :attr:`shear_stress`), freeboard (to the
         segment's ``bank_height``, NaN where none), segment, regime.
         """
-        names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
+        names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "energy_coefficient", "specific_energy", "energy_grade",
                  "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
         dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
         out = np.empty(self.x.size, dtype=dt)
@@ -349,6 +355,39 @@ class Profile:
         out["segment"] = self.segment
         out["regime"] = self.regime
         return out
+
+    def zone_table(self):
+        """How the discharge divides among each station's roughness zones, as a pandas DataFrame.
+
+        One row per station and zone (a geometric section is one zone): ``x``, ``segment``, ``zone``
+        (0 from the left bank, looking downstream), ``area``, ``wetted_perimeter``, ``top_width``,
+        ``conveyance`` and the zone's ``discharge`` Q_i = Q K_i/K and ``velocity`` Q_i/A_i (vertical
+        division lines, subdivided conveyance: Chow 1959, *Open-Channel Hydraulics*, §6-7).
+        """
+        import pandas as pd
+
+        from ._core.records import fluid
+        from .friction import core_channel
+
+        fl = fluid(self.units)
+        parts = []
+        for k, seg in enumerate(self.reach.segments):
+            idx = np.flatnonzero(self.segment == k)
+            if not idx.size:
+                continue
+            ch = core_channel(seg.section, seg.roughness)
+            zones = getattr(seg.section, "zone_count", 1)
+            block = np.empty((idx.size, zones, 6))
+            kernel = core("arrays", idx.size * zones)
+            for r, i in enumerate(idx):
+                kernel.zone_table(ch, fl, float(self.discharge[i]), float(self.depth[i]), block[r])
+            cols = {"x": np.repeat(self.x[idx], zones), "segment": np.full(idx.size * zones, k),
+                    "zone": np.tile(np.arange(zones), idx.size)}
+            for j, name in enumerate(("area", "wetted_perimeter", "top_width", "conveyance", "discharge",
+                                      "velocity")):
+                cols[name] = block[:, :, j].ravel()
+            parts.append(pd.DataFrame(cols))
+        return pd.concat(parts, ignore_index=True)
 
     def to_pandas(self):
         """Station table (:meth:`table`) as a pandas DataFrame."""
