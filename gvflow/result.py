@@ -341,13 +341,13 @@ class Profile:
     def table(self) -> np.ndarray:
         """Station table as a NumPy structured array (one row per station).
 
-        Columns: x, discharge, bed, depth, stage, velocity, froude, energy_coefficient, specific_energy,
-        energy_grade, friction_slope, area, top_width, hydraulic_radius,
+        Columns: x, discharge, bed, depth, stage, velocity, froude, energy_coefficient,
+        specific_energy, energy_grade, friction_slope, area, top_width, hydraulic_radius,
         shear_stress (gamma R Sf, see :attr:`shear_stress`), freeboard (to the
         segment's ``bank_height``, NaN where none), segment, regime.
         """
-        names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "energy_coefficient", "specific_energy", "energy_grade",
-                 "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
+        names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "energy_coefficient",
+                 "specific_energy", "energy_grade", "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
         dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
         out = np.empty(self.x.size, dtype=dt)
         for n in names:
