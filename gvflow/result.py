@@ -347,7 +347,8 @@ class Profile:
         segment's ``bank_height``, NaN where none), segment, regime.
         """
         names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "energy_coefficient",
-                 "specific_energy", "energy_grade", "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard"]
+                 "specific_energy", "energy_grade", "friction_slope", "area", "top_width", "hydraulic_radius",
+                 "shear_stress", "freeboard"]
         dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13")]
         out = np.empty(self.x.size, dtype=dt)
         for n in names:
