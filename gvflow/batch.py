@@ -294,7 +294,8 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, method
         bar.close()
     sol = BatchSolution.concatenate(parts)
     if coef is None:
-        coef = np.stack([s.coef for s in sol.segs], axis=1)
+        # (a surveyed section's roughness per zone stays with the section: NaN here)
+        coef = np.stack([s.coef if s.coef.ndim == 1 else np.full(s.n, np.nan) for s in sol.segs], axis=1)
     return SweepResult(reach, sol, q, coef, method=getattr(marcher, "name", str(method)))
 
 
@@ -502,8 +503,8 @@ class SweepResult:
     def scenario_reach(self, i: int):
         """The reach of scenario ``i`` alone: the swept reach with its discharge and roughness."""
         i = self._index(i)
-        segs = [s.model_copy(update={"roughness": type(s.roughness)(float(self.roughness[i, k]))})
-                for k, s in enumerate(self.reach.segments)]
+        segs = [s if s.roughness is None else s.model_copy(update={"roughness": type(s.roughness)(
+                float(self.roughness[i, k]))}) for k, s in enumerate(self.reach.segments)]
         return self.reach.model_copy(update={"discharge": float(self.discharge[i]), "segments": segs})
 
     def _index(self, i) -> int:

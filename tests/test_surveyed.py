@@ -266,3 +266,19 @@ def test_profile_carries_alpha_compound_froude_and_zone_flows_per_station():
     pr = rect.solve(n_steps=10)
     assert np.all(pr.energy_coefficient == 1.1)
     assert len(pr.zone_table()) == pr.x.size
+
+
+def test_discharge_sweep_of_a_surveyed_reach_gives_each_scenario_as_alone():
+    # two segments of different surveyed sections, mixed with a geometric one
+    other = gv.Surveyed(offset=[-80, -80, 0, 0, 12, 12, 90, 90], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
+                        roughness=[0.05, 0.032, 0.05], zone_edges=[0, 12])
+    reach = gv.Reach(segments=[gv.Segment(length=300.0, slope=5e-4, section=COMPOUND),
+                               gv.Segment(length=300.0, slope=5e-4, section=other),
+                               gv.Segment(length=100.0, slope=5e-4, section=gv.Rectangular(width=12.0),
+                                          roughness=0.03)],
+                     discharge=60.0, downstream=gv.FixedDepth(2.8))
+    res = reach.sweep(discharge=[30.0, 60.0, 150.0], n_steps=20)
+    for i, q in enumerate([30.0, 60.0, 150.0]):
+        alone = reach.model_copy(update={"discharge": q}).solve(n_steps=20)
+        np.testing.assert_array_equal(res[i].depth, alone.depth)
+    assert np.isnan(res.roughness[0, 0]) and res.roughness[0, 2] == 0.03
