@@ -31,9 +31,10 @@ from ._near_critical import near_critical_notes
 from ._plausible import check_reach, check_segments, note_sloping_jumps
 from ._validate import positive_array
 from .controls import EndState
-from .errors import ControlError, ConvergenceError, NoSolutionError
+from .errors import ControlError, ConvergenceError, InvalidInputError, NoSolutionError
 from .profiles.base import SegmentBatch
 from .profiles.base import depth_with_energy as _depth_with_energy
+from .profiles.base import depth_with_force as _depth_with_force
 from .profiles.base import subset as _subset
 from .profiles.classify import SLOPE_CLASSES
 from .structures.gates import gate_pool_depth
@@ -124,16 +125,23 @@ def _check_inside(seg, y, ctrl, end):
 
 
 def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch, gain: float = 0.0):
-    """Depth in ``seg_to`` with the specific energy of ``y`` in ``seg_from`` plus ``gain``.
+    """Depth in ``seg_to`` across the junction from depth ``y`` in ``seg_from``.
 
     ``gain`` is how far the bed of ``seg_to`` lies below that of ``seg_from`` at the junction (an invert
-    drop: +drop passing downstream, -drop passing upstream); the energy crosses it without loss. Returns
-    (depth, critical_flag): where the branch has no root the depth is critical and the flag is set. On
-    the subcritical branch a closed ``seg_to`` that the energy fills runs full: its depth is the pressure
-    head above the invert, E - alpha Q²/(2 g A_full²) (:func:`_pressure_head_with_energy`).
+    drop: +drop passing downstream, -drop passing upstream); the energy crosses it without loss. Where
+    the discharge changes (an inflow at the junction) and the flow is supercritical on a level junction,
+    the specific force is conserved instead (the inflow brings no momentum along the channel); otherwise
+    the specific energy is (no loss; for a tributary in subcritical flow, Akan 2006, *Open Channel
+    Hydraulics*, §4.7). Returns (depth, critical_flag): where the branch has no root the depth is
+    critical and the flag is set. On the subcritical branch a closed ``seg_to`` that the energy fills
+    runs full: its depth is the pressure head above the invert, E - alpha Q²/(2 g A_full²)
+    (:func:`_pressure_head_with_energy`).
     """
-    if gain == 0.0 and seg_from.same_section(seg_to):
+    same_q = np.array_equal(seg_from.discharge, seg_to.discharge)
+    if gain == 0.0 and same_q and seg_from.same_section(seg_to):
         return y.copy(), np.zeros(y.shape, bool)
+    if branch == SUPER and not same_q and gain == 0.0:
+        return _depth_with_force(seg_to, seg_from.specific_force(y))
     e = seg_from.specific_energy(y) + gain
     if branch == SUB and seg_to.section.closed:
         return _pressure_head_with_energy(seg_to, e)
@@ -351,7 +359,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     if coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
     check_reach(reach)  # refuse lengths and end depths no channel holds
-    built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q, units, reach.alpha,
+    q_seg = reach.segment_discharges(q)  # (n, K): continuity at every inflow
+    if np.any(q_seg <= 0):
+        s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
+        raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
+                                f"segment {k}; the discharge must stay positive along the reach")
+    built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q_seg[:, k].copy(), units, reach.alpha,
                                    None if coef is None else coef[:, k].copy(), critical_tolerance, strict=False)
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
@@ -417,7 +430,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB, -drops[k])
             # critical on the upstream side too where the section and bed are the same, or where it has no
             # subcritical root
-            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]) & (drops[k] == 0))
+            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]) & (drops[k] == 0)
+                                 & (segments[k].inflow == 0))
 
     # ---------------- supercritical pass and governance ------------------------------------
     depth = sub_y.copy()
@@ -522,7 +536,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 crit_up[:] = crit_dn[:] = False
             changed = not seg.same_section(nseg1)
             for s in np.flatnonzero(crit_up | crit_dn):
-                if crit_up[s] and changed:
+                if crit_up[s] and segments[k + 1].inflow:
+                    text = (f"critical depth at the end of segment {k}: below the inflow at the head of segment "
+                            f"{k + 1} the discharge needs more energy than subcritical flow above it carries")
+                elif crit_up[s] and changed:
                     text = (f"critical depth at the end of segment {k}, where the flow passes into the larger "
                             f"section of segment {k + 1}")
                 else:
@@ -538,6 +555,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                                      "it"))
         sup_state = nxt
 
+    _inflow_notes(notes, segments, segs, bounds, x, regime, units)
     _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
     near_critical_notes(notes, segs, bounds, x, depth, units)
     for k, jet in gate_jet.items():
@@ -592,6 +610,22 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             setattr(sol, name, getattr(sol, name)[order])
         note_sloping_jumps(sol, reach)
     return sol
+
+
+def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
+    """One note per scenario at every inflow: the discharges either side and the balance used across it."""
+    for k in range(1, len(segments)):
+        if not segments[k].inflow:
+            continue
+        i0 = bounds[k][0]
+        for s in range(len(notes)):
+            sup = regime[s, i0 - 1] == REGIME_SUPER and regime[s, i0] == REGIME_SUPER
+            how = ("supercritical flow: specific force (momentum) conserved across the junction" if sup else
+                   "specific energy conserved across the junction (no loss)")
+            notes[s].append((float(x[i0]), "inflow",
+                             f"{segments[k].inflow:g} {units.discharge} enters at the head of segment {k}: the "
+                             f"discharge goes from {segs[k - 1].discharge[s]:g} to {segs[k].discharge[s]:g} "
+                             f"{units.discharge}; {how}"))
 
 
 def _add_details(notes, ctrl, state, depth, x):

@@ -602,7 +602,8 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
     if coef is None:
         coef = np.empty((n, len(reach.segments)))
         for (_, idx), sol in zip(plan.groups, sols, strict=True):
-            coef[idx] = np.stack([s.coef for s in sol.segs], axis=1)
+            # (a surveyed section's roughness per zone stays with the section: NaN here)
+            coef[idx] = np.stack([s.coef if s.coef.ndim == 1 else np.full(s.n, np.nan) for s in sol.segs], axis=1)
     return SweepResult(reach, sols if len(sols) > 1 else sols[0], q, coef,
                        method=getattr(marcher, "name", str(method)), scenarios=plan)
 
@@ -622,7 +623,7 @@ def _jumps_of(sol: BatchSolution, discharge: np.ndarray, g: float):
             sub = seg.take(sol.jump_scenario[up])
             y1 = sol.jump_y1[up]
             a1, _, t1, _, _ = sub.properties(y1)
-            q = discharge[sol.jump_scenario[up]]
+            q = sub.discharge  # the segment's own discharge (inflows included)
             fr[up] = q / a1 * np.sqrt(t1 / (g * a1))
             loss[up] = sub.specific_energy(y1)
         dn = np.flatnonzero(k2 == k)
@@ -813,15 +814,17 @@ class SweepResult:
     def _kinematics(self):
         a = np.empty(self.depth.shape)
         t = np.empty(self.depth.shape)
+        q_seg = np.empty((len(self), self.segment.max() + 1))  # each segment's discharge (inflows included)
         for idx, sol in self._parts:
             whole = idx.size == len(self)
+            q_seg[idx] = np.stack([s.discharge for s in sol.segs], axis=1)
             for k, s in enumerate(sol.segs):
                 cols = np.flatnonzero(self.segment == k)
                 at = (slice(None), cols) if whole else np.ix_(idx, cols)
                 props = s.properties(self.depth[at])
                 a[at] = props[0]
                 t[at] = props[2]
-        v = self.discharge[:, None] / a
+        v = q_seg[:, self.segment] / a
         fr = v * np.sqrt(t / (self.units.g * a))
         v.setflags(write=False)
         fr.setflags(write=False)
@@ -926,8 +929,8 @@ class SweepResult:
         the inputs given in ``vary``."""
         i = self._index(i)
         base = self._plan.reach_of(i)
-        segs = [s.model_copy(update={"roughness": type(s.roughness)(float(self.roughness[i, k]))})
-                for k, s in enumerate(base.segments)]
+        segs = [s if s.roughness is None else s.model_copy(update={"roughness": type(s.roughness)(
+                float(self.roughness[i, k]))}) for k, s in enumerate(base.segments)]
         return base.model_copy(update={"discharge": float(self.discharge[i]), "segments": segs})
 
     def _index(self, i) -> int:

@@ -410,7 +410,7 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
     ax.set_xlabel(f"Distance from upstream end [{L}]")
     ax.set_ylabel(f"Elevation [{L}]")
     if title is None:
-        title = reach.name or f"Water-surface profile, Q = {profile.discharge:g} {units.discharge}"
+        title = reach.name or f"Water-surface profile, Q = {reach.discharge:g} {units.discharge}"
     ax.set_title(title)
     _legend(ax)
     if show_labels:

@@ -92,6 +92,14 @@ class Segment(FrozenModel):
         It holds the water upstream at the depth its discharge needs and
         releases a jet below it; the water below may drown it (submerged
         flow), which the result reports.
+    inflow : float
+        Discharge added at the head of this segment [length³/s], e.g. a
+        tributary (negative: a withdrawal); not on the first segment, whose
+        discharge is the reach's. Across the junction the solver keeps
+        continuity, then conserves specific energy (no loss) where the flow
+        is subcritical and specific force (momentum) where it is
+        supercritical; the result says which. The profile has two stations
+        at the junction's x: the discharge above it, then below it.
     bank_height : float, optional
         Height of the bank or lining top above the bed [length]: the
         profile's station table reports the freeboard to it, and a warning
@@ -114,6 +122,7 @@ class Segment(FrozenModel):
     gate: SluiceGate | None = None
     bank_height: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     drop: float = Field(default=0.0, ge=0, allow_inf_nan=False)
+    inflow: float = Field(default=0.0, allow_inf_nan=False)
 
     @model_validator(mode="after")
     def _drop_without_gate(self):
@@ -143,6 +152,7 @@ class Segment(FrozenModel):
     def __repr__(self):
         label = f"{self.name!r}, " if self.name else ""
         gate = f", gate={self.gate!r}" if self.gate is not None else ""
+        gate += f", inflow={self.inflow:g}" if self.inflow else ""
         rough = f", roughness={self.roughness!r}" if self.roughness is not None else ""
         drop = f", drop={self.drop:g}" if self.drop else ""
         return (f"Segment({label}length={self.length:g}, slope={self.slope:g}, section={self.section!r}"
@@ -191,11 +201,27 @@ class Reach(FrozenModel):
         if self.segments[0].drop:
             raise InvalidInputError("segments[0].drop: a drop stands at the junction with the segment above, and "
                                     "the first segment has none; leave its drop at 0")
+        if self.segments[0].inflow:
+            raise InvalidInputError("segments[0].inflow: the first segment's discharge is the reach's; add the "
+                                    "inflow to Reach.discharge, or give it to a later segment")
+        q = self.segment_discharges(self.discharge)
+        if np.any(q <= 0):
+            k = int(np.flatnonzero(q <= 0)[0])
+            raise InvalidInputError(f"segments[{k}].inflow: the withdrawals leave no discharge in segment {k} "
+                                    f"({q[k]:g}); the discharge must stay positive along the reach")
         for end in ("upstream", "downstream"):
             ctrl = getattr(self, end)
             if ctrl is not None:
                 ctrl.check_end(end)
         return self
+
+    def segment_discharges(self, discharge) -> np.ndarray:
+        """Discharge in each segment for the reach discharge(s) ``discharge``: shape (..., K) [length³/s].
+
+        The discharge entering the reach plus every segment inflow down to and including the segment's own.
+        """
+        added = np.cumsum([s.inflow for s in self.segments])
+        return np.asarray(discharge, dtype=float)[..., None] + added
 
     # -- geometry --------------------------------------------------------------------
     @property

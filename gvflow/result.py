@@ -36,7 +36,8 @@ def water_unit_weight(units) -> float:
         return 1000.0 * units.g
     return rho * units.g
 
-_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head")
+_STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head", "energy_coefficient",
+                 "discharge")
 _REGIME_LOOKUP = np.array([REGIME_NAMES[REGIME_SUPER], REGIME_NAMES[REGIME_CRITICAL], REGIME_NAMES[REGIME_SUB]])
 
 
@@ -85,9 +86,9 @@ def _coefficients_used(reach, jumps, notes) -> list:
 
 
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
-    """(A, T, Sf, V, Fr, alpha V²/2g) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
+    """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
     segs = sol.segs
-    out = np.empty((6, depth.size))
+    out = np.empty((7, depth.size))
     pars = [sg.cb.par for sg in segs]
     offsets = np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
     zones = max(sg.cb.rough.shape[1] for sg in segs)
@@ -97,7 +98,8 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
     core("march", depth.size).station_quantities(
         np.array([sg.cb.kind for sg in segs], np.int64), np.concatenate(pars), offsets,
         np.array([sg.cb.law for sg in segs], np.int64), roughs, np.ascontiguousarray(seg_ix, np.int64),
-        segs[0].fl, float(segs[0].discharge[i]), np.ascontiguousarray(depth, float), segs[0].alpha, out)
+        segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
+        out)
     return out
 
 
@@ -150,13 +152,20 @@ class Profile:
 
     Arrays run upstream to downstream, one value per station [units of the reach]:
     ``x`` (distance from the upstream end), ``depth``, ``stage`` (water-surface
-    elevation), ``bed`` (bed elevation), ``velocity``, ``froude``,
+    elevation), ``bed`` (bed elevation), ``discharge`` (constant unless segments
+    have inflows: at an inflow two stations share its x, the discharge above
+    it, then below it), ``velocity``, ``froude``,
     ``velocity_head``, ``specific_energy``, ``energy_grade`` (elevation of the
     energy grade line), ``friction_slope``, ``regime`` ("subcritical",
     "critical", "supercritical") and ``segment`` (index). At a hydraulic jump
     two stations share one x: the supercritical then the subcritical depth.
     ``froude`` is V / sqrt(g A/T); with an energy coefficient alpha ≠ 1 the
-    flow is critical where alpha Fr² = 1, which ``regime`` reflects.
+    flow is critical where alpha Fr² = 1, which ``regime`` reflects. In a
+    section of several roughness zones (:class:`~gvflow.Surveyed`) ``froude``
+    is the compound Froude number (1 exactly where dE/dy = 0 with alpha
+    varying with depth) and ``energy_coefficient`` (alpha at each station)
+    comes from the zone conveyances; :meth:`zone_table` gives each zone's
+    discharge and velocity.
 
     Other members: ``jumps`` (list of :class:`~gvflow.jumps.Jump`),
     ``profile_types`` (labels of the profile pieces, upstream to downstream),
@@ -190,7 +199,6 @@ class Profile:
         self.reach = reach
         self.method = method
         self.units = reach.resolved_units
-        self.discharge = reach.discharge
         self._stations = stations  # rows: _STATION_ROWS, read-only views of it
         stations.setflags(write=False)
         for name, row in zip(_STATION_ROWS, stations, strict=True):
@@ -255,8 +263,9 @@ class Profile:
         # a junction station appears twice; keep one where nothing changes across it
         drop = np.array([s.drop for s in reach.segments])
         keep = np.ones(x.size, bool)
+        q_seg = np.array([s.discharge[i] for s in sol.segs])
         keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
-                     & (drop[seg[1:]] == 0))
+                     & (drop[seg[1:]] == 0) & (q_seg[seg[1:]] == q_seg[seg[:-1]]))
         x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
@@ -267,7 +276,8 @@ class Profile:
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
-        stations[3:] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head
+        stations[3:8] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head, alpha
+        stations[8] = q_seg[seg]
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
@@ -402,15 +412,15 @@ class Profile:
     def table(self) -> np.ndarray:
         """Station table as a NumPy structured array (one row per station).
 
-        Columns: x, bed, depth, stage, velocity, froude, specific_energy,
-        energy_grade, friction_slope, area, top_width, hydraulic_radius,
+        Columns: x, discharge, bed, depth, stage, velocity, froude, energy_coefficient,
+        specific_energy, energy_grade, friction_slope, area, top_width, hydraulic_radius,
         shear_stress (gamma R Sf, see :attr:`shear_stress`), freeboard (to the
         segment's ``bank_height``, NaN where none), hydraulic_grade,
         head_above_crown (NaN in open sections), segment, regime, surcharged.
         """
-        names = ["x", "bed", "depth", "stage", "velocity", "froude", "specific_energy", "energy_grade",
-                 "friction_slope", "area", "top_width", "hydraulic_radius", "shear_stress", "freeboard",
-                 "hydraulic_grade", "head_above_crown"]
+        names = ["x", "discharge", "bed", "depth", "stage", "velocity", "froude", "energy_coefficient",
+                 "specific_energy", "energy_grade", "friction_slope", "area", "top_width", "hydraulic_radius",
+                 "shear_stress", "freeboard", "hydraulic_grade", "head_above_crown"]
         dt = [(n, "f8") for n in names] + [("segment", "i4"), ("regime", "U13"), ("surcharged", "?")]
         out = np.empty(self.x.size, dtype=dt)
         for n in names:
@@ -419,6 +429,39 @@ class Profile:
         out["regime"] = self.regime
         out["surcharged"] = self.surcharged
         return out
+
+    def zone_table(self):
+        """How the discharge divides among each station's roughness zones, as a pandas DataFrame.
+
+        One row per station and zone (a geometric section is one zone): ``x``, ``segment``, ``zone``
+        (0 from the left bank, looking downstream), ``area``, ``wetted_perimeter``, ``top_width``,
+        ``conveyance`` and the zone's ``discharge`` Q_i = Q K_i/K and ``velocity`` Q_i/A_i (vertical
+        division lines, subdivided conveyance: Chow 1959, *Open-Channel Hydraulics*, §6-7).
+        """
+        import pandas as pd
+
+        from ._core.records import fluid
+        from .friction import core_channel
+
+        fl = fluid(self.units)
+        parts = []
+        for k, seg in enumerate(self.reach.segments):
+            idx = np.flatnonzero(self.segment == k)
+            if not idx.size:
+                continue
+            ch = core_channel(seg.section, seg.roughness)
+            zones = getattr(seg.section, "zone_count", 1)
+            block = np.empty((idx.size, zones, 6))
+            kernel = core("arrays", idx.size * zones)
+            for r, i in enumerate(idx):
+                kernel.zone_table(ch, fl, float(self.discharge[i]), float(self.depth[i]), block[r])
+            cols = {"x": np.repeat(self.x[idx], zones), "segment": np.full(idx.size * zones, k),
+                    "zone": np.tile(np.arange(zones), idx.size)}
+            for j, name in enumerate(("area", "wetted_perimeter", "top_width", "conveyance", "discharge",
+                                      "velocity")):
+                cols[name] = block[:, :, j].ravel()
+            parts.append(pd.DataFrame(cols))
+        return pd.concat(parts, ignore_index=True)
 
     def to_pandas(self):
         """Station table (:meth:`table`) as a pandas DataFrame."""
@@ -437,7 +480,7 @@ class Profile:
         """A readable multi-line report: segments, controls, jumps, profile types, station table."""
         u = self.units
         L = u.length
-        lines = [f"Water-surface profile: Q = {self.discharge:g} {u.discharge}, {len(self.reach.segments)} "
+        lines = [f"Water-surface profile: Q = {self.reach.discharge:g} {u.discharge}, {len(self.reach.segments)} "
                  f"segment(s), {self.x[-1]:g} {L} long, method {self.method}"]
         lines.append("")
         lines.append(f"{'seg':>3} {'x from':>9} {'x to':>9} {'slope':>9} {'class':>10} {'yn':>8} {'yc':>8}")
@@ -486,7 +529,7 @@ class Profile:
 
     def __repr__(self):
         jumps = ", ".join(f"x={j.x:.2f}" for j in self.jumps) or "none"
-        return (f"<Profile Q={self.discharge:g} {self.units.discharge}, {self.x.size} stations over "
+        return (f"<Profile Q={self.reach.discharge:g} {self.units.discharge}, {self.x.size} stations over "
                 f"{self.x[-1]:g} {self.units.length}, types {self.profile_types}, jumps: {jumps}; "
                 f"depth range {self.depth.min():.3f}-{self.depth.max():.3f} {self.units.length}>")
 

@@ -276,9 +276,9 @@ def test_blocks_and_progress_do_not_change_results(capsys):
 def test_container_protocol_and_repr():
     result = chute().sweep(discharge=[8.0, 10.0, 12.0], n_steps=20)
     assert len(result) == 3
-    assert [p.discharge for p in result] == [8.0, 10.0, 12.0]
-    assert result[-1].discharge == 12.0
-    assert [p.discharge for p in result[1:]] == [10.0, 12.0]
+    assert [p.reach.discharge for p in result] == [8.0, 10.0, 12.0]
+    assert np.all(result[-1].discharge == 12.0)  # one value per station, constant without inflows
+    assert [p.discharge[0] for p in result[1:]] == [10.0, 12.0]
     text = repr(result)
     assert "3 scenarios" in text and "m³/s" in text and "jumps in 3 of 3" in text
     assert result.depth.shape == result.stage.shape == result.velocity.shape == (3, result.x.size)
@@ -391,7 +391,7 @@ def test_solve_many_chunks_the_work():
     with CountingExecutor() as ex:
         out = gv.solve_many(reaches, ex, n_steps=10)
     assert ex.tasks == 8  # about four tasks per worker, not one per reach
-    assert [p.discharge for p in out] == [r.discharge for r in reaches]
+    assert [p.discharge[-1] for p in out] == [r.discharge for r in reaches]
     with CountingExecutor() as ex:
         gv.solve_many(reaches, ex, chunk_size=50, n_steps=10)
     assert ex.tasks == 4

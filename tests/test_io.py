@@ -231,7 +231,7 @@ def test_demo_shows_the_promised_profiles(demo):
 def test_demo_critical_depth_at_the_break(demo):
     # Rectangular channel: yc = (q²/g)^(1/3) (Chow 1959, Open-Channel Hydraulics, ch. 4; equation number not
     # given here: cited from memory).
-    q = demo.discharge / 4.0
+    q = demo.reach.discharge / 4.0
     yc = (q * q / 9.80665) ** (1.0 / 3.0)
     at_break = demo.depth[np.isclose(demo.x, 400.0)]
     assert at_break.size >= 1
@@ -241,7 +241,7 @@ def test_demo_critical_depth_at_the_break(demo):
 def test_demo_jumps_obey_belanger(demo):
     # Rectangular channel: y2/y1 = (sqrt(1 + 8 F1²) - 1)/2 (Belanger 1828, as given by Chow 1959, eq. 3-23),
     # with F1 = V1/sqrt(g y1) computed here from y1 alone.
-    q = demo.discharge / 4.0
+    q = demo.reach.discharge / 4.0
     for jp in demo.jumps:
         f1 = q / (jp.upstream_depth * math.sqrt(9.80665 * jp.upstream_depth))
         assert jp.froude == pytest.approx(f1, rel=1e-9)

@@ -239,3 +239,46 @@ def test_roughness_belongs_to_a_surveyed_segment():
     assert gv.Reach.model_validate_json(reach.model_dump_json()) == reach
     with pytest.raises(gv.InvalidInputError, match="roughness sweeps"):
         reach.sweep(roughness_scale=np.array([0.9, 1.1]))
+
+
+def test_profile_carries_alpha_compound_froude_and_zone_flows_per_station():
+    # A compound channel running over its banks: per-station alpha from the zone velocities,
+    # alpha = sum(V_i² Q_i) A² / Q³ (US FHWA, Highways in the River Environment, 1990, ch. 2: the
+    # measured-velocity form; identity), continuity over the zones, and alpha V²/2g as the velocity head.
+    reach = gv.Reach(segments=[gv.Segment(length=800.0, slope=5e-4, section=COMPOUND)], discharge=120.0,
+                     downstream=gv.FixedDepth(2.6))
+    p = reach.solve(n_steps=40)
+    zt = p.zone_table()
+    assert len(zt) == p.x.size * COMPOUND.zone_count
+    for i in (0, 17, p.x.size - 1):
+        z = zt[zt.x == p.x[i]]
+        q, a = z.discharge.to_numpy(), z.area.to_numpy()
+        assert q.sum() == pytest.approx(p.discharge[i], rel=1e-12)
+        np.testing.assert_allclose(z.velocity.to_numpy(), q / a, rtol=1e-12)
+        alpha = float(np.sum(z.velocity.to_numpy() ** 2 * q) * a.sum() ** 2 / p.discharge[i] ** 3)
+        assert p.energy_coefficient[i] == pytest.approx(alpha, rel=1e-11)
+        assert p.energy_coefficient[i] > 1.2  # floodplains flowing slowly beside the main channel
+        assert p.velocity_head[i] == pytest.approx(alpha * p.velocity[i] ** 2 / (2 * 9.80665), rel=1e-11)
+    assert "energy_coefficient" in p.table().dtype.names
+    # a geometric section's alpha is the reach's
+    rect = gv.Reach(segments=[gv.Segment(length=100.0, slope=1e-3, section=gv.Rectangular(width=3.0),
+                                         roughness=0.015)], discharge=4.0, alpha=1.1)
+    pr = rect.solve(n_steps=10)
+    assert np.all(pr.energy_coefficient == 1.1)
+    assert len(pr.zone_table()) == pr.x.size
+
+
+def test_discharge_sweep_of_a_surveyed_reach_gives_each_scenario_as_alone():
+    # two segments of different surveyed sections, mixed with a geometric one
+    other = gv.Surveyed(offset=[-80, -80, 0, 0, 12, 12, 90, 90], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
+                        roughness=[0.05, 0.032, 0.05], zone_edges=[0, 12])
+    reach = gv.Reach(segments=[gv.Segment(length=300.0, slope=5e-4, section=COMPOUND),
+                               gv.Segment(length=300.0, slope=5e-4, section=other),
+                               gv.Segment(length=100.0, slope=5e-4, section=gv.Rectangular(width=12.0),
+                                          roughness=0.03)],
+                     discharge=60.0, downstream=gv.FixedDepth(2.8))
+    res = reach.sweep(discharge=[30.0, 60.0, 150.0], n_steps=20)
+    for i, q in enumerate([30.0, 60.0, 150.0]):
+        alone = reach.model_copy(update={"discharge": q}).solve(n_steps=20)
+        np.testing.assert_array_equal(res[i].depth, alone.depth)
+    assert np.isnan(res.roughness[0, 0]) and res.roughness[0, 2] == 0.03

@@ -674,17 +674,18 @@ def froude_band_depths(cb, fl, q, lo_fr, hi_fr, y_lo, y_hi):
 
 
 @kernel
-def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, q, y, alpha, out):
-    """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g) at depth y[i] in segment seg[i] for one discharge q;
-    NaN where y[i] is not positive. Segment s has kind ``kinds[s]``, parameters
+def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, qs, y, alpha, out):
+    """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g, alpha) at depth y[i] in segment seg[i], whose discharge is
+    qs[seg[i]]; NaN where y[i] is not positive. Segment s has kind ``kinds[s]``, parameters
     ``pars[offsets[s]:offsets[s + 1]]``, law ``laws[s]`` and zone roughness ``roughs[s]`` (padded rows)."""
     for i in range(y.shape[0]):
         yi = y[i]
         if not (yi > 0.0):
-            for j in range(6):
+            for j in range(7):
                 out[j, i] = math.nan
             continue
         s = seg[i]
+        q = qs[s]
         ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
         a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, yi, alpha)
         v = q / a
@@ -695,3 +696,4 @@ def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, q, y, alpha,
         # the Froude number V/sqrt(gA/T) of a geometric section; a surveyed section's compound one
         out[4, i] = math.sqrt(fr2) if ch.kind == SURVEYED else math.sqrt(fr2 / al)
         out[5, i] = al * v * v / (2.0 * fl.g)
+        out[6, i] = al

@@ -178,6 +178,30 @@ def subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
     return seg if idx.size == seg.n else seg.take(idx)
 
 
+def depth_with_force(seg: SegmentBatch, force):
+    """Supercritical depth whose specific force in ``seg`` is ``force``; critical depth (flagged) where the
+    force is below the section's least specific force (at critical depth)."""
+    yc = seg.yc
+    ok = force > seg.specific_force(yc)
+    out = yc.copy()
+    if np.any(ok):
+        idx = np.flatnonzero(ok)
+        sub = subset(seg, idx)
+        target = force[idx]
+
+        def fun(z):
+            return target - sub.specific_force(z)  # rises through zero from a shallow depth to yc
+
+        lo = sub.yc * 1e-3
+        for _ in range(60):
+            need = fun(lo) > 0
+            if not np.any(need):
+                break
+            lo = np.where(need, lo * 0.5, lo)
+        out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="supercritical depth below an inflow")
+    return out, ~ok
+
+
 def depth_with_energy(seg: SegmentBatch, e, branch):
     """Depth on ``branch`` whose specific energy in ``seg`` is ``e``; critical depth (flagged) where none is."""
     yc = seg.yc
