@@ -664,14 +664,17 @@ def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, q, y, alpha,
     """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g) at depth y[i] in segment seg[i] for one discharge q;
     NaN where y[i] is not positive. Segment s has kind ``kinds[s]``, parameters
     ``pars[offsets[s]:offsets[s + 1]]``, law ``laws[s]`` and zone roughness ``roughs[s]`` (padded rows)."""
+    s = seg[0] if y.shape[0] > 0 else 0
+    ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
     for i in range(y.shape[0]):
         yi = y[i]
         if not (yi > 0.0):
             for j in range(6):
                 out[j, i] = math.nan
             continue
-        s = seg[i]
-        ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
+        if seg[i] != s:  # the stations run segment by segment: a new channel record only where it changes
+            s = seg[i]
+            ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
         a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, yi, alpha)
         v = q / a
         out[0, i] = a
