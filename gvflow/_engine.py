@@ -91,9 +91,15 @@ def compiled_wanted(work: int) -> bool:
     return False
 
 
+_modules: dict[tuple[bool, str], object] = {}  # (compiled, name) -> module, once imported
+
+
 def core(name: str, work: int = 0):
     """The core module ``name`` (``"geometry"``, ``"resistance"``, ``"flow"``, ...) to run a call on."""
-    if compiled_wanted(work):
-        return importlib.import_module(f"{CORE}.{name}")
-    _plain_package()
-    return importlib.import_module(f"{PLAIN}.{name}")
+    compiled = compiled_wanted(work)
+    mod = _modules.get((compiled, name))
+    if mod is None:
+        if not compiled:
+            _plain_package()
+        mod = _modules[compiled, name] = importlib.import_module(f"{CORE if compiled else PLAIN}.{name}")
+    return mod

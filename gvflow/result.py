@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -38,6 +39,13 @@ def water_unit_weight(units) -> float:
 
 _STATION_ROWS = ("x", "depth", "bed", "friction_slope", "velocity", "froude", "velocity_head", "energy_coefficient",
                  "discharge")
+
+
+def _read_only(a: np.ndarray) -> np.ndarray:
+    a.setflags(write=False)
+    return a
+
+
 _REGIME_LOOKUP = np.array([REGIME_NAMES[REGIME_SUPER], REGIME_NAMES[REGIME_CRITICAL], REGIME_NAMES[REGIME_SUB]])
 
 
@@ -65,11 +73,12 @@ def _coefficients_used(reach, jumps, notes) -> list:
 
     from .coefficients import used
 
-    x_end = float(reach.boundaries[-1])
+    gates = [k for k, seg in enumerate(reach.segments) if seg.gate is not None]
+    xb = reach.boundaries if gates else None
+    x_end = float(xb[-1]) if gates else reach.length  # (the same sum, in the same order)
     unused = {x for x, kind, _ in notes if kind in ("unused control", "jump swept out")}
     places = [(0.0, "upstream control", reach.upstream), (x_end, "downstream control", reach.downstream)]
-    places += [(float(reach.boundaries[k]), f"gate at the head of segment {k}", seg.gate)
-               for k, seg in enumerate(reach.segments) if seg.gate is not None]
+    places += [(float(xb[k]), f"gate at the head of segment {k}", reach.segments[k].gate) for k in gates]
     out = []
     for x, where, ctrl in places:
         if ctrl is None or (where.endswith("control") and x in unused):
@@ -201,14 +210,11 @@ class Profile:
         self.units = reach.resolved_units
         self._stations = stations  # rows: _STATION_ROWS, read-only views of it
         stations.setflags(write=False)
-        for name, row in zip(_STATION_ROWS, stations, strict=True):
-            setattr(self, name, row)
-        self.stage = self.bed + self.depth
-        self.specific_energy = self.depth + self.velocity_head
-        self.energy_grade = self.stage + self.velocity_head
+        (self.x, self.depth, self.bed, self.friction_slope, self.velocity, self.froude, self.velocity_head,
+         self.energy_coefficient, self.discharge) = stations  # the rows of _STATION_ROWS
         self._regime_code = np.asarray(regime, np.int8)
-        self.regime = _REGIME_LOOKUP[self._regime_code + 1]
         self.segment = segment
+        segment.setflags(write=False)
         self.jumps = jumps
         self.pieces = pieces
         self.profile_types = [p.label for p in pieces]
@@ -223,9 +229,29 @@ class Profile:
         self.surcharged_lengths = (np.zeros(len(reach.segments)) if surcharged_lengths is None
                                    else np.asarray(surcharged_lengths, dtype=float))
         self.max_head_above_crown = float(np.max(self.head_above_crown, where=self.surcharged, initial=0.0))
-        for name in ("stage", "specific_energy", "energy_grade", "regime", "segment", "head_above_crown",
-                     "surcharged", "surcharged_lengths"):
+        for name in ("head_above_crown", "surcharged", "surcharged_lengths"):
             getattr(self, name).setflags(write=False)
+
+    # the arrays that follow from the station rows, computed when first asked for (read-only, like the rows)
+    @functools.cached_property
+    def stage(self) -> np.ndarray:
+        """Water-surface elevation at each station [length]."""
+        return _read_only(self.bed + self.depth)
+
+    @functools.cached_property
+    def specific_energy(self) -> np.ndarray:
+        """Specific energy y + alpha V²/2g at each station [length]."""
+        return _read_only(self.depth + self.velocity_head)
+
+    @functools.cached_property
+    def energy_grade(self) -> np.ndarray:
+        """Elevation of the energy grade line at each station [length]."""
+        return _read_only(self.stage + self.velocity_head)
+
+    @functools.cached_property
+    def regime(self) -> np.ndarray:
+        """Flow regime at each station: "subcritical", "critical" or "supercritical"."""
+        return _read_only(_REGIME_LOOKUP[self._regime_code + 1])
 
     def _state(self) -> tuple:
         """What makes this profile besides its reach, compact (one station array, regime codes, plain tuples),

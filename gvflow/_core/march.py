@@ -49,6 +49,18 @@ def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
 
 
 @kernel
+def station_state(ch, fl, q, alpha, y):
+    """What a standard step needs of its start at depth y, and the relaxation rate there, from one pass of
+    :func:`~gvflow._core.resistance.hydraulics`: (specific energy, friction slope, velocity head, rate).
+    The march computes it once at each depth it reaches: the rate decides the next interval's sub-steps
+    and the rest starts the next step (see :func:`relaxation_rate`, :func:`step_from`)."""
+    a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
+    hv = al * (q / a) * (q / a) / (2.0 * fl.g)
+    sf = slope_of(q, kk)
+    return y + hv, sf, hv, sf * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
+
+
+@kernel
 def step(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     """Depth after a standard step of signed length d on ``branch``.
 
@@ -57,10 +69,14 @@ def step(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     profile reaches critical depth within the step); 2 the depth would exceed
     the crown of a closed conduit; 3 no convergence.
     """
-    a1, t1, m1, k1, dlnk1, al1, be1, fr21 = hydraulics(ch, fl, q, y1, alpha)
-    hv1 = al1 * (q / a1) * (q / a1) / (2.0 * fl.g)
-    e1 = y1 + hv1
-    sf1 = slope_of(q, k1)
+    e1, sf1, hv1, rate1 = station_state(ch, fl, q, alpha, y1)
+    return step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess)
+
+
+@kernel
+def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
+    """:func:`step` from depth y1 whose specific energy e1, friction slope sf1 and velocity head hv1 are
+    known (:func:`station_state`)."""
     # Fast path: Newton from the guess, accepted only if every iterate stays on
     # the branch (the residual is monotone there, so the root is the branch's).
     y = guess
@@ -213,9 +229,7 @@ def relaxation_rate(ch, fl, q, alpha, y):
     """Rate [1/length] at which a profile near depth y relaxes toward normal depth: |dSf/dy| / |1 - Fr²|,
     the stiffness of the GVF equation (its Jacobian where S0 = Sf). A trapezoidal energy step longer than
     2/rate overshoots normal depth; the march keeps its sub-steps within 1/(4 rate)."""
-    a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
-    sf = slope_of(q, kk)
-    return sf * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
+    return station_state(ch, fl, q, alpha, y)[3]
 
 
 @kernel
@@ -351,8 +365,12 @@ def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
     return y, abs(d), 0
 
 
+#: a depth's :func:`station_state` not yet known (a rate that is not positive means unknown)
+UNKNOWN_STATE = (0.0, 0.0, 0.0, -1.0)
+
+
 @kernel
-def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, rate1):
+def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, state1):
     """Depth one station interval (signed length d) from depth y1 on ``branch``: (depth, code, dist, rate).
 
     Near critical depth (within :data:`CRITICAL_BAND`) the interval is integrated in the x(y) form
@@ -361,9 +379,9 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
     1/:func:`relaxation_rate` where the interval is longer than that length, so the depth approaches
     normal depth monotonically at any station spacing; past :data:`MAX_SUBSTEPS` sub-steps they are
     damped end-slope (backward Euler) steps, monotone at any length. Codes as :func:`step`; with code 1,
-    ``dist`` is the distance from y1 at which the profile reaches critical depth. ``rate1`` is the
-    relaxation rate at y1 when the caller knows it (the previous interval's ``rate``), else -1; ``rate``
-    is the rate at the returned depth where known, else -1.
+    ``dist`` is the distance from y1 at which the profile reaches critical depth. ``state1`` is the
+    :func:`station_state` of y1 when the caller knows it (the previous interval's ``state``), else
+    :data:`UNKNOWN_STATE`; ``state`` is the state of the returned depth where known, else UNKNOWN_STATE.
     """
     y = y1
     done = 0.0
@@ -372,18 +390,18 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
     first = True
     legs = 0
     hint = 0.0  # relaxation rate met at the far end of a rejected step
-    rate_y = rate1  # relaxation rate at y, once known
+    e_y, sf_y, hv_y, rate_y = state1  # station_state of y, once known (rate_y > 0)
     for _ in range(4 * MAX_SUBSTEPS):
         rest = total - done
         if rest <= 1e-12 * total:
-            return y, 0, done, rate_y
+            return y, 0, done, (e_y, sf_y, hv_y, rate_y)
         if legs < 60 and abs(y - yc) <= CRITICAL_BAND * yc:
             legs += 1
             yl, dist, code = critical_leg(ch, fl, q, s0, y, sgn * rest, yc, branch, alpha, ce, ymax)
             if code == 0:
-                return yl, 0, total, -1.0
+                return yl, 0, total, UNKNOWN_STATE
             if code == 1:
-                return yc, 1, done + dist, -1.0
+                return yc, 1, done + dist, UNKNOWN_STATE
             if code == 5:
                 y = yl
                 rate_y = -1.0
@@ -391,7 +409,7 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
                 first = False
                 continue
         if not rate_y > 0.0:
-            rate_y = relaxation_rate(ch, fl, q, alpha, y)
+            e_y, sf_y, hv_y, rate_y = station_state(ch, fl, q, alpha, y)
         rate = max(rate_y, hint)
         h = rest
         how = avg
@@ -402,12 +420,13 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
             h = min(max(0.25 / rate, total / MAX_SUBSTEPS), rest)
             if rate * h > 1.5:
                 how = AVG_END
-        y2, code = step(ch, fl, q, s0, y, sgn * h, yc, branch, alpha, ce, how,
-                        ymax, tol, guess if first and h >= rest else y)
+        y2, code = step_from(ch, fl, q, s0, y, e_y, sf_y, hv_y, sgn * h, yc, branch, alpha, ce, how,
+                             ymax, tol, guess if first and h >= rest else y)
         if code == 1 and how != AVG_END:
             # a trapezoidal step long against the relaxation length near normal depth can overshoot
             # past critical depth: the damped step, monotone, tells whether the profile stiffens there
-            y_be, code_be = step(ch, fl, q, s0, y, sgn * h, yc, branch, alpha, ce, AVG_END, ymax, tol, y)
+            y_be, code_be = step_from(ch, fl, q, s0, y, e_y, sf_y, hv_y, sgn * h, yc, branch, alpha, ce, AVG_END,
+                                      ymax, tol, y)
             if code_be == 0:
                 rate2 = relaxation_rate(ch, fl, q, alpha, y_be)
                 if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
@@ -420,23 +439,23 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
         if code != 0:
             if code == 1:
                 dc = critical_distance(ch, fl, q, s0, y, yc, alpha, avg)
-                return yc, 1, done + min(max(dc * sgn, 0.0), h), -1.0
-            return y2, code, done, -1.0
+                return yc, 1, done + min(max(dc * sgn, 0.0), h), UNKNOWN_STATE
+            return y2, code, done, UNKNOWN_STATE
         if how != AVG_END:
             # the profile may stiffen along the step (deep flow relaxing fast near normal depth): a step
             # long against the relaxation length at its far end is taken again, shorter
-            rate2 = relaxation_rate(ch, fl, q, alpha, y2)
+            e2, sf2, hv2, rate2 = station_state(ch, fl, q, alpha, y2)
             if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
                 hint = rate2
                 continue
-            rate_y = rate2  # the next sub-step starts at y2
+            e_y, sf_y, hv_y, rate_y = e2, sf2, hv2, rate2  # the next sub-step starts at y2
         else:
             rate_y = -1.0
         hint = 0.0
         y = y2
         done += h
         first = False
-    return y, 3, done, -1.0
+    return y, 3, done, UNKNOWN_STATE
 
 
 @kernel
@@ -460,7 +479,7 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
     for s in range(ns):
         ch = scenario(cb, s)
         y = y0[s]
-        rate = -1.0  # relaxation rate at y, carried from one interval to the next
+        state = UNKNOWN_STATE  # station_state of y, carried from one interval to the next
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
@@ -473,8 +492,8 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
             continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code, dist, rate = advance(ch, fl, q[s], s0, y, d, yc[s], branch, alpha, ce, avg, ymax, tol,
-                                           extrapolate(x, out_y[s], j, even), rate)
+            y2, code, dist, state = advance(ch, fl, q[s], s0, y, d, yc[s], branch, alpha, ce, avg, ymax, tol,
+                                            extrapolate(x, out_y[s], j, even), state)
             if code != 0:
                 out_n[s] = j
                 out_code[s] = code
@@ -598,7 +617,7 @@ def _branch_depth(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol):
     """Depth a signed distance d from (y1) along ``branch``; critical depth where the branch ends."""
     if d == 0.0:
         return y1
-    y, code, dist, rate = advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, y1, -1.0)
+    y, code, dist, state = advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, y1, UNKNOWN_STATE)
     return y if code == 0 else yc
 
 
@@ -678,15 +697,18 @@ def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, qs, y, alpha
     """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g, alpha) at depth y[i] in segment seg[i], whose discharge is
     qs[seg[i]]; NaN where y[i] is not positive. Segment s has kind ``kinds[s]``, parameters
     ``pars[offsets[s]:offsets[s + 1]]``, law ``laws[s]`` and zone roughness ``roughs[s]`` (padded rows)."""
+    s = seg[0] if y.shape[0] > 0 else 0
+    ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
     for i in range(y.shape[0]):
         yi = y[i]
         if not (yi > 0.0):
             for j in range(7):
                 out[j, i] = math.nan
             continue
-        s = seg[i]
+        if seg[i] != s:  # the stations run segment by segment: a new channel record only where it changes
+            s = seg[i]
+            ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
         q = qs[s]
-        ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
         a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, yi, alpha)
         v = q / a
         out[0, i] = a

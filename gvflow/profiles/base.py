@@ -15,6 +15,7 @@ a subclass itself.
 
 from __future__ import annotations
 
+import functools
 import inspect
 from dataclasses import dataclass, field
 
@@ -338,6 +339,13 @@ def register_marcher(cls: type[Marcher]) -> type[Marcher]:
     return cls
 
 
+@functools.lru_cache(maxsize=64)
+def _options_of(cls: type[Marcher]) -> tuple[str, ...]:
+    """The keyword options a marcher class's constructor takes (read once per class)."""
+    return tuple(name for name, p in inspect.signature(cls.__init__).parameters.items()
+                 if name != "self" and p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY))
+
+
 def get_marcher(method, **options) -> Marcher:
     """Instantiate the marcher registered as ``method`` (or the ``Marcher`` subclass given)."""
     if isinstance(method, Marcher):
@@ -352,8 +360,7 @@ def get_marcher(method, **options) -> Marcher:
         except (KeyError, TypeError):
             raise InvalidInputError(
                 f"method must be one of {sorted(MARCHERS)} or a Marcher subclass; got {method!r}") from None
-    accepted = [name for name, p in inspect.signature(cls.__init__).parameters.items()
-                if name != "self" and p.kind in (p.POSITIONAL_OR_KEYWORD, p.KEYWORD_ONLY)]
+    accepted = _options_of(cls)
     unknown = sorted(set(options) - set(accepted))
     if unknown:
         raise InvalidInputError(
