@@ -562,3 +562,70 @@ AnySection = Annotated[
     Rectangular | Trapezoidal | Triangular | Circular | Parabolic | WideRectangular | Surveyed,
     Field(discriminator="shape"),
 ]
+
+
+def _sides(par: np.ndarray):
+    """A packed surveyed section split at its lowest point: (x, z, bounds, active, thalweg index)."""
+    n, nz = int(par[0]), int(par[1])
+    x, z = par[2:2 + n], par[2 + n:2 + 2 * n]
+    bounds, active = par[2 + 2 * n:3 + 2 * n + nz], par[3 + 2 * n + nz:3 + 2 * n + 2 * nz]
+    return x, z, bounds, active, int(np.argmin(z))
+
+
+def _side_parameter(x, z, i0, step):
+    """Ground length from the lowest point outwards (step -1: to the left end, +1: to the right), as a
+    fraction of the side's length, at each point of that side; (indices, fractions)."""
+    idx = np.arange(i0, -1 if step < 0 else x.size, step)
+    run = np.concatenate([[0.0], np.cumsum(np.hypot(np.diff(x[idx]), np.diff(z[idx])))])
+    return idx, (run / run[-1] if run[-1] > 0 else run)
+
+
+def matched_parameters(upstream: Section, downstream: Section):
+    """The core parameters of two sections brought to one layout, so that a section between them is
+    ``(1 - t) * upstream + t * downstream`` parameter by parameter: (kind, par_up, par_dn).
+
+    Geometric sections must be of one kind (a rectangle, a trapezoid and a triangle are one kind: bed
+    width and two bank slopes); their parameters are interpolated as they are (bed width, bank slopes,
+    diameter). Two surveyed sections must have the same number of zones (after the cuts at ineffective
+    areas). Each is split at its lowest point and both sides are described by the ground length from
+    that point outwards, as a fraction of the side's length; both sections are resampled at the union
+    of their points' fractions (points added on straight ground change nothing), with offsets taken
+    from the lowest point. So the lowest points, the ends and the zones of the two sections correspond,
+    and every section between has its lowest point at depth 0. Zone edges (as offsets from the lowest
+    point) and the depths below which zones are ineffective are interpolated the same way.
+    """
+    kind, par_up = upstream.core_params()
+    kind_dn, par_dn = downstream.core_params()
+    if kind != kind_dn or (kind != SURVEYED and par_up.size != par_dn.size):
+        raise InvalidInputError(
+            f"section_downstream: a section can change only into one of its kind (the trapezoid family "
+            f"(rectangle, trapezoid, triangle), circle, parabola, wide channel or surveyed); got "
+            f"{type(upstream).__name__} changing into {type(downstream).__name__}")
+    if kind != SURVEYED:
+        return kind, np.asarray(par_up, float), np.asarray(par_dn, float)
+    if upstream.zone_count != downstream.zone_count:
+        raise InvalidInputError(
+            f"section_downstream: both surveyed sections need the same number of zones to be interpolated; "
+            f"the upstream one has {upstream.zone_count} and the downstream one {downstream.zone_count} "
+            "(give them matching zone_edges, e.g. left overbank, main channel, right overbank)")
+    out = []
+    sides = [_sides(par_up), _sides(par_dn)]
+    fractions = []
+    for step in (-1, 1):
+        f = np.unique(np.concatenate([_side_parameter(x, z, i0, step)[1] for x, z, _, _, i0 in sides]))
+        fractions.append(f)
+    for x, z, bounds, active, i0 in sides:
+        xs, zs = [], []
+        for step, f in zip((-1, 1), fractions, strict=True):
+            idx, frac = _side_parameter(x, z, i0, step)
+            if frac[-1] == 0.0:  # no ground on this side of the lowest point: it is the end point
+                xi, zi = np.full(f.size, x[i0]), np.full(f.size, z[i0])
+            else:
+                xi, zi = np.interp(f, frac, x[idx]), np.interp(f, frac, z[idx])
+            xs.append(xi[::-1] if step < 0 else xi[1:])
+            zs.append(zi[::-1] if step < 0 else zi[1:])
+        xr = np.concatenate(xs) - x[i0]
+        bounds_r = bounds - x[i0]
+        bounds_r[0], bounds_r[-1] = xr[0], xr[-1]
+        out.append(pack_surveyed(xr, np.concatenate(zs), bounds_r[1:-1], active))
+    return kind, out[0], out[1]

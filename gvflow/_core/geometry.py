@@ -152,9 +152,15 @@ def _surveyed_zone(par, y, i):
         return a, p, t, m, dt, dp  # ineffective below its activation depth
     for j in range(n - 1):
         xa = par[xs + j]
+        if xa > hi:
+            break  # offsets never decrease: every piece from here on lies right of the zone
         xb = par[xs + j + 1]
+        if xb < lo:
+            continue
         za = par[zs + j]
         zb = par[zs + j + 1]
+        if za > y and zb > y:
+            continue  # dry
         if xb == xa:
             if not _wall_in_zone(xa, za, zb, lo, hi):
                 continue

@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import functools
 import inspect
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -38,6 +38,29 @@ __all__ = ["SegmentBatch", "MarchResult", "Marcher", "MARCHERS", "register_march
 #: stop codes of a march, per scenario
 STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no convergence",
               4: "overtaken by the competing profile"}
+
+
+@dataclass(frozen=True, eq=False)
+class Change:
+    """How a segment's section changes along it (see :mod:`gvflow._core.changing`).
+
+    ``par_dn`` the core parameters of the downstream end in the layout of the upstream end's,
+    ``rough_dn`` (n, zones) its zone roughness per scenario, ``contraction`` and ``expansion`` the
+    transition loss coefficients, ``x0`` and ``length`` where the segment starts along the reach and
+    how long it is, ``tail`` the downstream end as a prismatic :class:`SegmentBatch`.
+    """
+
+    par_dn: np.ndarray
+    rough_dn: np.ndarray
+    contraction: float
+    expansion: float
+    x0: float
+    length: float
+    tail: SegmentBatch
+
+    def take(self, idx) -> Change:
+        return Change(self.par_dn, np.ascontiguousarray(self.rough_dn[idx]), self.contraction, self.expansion,
+                      self.x0, self.length, self.tail.take(idx))
 
 
 @dataclass(frozen=True, eq=False)
@@ -78,6 +101,7 @@ class SegmentBatch:
     cb: ChannelBatch = field(repr=False)
     fl: Fluid = field(repr=False)
     unconverged: np.ndarray | None = field(default=None, repr=False)
+    change: Change | None = field(default=None, repr=False)
 
     @classmethod
     def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
@@ -89,10 +113,12 @@ class SegmentBatch:
 
     @classmethod
     def _checked(cls, section, slope, roughness, q, u, alpha, coef, critical_tolerance=CRITICAL_SLOPE_TOLERANCE,
-                 strict=True):
+                 strict=True, params=None):
         """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
-        or a float array with one row per scenario it may keep. Returns (batch, friction slope at critical
-        depth, slope class code: an index into SLOPE_CLASSES, critical within ``critical_tolerance``) per scenario."""
+        or a float array with one row per scenario it may keep; ``params`` replaces the section's core
+        parameters (the same section in another layout, :func:`gvflow.sections.matched_parameters`). Returns
+        (batch, friction slope at critical depth, slope class code: an index into SLOPE_CLASSES, critical within
+        ``critical_tolerance``) per scenario."""
         rough = section_roughness(section, roughness)
         if rough is None:
             law, values = section.core_roughness()
@@ -100,7 +126,7 @@ class SegmentBatch:
             law, values = rough.kernel_spec()
         c = np.broadcast_to(np.asarray(values, dtype=float), q.shape + np.shape(values)).copy() if coef is None \
             else coef
-        kind, par = section.core_params()
+        kind, par = section.core_params() if params is None else params
         cb = channel_batch(kind, par, law, c)
         fl = fluid(u)
         yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
@@ -114,6 +140,26 @@ class SegmentBatch:
         if strict:
             batch.require_converged()
         return batch, sf_c, code
+
+    @classmethod
+    def _changing(cls, segment, q, u, alpha, coef, critical_tolerance, x0: float, length: float, strict=True):
+        """A batch for a segment whose section changes from ``segment.section`` (its head) to
+        ``segment.section_downstream`` (its downstream end, :attr:`tail`); returns what :meth:`_checked`
+        returns, the friction slope at critical depth and the slope class taken at the downstream end."""
+        from ..sections import matched_parameters
+
+        kind, par_up, par_dn = matched_parameters(segment.section, segment.section_downstream)
+        head = cls._checked(segment.section, segment.slope, segment.roughness, q, u, alpha, coef, critical_tolerance,
+                            strict, params=(kind, par_up))[0]
+        tail, sf_c, code = cls._checked(segment.section_downstream, segment.slope, segment.roughness, q, u, alpha,
+                                        coef, critical_tolerance, strict, params=(kind, par_dn))
+        if head.cb.rough.shape != tail.cb.rough.shape or head.law != tail.law:
+            raise InvalidInputError("section_downstream: both ends of a changing segment need the same resistance "
+                                    "law and the same number of zones")
+        change = Change(tail.cb.par, tail.cb.rough, float(segment.contraction), float(segment.expansion), float(x0),
+                        float(length), tail)
+        unconverged = None if head.unconverged is None else head.unconverged | tail.unconverged
+        return replace(head, change=change, unconverged=unconverged), sf_c, code
 
     def require_converged(self) -> None:
         """Raise ConvergenceError where a scenario's critical or normal depth did not converge (a solver that
@@ -139,11 +185,53 @@ class SegmentBatch:
         return SegmentBatch(self.section, self.slope, self.law, self.coef[idx], self.discharge[idx],
                             self.units, self.alpha, self.yc[idx], self.yn[idx],
                             ChannelBatch(cb.kind, cb.par, cb.law, np.ascontiguousarray(cb.rough[idx])), self.fl,
-                            None if self.unconverged is None else self.unconverged[idx])
+                            None if self.unconverged is None else self.unconverged[idx],
+                            None if self.change is None else self.change.take(idx))
 
-    def properties(self, depth):
-        """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe."""
+    # -- a section that changes along the segment (``change``): values at fractions t of its length ----------
+    @property
+    def tail(self) -> SegmentBatch:
+        """The segment's downstream end as a prismatic batch (the segment itself when its section does not
+        change); the batch itself stands for its upstream end."""
+        return self if self.change is None else self.change.tail
+
+    def fractions(self, x) -> np.ndarray:
+        """Fraction of a changing segment's length at the distances ``x`` along the reach (0 at its head)."""
+        c = self.change
+        return np.ascontiguousarray(np.clip((np.asarray(x, dtype=float) - c.x0) / c.length, 0.0, 1.0))
+
+    def critical_depths_at(self, t) -> np.ndarray:
+        """Critical depth of each scenario at fractions ``t`` (m,) of a changing segment: shape (n, m)."""
+        t = np.ascontiguousarray(t, dtype=float)
+        if self.change is None:
+            return np.repeat(self.yc[:, None], t.size, axis=1)
+        out = np.empty((self.n, t.size))
+        c = self.change
+        core("changing", 100 * out.size).critical_depths_at(self.cb, c.par_dn, c.rough_dn, self.fl, self.discharge,
+                                                            t, self.alpha, out)
+        return out
+
+    def _at(self, depth, t, energy):
+        c = self.change
+        y2 = np.ascontiguousarray(np.asarray(depth, dtype=float).reshape(self.n, -1))
+        out = np.empty(y2.shape)
+        core("changing", y2.size).force_or_energy_at(self.cb, c.par_dn, c.rough_dn, self.fl, self.discharge, y2,
+                                                     np.ascontiguousarray(t, dtype=float), self.alpha, energy, out)
+        return out
+
+    def properties(self, depth, t=None):
+        """(A, P, T, A*ybar, Sf) of each scenario at ``depth`` (shape (n,) or (n, m)), NaN-safe; for a changing
+        segment ``t`` (m,) gives the fraction of its length at each column (default: its upstream end)."""
         d = np.asarray(depth, dtype=float)
+        if self.change is not None and t is not None:
+            c = self.change
+            rows = np.ascontiguousarray(d.reshape(self.n, -1))
+            m = rows.shape[1]
+            out = np.empty((5, rows.size))
+            core("changing", rows.size).properties_at(
+                self.cb, c.par_dn, c.rough_dn, self.fl, np.repeat(np.arange(self.n), m), np.repeat(self.discharge, m),
+                rows.ravel(), np.tile(np.ascontiguousarray(t, dtype=float), self.n), out)
+            return out.reshape((5,) + d.shape)
         shape = d.shape if d.ndim else (self.n,)
         rows = np.ascontiguousarray((d if d.ndim else np.full(shape, float(d))).reshape(self.n, -1))
         m = rows.shape[1]
@@ -161,12 +249,18 @@ class SegmentBatch:
                                                self.alpha, energy, out)
         return out.reshape(d.shape) if d.ndim else out[:, 0]
 
-    def specific_force(self, depth):
-        """Specific force M = Q²/(gA) + A ybar [length³] of each scenario at ``depth`` ((n,) or (n, m))."""
+    def specific_force(self, depth, t=None):
+        """Specific force M = Q²/(gA) + A ybar [length³] of each scenario at ``depth`` ((n,) or (n, m)); ``t``
+        as in :meth:`properties`."""
+        if self.change is not None and t is not None:
+            return self._at(depth, t, False).reshape(np.shape(depth))
         return self._force_or_energy(depth, False)
 
-    def specific_energy(self, depth):
-        """Specific energy E = y + alpha Q²/(2 g A²) [length] of each scenario at ``depth`` ((n,) or (n, m))."""
+    def specific_energy(self, depth, t=None):
+        """Specific energy E = y + alpha Q²/(2 g A²) [length] of each scenario at ``depth`` ((n,) or (n, m));
+        ``t`` as in :meth:`properties`."""
+        if self.change is not None and t is not None:
+            return self._at(depth, t, True).reshape(np.shape(depth))
         return self._force_or_energy(depth, True)
 
     def friction_slope(self, depth):

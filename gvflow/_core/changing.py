@@ -1,0 +1,176 @@
+"""The standard step between unlike sections: a segment whose section changes along it (private).
+
+A changing segment holds two channels of the same kind and parameter layout, the one at its
+upstream end (``cb``: a :class:`~gvflow._core.records.ChannelBatch`) and the one at its downstream
+end (``par_dn``, ``rough_dn``: parameters and one row of zone roughness per scenario). At fraction
+t of the segment's length the section's parameters and zone roughness are
+``(1 - t) * upstream + t * downstream`` (:func:`channel_at`); how two sections are brought to one
+layout is :func:`gvflow.sections.matched_parameters`.
+
+Between two stations the energy equation of the standard step (Chow 1959, *Open-Channel Hydraulics*,
+§10-3; the same :func:`~gvflow._core.march.step_from` as a prismatic segment) balances the energy at
+station 1, in its own section, against the energy at station 2 in the other, with the friction loss
+over the interval and a transition loss C |Δ(alpha V²/2g)| where C is the contraction coefficient
+when the velocity head grows downstream and the expansion coefficient when it falls (US Army Corps of
+Engineers, EM 1110-2-1416, 1993, from memory). Which one applies depends on the answer: the step is
+solved with the contraction coefficient and taken again with the expansion coefficient when the
+velocity head turns out to fall downstream.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ._jit import kernel
+from .flow import critical_depth, specific_energy, specific_force
+from .geometry import geometry, max_depth
+from .march import station_state, step_from
+from .records import Channel
+from .resistance import friction_slope
+
+
+@kernel
+def channel_at(cb, par_dn, rough_dn, s, t):
+    """The :class:`~gvflow._core.records.Channel` of scenario ``s`` at fraction ``t`` of a changing segment:
+    parameters and zone roughness linear in t, exact at both ends (t = 0 the upstream channel, t = 1 the
+    downstream one)."""
+    if t == 0.0:
+        return Channel(cb.kind, cb.par, cb.law, cb.rough[s])
+    if t == 1.0:
+        return Channel(cb.kind, par_dn, cb.law, rough_dn[s])
+    return Channel(cb.kind, (1.0 - t) * cb.par + t * par_dn, cb.law, (1.0 - t) * cb.rough[s] + t * rough_dn[s])
+
+
+@kernel
+def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, cc, ce, avg, ymax, tol, guess):
+    """Depth at station 2 (channel ``ch2``, signed distance d from station 1 whose state e1, sf1, hv1 in its
+    own channel ``ch1`` is known), with the transition loss of the module notes. (depth, code) as
+    :func:`~gvflow._core.march.step`."""
+    y2, code = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, cc, avg, ymax, tol, guess)
+    if code != 0 or cc == ce:
+        return y2, code
+    hv2 = station_state(ch2, fl, q, alpha, y2)[2]
+    if (hv2 - hv1) * d > 0.0:
+        return y2, code  # the velocity head grows downstream: a contraction, as assumed
+    y3, code3 = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, ce, avg, ymax, tol, y2)
+    if code3 != 0:
+        return y3, code3
+    hv3 = station_state(ch2, fl, q, alpha, y3)[2]
+    if (hv3 - hv1) * d <= 0.0:
+        return y3, 0  # an expansion, as assumed the second time
+    # neither assumption holds: the velocity head hardly changes, and so neither does the loss
+    return (y2, 0) if abs(hv2 - hv1) <= abs(hv3 - hv1) else (y3, 0)
+
+
+@kernel
+def _interval(cb, par_dn, rough_dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub):
+    """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d):
+    (depth, code, stations done)."""
+    y = y1
+    ch1 = channel_at(cb, par_dn, rough_dn, s, t1)
+    for k in range(nsub):
+        tb = t1 + (t2 - t1) * (k + 1) / nsub
+        ch2 = channel_at(cb, par_dn, rough_dn, s, tb)
+        yc2 = critical_depth(ch2, fl, q, alpha)[0]
+        e1, sf1, hv1, _ = station_state(ch1, fl, q, alpha, y)
+        y2, code = transition_step(ch1, ch2, fl, q, s0, y, e1, sf1, hv1, d / nsub, yc2, branch, alpha, cc, ce, avg,
+                                   max_depth(ch2.kind, ch2.par), tol, guess if nsub == 1 else y)
+        if code != 0:
+            return y2, code, k
+        y = y2
+        ch1 = ch2
+    return y, 0, nsub
+
+
+@kernel
+def march(cb, par_dn, rough_dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg, tol, until_force, force_tol,
+          out_y, out_n, out_xc, out_code):
+    """Standard-step march of every scenario over the stations ``x`` (in marching order) of a changing
+    segment; ``t[j]`` is the fraction of the segment's length at station j. Arguments and outputs as
+    :func:`gvflow._core.march.march`. An interval whose step finds no root on the branch is taken again
+    as 4, then 16, then 64 sub-steps through the sections between; if they fail too, the profile
+    reaches critical depth in it (code 1, ``out_xc`` where the sub-steps stopped)."""
+    m = x.shape[0]
+    watch = until_force.shape[0] > 0
+    for s in range(q.shape[0]):
+        y = y0[s]
+        out_y[s, 0] = y
+        out_n[s] = m
+        out_xc[s] = math.nan
+        out_code[s] = 0
+        if watch and specific_force(channel_at(cb, par_dn, rough_dn, s, t[0]), fl, q[s], y, alpha) < \
+                until_force[s, 0] * (1.0 - force_tol):
+            out_n[s] = 1
+            out_code[s] = 4
+            for jj in range(1, m):
+                out_y[s, jj] = math.nan
+            continue
+        for j in range(1, m):
+            d = x[j] - x[j - 1]
+            y2, code, done = _interval(cb, par_dn, rough_dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch, alpha,
+                                       cc, ce, avg, tol, y, 1)
+            nsub = 4
+            while code == 1 and nsub <= 64:
+                y2, code, done = _interval(cb, par_dn, rough_dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch,
+                                           alpha, cc, ce, avg, tol, y, nsub)
+                if code == 1 and nsub == 64:
+                    out_xc[s] = x[j - 1] + d * done / nsub
+                nsub *= 4
+            if code != 0:
+                out_n[s] = j
+                out_code[s] = code
+                for jj in range(j, m):
+                    out_y[s, jj] = math.nan
+                break
+            out_y[s, j] = y2
+            y = y2
+            if watch and specific_force(channel_at(cb, par_dn, rough_dn, s, t[j]), fl, q[s], y, alpha) < \
+                    until_force[s, j] * (1.0 - force_tol):
+                out_n[s] = j + 1
+                out_code[s] = 4
+                for jj in range(j + 1, m):
+                    out_y[s, jj] = math.nan
+                break
+
+
+@kernel
+def critical_depths_at(cb, par_dn, rough_dn, fl, q, t, alpha, out):
+    """out[s, j]: critical depth (least specific energy) of scenario s at fraction t[j] of the segment."""
+    for s in range(q.shape[0]):
+        for j in range(t.shape[0]):
+            out[s, j] = critical_depth(channel_at(cb, par_dn, rough_dn, s, t[j]), fl, q[s], alpha)[0]
+
+
+@kernel
+def properties_at(cb, par_dn, rough_dn, fl, rows, q, y, t, out):
+    """out[:, i] = (A, P, T, A*ybar, Sf) at depth y[i], fraction t[i], scenario rows[i], discharge q[i]
+    (NaN where y[i] is not positive)."""
+    for i in range(y.shape[0]):
+        yi = y[i]
+        if not (yi > 0.0):
+            for j in range(5):
+                out[j, i] = math.nan
+            continue
+        ch = channel_at(cb, par_dn, rough_dn, rows[i], t[i])
+        a, p, tw, mm, dt, dp = geometry(ch.kind, ch.par, yi)
+        out[0, i] = a
+        out[1, i] = p
+        out[2, i] = tw
+        out[3, i] = mm
+        out[4, i] = friction_slope(ch, fl, q[i], yi)
+
+
+@kernel
+def force_or_energy_at(cb, par_dn, rough_dn, fl, q, y, t, alpha, energy, out):
+    """out[s, j]: specific energy (``energy``) or force of scenario s at depth y[s, j], fraction t[j]."""
+    for s in range(y.shape[0]):
+        for j in range(y.shape[1]):
+            ch = channel_at(cb, par_dn, rough_dn, s, t[j])
+            yy = y[s, j]
+            if not (yy > 0.0):
+                out[s, j] = math.nan
+            elif energy:
+                out[s, j] = specific_energy(ch, fl, q[s], yy, alpha)
+            else:
+                out[s, j] = specific_force(ch, fl, q[s], yy, alpha)
+
