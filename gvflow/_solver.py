@@ -25,7 +25,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
+from ._core.codes import AVERAGES, REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
 from ._engine import core
 from ._near_critical import near_critical_notes
 from ._plausible import check_reach, check_segments, note_sloping_jumps
@@ -191,6 +191,52 @@ def _check_stop_codes(marcher, seg, code, stop, grp, x_order, full_ok=False):
             "method")
 
 
+def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
+    """March a branch through a segment whose section changes (:mod:`gvflow._core.changing`); where the
+    branch fails the depth is critical there and beyond, flagged (no restart: the other pass takes over)."""
+    avg, tol = getattr(marcher, "friction_average", None), getattr(marcher, "tol", None)
+    if avg is None or tol is None:
+        raise InvalidInputError(
+            f"method {getattr(marcher, 'name', marcher)!r} cannot march a segment whose section changes along it "
+            "(section_downstream, contraction or expansion); use method='standard_step'")
+    n, m = seg.n, x_order.shape[0]
+    t = seg.fractions(x_order)
+    c = seg.change
+    force = np.zeros((0, 0)) if rival is None else np.ascontiguousarray(rival, dtype=float)
+    out_y, out_n = np.empty((n, m)), np.empty(n, np.int64)
+    out_xc, out_code = np.empty(n), np.empty(n, np.int64)
+    core("changing", 40 * n * m).march(seg.cb, c.par_dn, c.rough_dn, seg.fl, seg.discharge, seg.slope,
+                                       np.ascontiguousarray(x_order, dtype=float), t,
+                                       np.ascontiguousarray(y0, dtype=float), int(branch), seg.alpha, c.contraction,
+                                       c.expansion, AVERAGES[avg], tol, force, _M_TOL, out_y, out_n, out_xc, out_code)
+    if np.any(out_code == 3):
+        _check_stop_codes(marcher, seg, out_code, out_n, np.arange(n), x_order)
+    crit = np.zeros((n, m), bool)
+    crit[:, 0] = crit0
+    failed = (np.arange(m)[None, :] >= out_n[:, None]) & (out_code == 1)[:, None]
+    if np.any(failed):
+        out_y = np.where(failed, seg.critical_depths_at(t), out_y)
+        crit |= failed
+    return out_y, crit
+
+
+def _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub):
+    """Place each new jump of a changing segment k between its two stations, where the difference of the
+    two profiles' specific forces (linear between the stations) vanishes."""
+    for j, (s, xj, _, _, kk, after, junc) in enumerate(jumps):
+        if kk != k or not math.isnan(xj):
+            continue
+        r = int(np.flatnonzero(act == s)[0])
+        i = after - i0  # local index of the last station where the supercritical profile governs
+        d0 = msup[r, i] - msub[r, i]
+        d1 = msup[r, i + 1] - msub[r, i + 1]
+        f = d0 / (d0 - d1) if np.isfinite(d1) and d0 != d1 else 1.0
+        f = min(max(f, 0.0), 1.0)
+        ya = ysup[r, i] if not np.isfinite(ysup[r, i + 1]) else ysup[r, i] + f * (ysup[r, i + 1] - ysup[r, i])
+        yb = sub_y[s, after] + f * (sub_y[s, after + 1] - sub_y[s, after])
+        jumps[j] = (s, float(x[after] + f * (x[after + 1] - x[after])), float(ya), float(yb), kk, after, junc)
+
+
 def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, rival=None, full_at=None):
     """March a branch; where it fails fill critical depth, restarting where the slope allows.
 
@@ -200,6 +246,8 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
     conduit's crown stops there (depths NaN beyond) and ``full_at`` receives the
     first station it could not reach (-1 for the others); without it, that raises.
     """
+    if seg.change is not None:
+        return _march_changing(marcher, seg, x_order, y0, crit0, branch, rival)
     n, m = seg.n, x_order.shape[0]
     crit = np.zeros((n, m), bool)
     crit[:, 0] = crit0
@@ -364,7 +412,11 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
-    built = [SegmentBatch._checked(s.section, s.slope, s.roughness, q_seg[:, k].copy(), units, reach.alpha,
+    xb = reach.boundaries
+    built = [SegmentBatch._changing(s, q_seg[:, k].copy(), units, reach.alpha, None if coef is None else
+                                    coef[:, k].copy(), critical_tolerance, xb[k], xb[k + 1] - xb[k], strict=False)
+             if s.changes else
+             SegmentBatch._checked(s.section, s.slope, s.roughness, q_seg[:, k].copy(), units, reach.alpha,
                                    None if coef is None else coef[:, k].copy(), critical_tolerance, strict=False)
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
@@ -383,7 +435,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     # ---------------- subcritical pass -------------------------------------------------
     sub_y = np.full((n, M), np.nan)
     sub_c = np.zeros((n, M), bool)
-    last = segs[-1]
+    last = segs[-1].tail  # the reach's downstream end
     end_state = EndState("downstream", last, float(bed[-1]), classes[:, -1])
     ctrl = controls.get("downstream", reach.downstream)
     if ctrl is None:
@@ -424,13 +476,13 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             jet = np.asarray(gate.depth_at(EndState("upstream", segs[k], float(bed[i0]), classes[:, k])), float)
             gate_jet[k] = jet
             tail = np.where(sub_c[:, i0], np.nan, sub_y[:, i0])  # no subcritical water below: free flow
-            y_start, gate_submerged[k] = _through_gate(gate, segs[k - 1], segs[k], jet, tail)
+            y_start, gate_submerged[k] = _through_gate(gate, segs[k - 1].tail, segs[k], jet, tail)
             c_start = np.zeros(n, bool)
         elif k > 0:
-            y_start, flag = _transfer(segs[k], segs[k - 1], sub_y[:, i0], SUB, -drops[k])
+            y_start, flag = _transfer(segs[k], segs[k - 1].tail, sub_y[:, i0], SUB, -drops[k])
             # critical on the upstream side too where the section and bed are the same, or where it has no
             # subcritical root
-            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1]) & (drops[k] == 0)
+            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1].tail) & (drops[k] == 0)
                                  & (segments[k].inflow == 0))
 
     # ---------------- supercritical pass and governance ------------------------------------
@@ -466,11 +518,12 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             xs = x[i0:i0 + m]
             from_critical = np.abs(sup_state[act] - seg.yc[act]) <= 1e-12 * seg.yc[act]
             seg_act = _subset(seg, act)
-            msub = seg_act.specific_force(sub_y[act, i0:i0 + m])
+            t = seg.fractions(xs) if seg.change is not None else None  # a changing section: per station
+            msub = seg_act.specific_force(sub_y[act, i0:i0 + m], t)
             # (the supercritical march may stop where the subcritical profile overtakes it: NaN beyond)
             ysup, csup = _march_with_fallback(marcher, seg_act, xs, sup_state[act], from_critical, SUPER,
                                               can_sup_start[k][act], rival=msub)
-            msup = seg_act.specific_force(ysup)
+            msup = seg_act.specific_force(ysup, t)
             first_loss = np.empty(act.size, np.int64)
             if act.size == n:  # write in place
                 core("stations", msup.size).govern(msup, msub, ysup, csup, depth[:, i0:i0 + m],
@@ -499,7 +552,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                     continue
                 jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
             # refine the jumps inside this segment, all scenarios at once
-            _refine(jumps, marcher, seg, x, sub_y, k, notes, pressure_runs)
+            if seg.change is not None:
+                _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub)
+            else:
+                _refine(jumps, marcher, seg, x, sub_y, k, notes, pressure_runs)
             gov_sup_end = first_loss == m
             y_end = ysup[:, -1]
         else:
@@ -511,7 +567,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         if k + 1 < nseg:
             if act.size and np.any(gov_sup_end):
                 idx = act[gov_sup_end]
-                yt, flag = _transfer(_subset(seg, idx), _subset(segs[k + 1], idx), y_end[gov_sup_end], SUPER,
+                yt, flag = _transfer(_subset(seg.tail, idx), _subset(segs[k + 1], idx), y_end[gov_sup_end], SUPER,
                                      drops[k + 1])
                 nxt[idx] = yt
                 carried[idx] = True
@@ -526,7 +582,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             crit_dn = sub_end & ~crit_up & sub_c[:, j0] & can_sup_start[k + 1]
             if np.any(crit_up):
                 idx = np.flatnonzero(crit_up)
-                yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER, drops[k + 1])
+                yt, _ = _transfer(_subset(seg.tail, idx), _subset(nseg1, idx), seg.tail.yc[idx], SUPER, drops[k + 1])
                 nxt[idx] = yt
                 carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
             nxt = np.where(crit_dn, nseg1.yc, nxt)
@@ -534,7 +590,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 nxt = gate_jet[k + 1].copy()
                 carried = np.zeros(n, bool)
                 crit_up[:] = crit_dn[:] = False
-            changed = not seg.same_section(nseg1)
+            changed = not seg.tail.same_section(nseg1)
             for s in np.flatnonzero(crit_up | crit_dn):
                 if crit_up[s] and segments[k + 1].inflow:
                     text = (f"critical depth at the end of segment {k}: below the inflow at the head of segment "
@@ -556,6 +612,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         sup_state = nxt
 
     _inflow_notes(notes, segments, segs, bounds, x, regime, units)
+    _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth)
     _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
     near_critical_notes(notes, segs, bounds, x, depth, units)
     for k, jet in gate_jet.items():
@@ -610,6 +667,31 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
             setattr(sol, name, getattr(sol, name)[order])
         note_sloping_jumps(sol, reach)
     return sol
+
+
+#: neighbouring sections whose conveyances differ by more than this factor are too far apart for the
+#: standard step (Davidian 1984, USGS TWRI 3-A15: ratio within 0.7 to 1.4; from memory; common practice)
+CONVEYANCE_RATIO_LIMIT = 1.4
+
+
+def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
+    """Note each changing segment whose two end sections' conveyances, at the water levels found there,
+    differ by more than :data:`CONVEYANCE_RATIO_LIMIT`."""
+    for k, seg in enumerate(segs):
+        if segments[k].section_downstream is None:
+            continue
+        i0, m = bounds[k]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            k_up = seg.discharge / np.sqrt(seg.properties(depth[:, i0])[4])
+            k_dn = seg.discharge / np.sqrt(seg.tail.properties(depth[:, i0 + m - 1])[4])
+            ratio = k_up / k_dn
+        far = (ratio > CONVEYANCE_RATIO_LIMIT) | (ratio < 1.0 / CONVEYANCE_RATIO_LIMIT)
+        for s in np.flatnonzero(far):
+            notes[s].append((float(x[i0]), "sections far apart",
+                             f"the conveyances of the sections at x = {x[i0]:.2f} and {x[i0 + m - 1]:.2f} differ by "
+                             f"a factor {max(ratio[s], 1.0 / ratio[s]):.2f} (more than {CONVEYANCE_RATIO_LIMIT:g}): "
+                             "the sections are too far apart for the interpolation between them to be trusted; "
+                             "survey or interpolate a section between them (common practice)"))
 
 
 def _inflow_notes(notes, segments, segs, bounds, x, regime, units):

@@ -100,6 +100,21 @@ class Segment(FrozenModel):
         is subcritical and specific force (momentum) where it is
         supercritical; the result says which. The profile has two stations
         at the junction's x: the discharge above it, then below it.
+    section_downstream : Section, optional
+        The section at the segment's downstream end when it changes along the
+        segment: stations inside use sections interpolated between the two
+        ends (exact at both; :func:`gvflow.sections.matched_parameters` says
+        how two surveyed sections are matched). Both must be of one kind; a
+        closed conduit cannot change along a segment.
+    contraction, expansion : float
+        Transition loss coefficients on the change of velocity head between
+        consecutive stations: C |Δ(alpha V²/2g)| with the contraction
+        coefficient where the velocity head grows downstream and the
+        expansion coefficient where it falls (common practice for gradual
+        transitions 0.1 and 0.3, abrupt ones 0.6 and 0.8; US Army Corps of
+        Engineers EM 1110-2-1416, 1993, from memory). Default 0. A segment
+        that changes its section or has either coefficient is marched from
+        station to station by the standard step between unlike sections.
     bank_height : float, optional
         Height of the bank or lining top above the bed [length]: the
         profile's station table reports the freeboard to it, and a warning
@@ -123,6 +138,30 @@ class Segment(FrozenModel):
     bank_height: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     drop: float = Field(default=0.0, ge=0, allow_inf_nan=False)
     inflow: float = Field(default=0.0, allow_inf_nan=False)
+    section_downstream: AnySection | None = None
+    contraction: float = Field(default=0.0, ge=0, le=1, allow_inf_nan=False)
+    expansion: float = Field(default=0.0, ge=0, le=1, allow_inf_nan=False)
+
+    @model_validator(mode="after")
+    def _changing_section(self):
+        if self.section_downstream is None:
+            return self
+        from .sections import matched_parameters
+
+        if self.section.closed or self.section_downstream.closed:
+            raise InvalidInputError("section_downstream: a closed conduit cannot change its section along a "
+                                    "segment; give each size a segment of its own")
+        if isinstance(self.section_downstream, Surveyed) != isinstance(self.section, Surveyed):
+            raise InvalidInputError("section_downstream: a surveyed section can change only into another surveyed "
+                                    "section")
+        matched_parameters(self.section, self.section_downstream)  # one kind and layout, or a clear error
+        return self
+
+    @property
+    def changes(self) -> bool:
+        """Whether the segment is marched as one whose section changes (a downstream section or a
+        transition loss coefficient)."""
+        return self.section_downstream is not None or self.contraction > 0 or self.expansion > 0
 
     @model_validator(mode="after")
     def _drop_without_gate(self):
@@ -214,6 +253,62 @@ class Reach(FrozenModel):
             if ctrl is not None:
                 ctrl.check_end(end)
         return self
+
+    @classmethod
+    def from_sections(cls, *, stations, sections, discharge, inverts=None, roughness=None, contraction: float = 0.1,
+                      expansion: float = 0.3, upstream=None, downstream=None, units="SI", name=None,
+                      alpha: float = 1.0) -> Reach:
+        """A reach through cross-sections at the distances ``stations`` (increasing downstream).
+
+        Segment i runs from section i to section i + 1 (``section_downstream``), its section
+        interpolated between them, with the slope from the two beds and the transition loss
+        coefficients ``contraction`` and ``expansion`` (defaults 0.1 and 0.3, gradual transitions;
+        common practice). The bed at each station stands at a surveyed section's ``invert`` (its entry
+        in ``inverts`` None) or at ``inverts[i]`` (required for a geometric section). ``roughness``
+        gives the roughness of geometric sections: one value, or one per station (None where the
+        section is surveyed); a segment between two geometric sections uses the roughness of its
+        upstream one. The reach's ``datum`` is the last bed.
+
+        Examples
+        --------
+        >>> import gvflow as gv
+        >>> secs = [gv.Surveyed(offset=[0, 5, 9, 14], elevation=[z + 2, z, z, z + 2], roughness=0.03)
+        ...         for z in (10.4, 10.2, 10.0)]
+        >>> reach = gv.Reach.from_sections(stations=[0, 150, 300], sections=secs, discharge=8.0,
+        ...                                downstream=gv.FixedDepth(1.4))
+        >>> [round(s.slope, 6) for s in reach.segments], reach.datum
+        ([0.001333, 0.001333], 10.0)
+        """
+        x = np.asarray(stations, dtype=float)
+        secs = list(sections)
+        if x.ndim != 1 or x.size < 2 or x.size != len(secs):
+            raise InvalidInputError(f"stations and sections need one entry each, at least two; got {x.size} stations "
+                                    f"and {len(secs)} sections")
+        if not np.all(np.isfinite(x)) or np.any(np.diff(x) <= 0):
+            raise InvalidInputError("stations must be finite and increase downstream (distance from the upstream "
+                                    "end)")
+        inv = [None] * x.size if inverts is None else list(inverts)
+        rough = roughness if isinstance(roughness, (list, tuple, np.ndarray)) else [roughness] * x.size
+        if len(inv) != x.size or len(rough) != x.size:
+            raise InvalidInputError(f"inverts and roughness need one entry per station ({x.size}) when given as "
+                                    "lists")
+        beds = []
+        for i, (sec, z) in enumerate(zip(secs, inv, strict=True)):
+            if z is None:
+                if not isinstance(sec, Surveyed):
+                    raise InvalidInputError(f"inverts[{i}]: section {i} is geometric and has no elevation of its "
+                                            "own; give its bed elevation in inverts")
+                z = sec.invert
+            beds.append(float(z))
+        segments = []
+        for i in range(x.size - 1):
+            length = float(x[i + 1] - x[i])
+            segments.append(Segment(length=length, slope=(beds[i] - beds[i + 1]) / length, section=secs[i],
+                                    section_downstream=secs[i + 1], contraction=contraction, expansion=expansion,
+                                    roughness=None if isinstance(secs[i], Surveyed) else rough[i],
+                                    name=f"{x[i]:g}-{x[i + 1]:g}"))
+        return cls(segments=segments, discharge=discharge, upstream=upstream, downstream=downstream, units=units,
+                   datum=beds[-1], name=name, alpha=alpha)
 
     def segment_discharges(self, discharge) -> np.ndarray:
         """Discharge in each segment for the reach discharge(s) ``discharge``: shape (..., K) [length³/s].

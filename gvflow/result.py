@@ -14,6 +14,7 @@ from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
 from .jumps import Jump, _length_ratio, jump_type
 from .reach import provide
+from .sections import matched_parameters
 
 __all__ = ["Profile", "ProfilePiece", "ControlNote", "WATER_DENSITY", "water_unit_weight"]
 
@@ -94,8 +95,9 @@ def _coefficients_used(reach, jumps, notes) -> list:
     return out
 
 
-def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
-    """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``)."""
+def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
+    """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``,
+    distance ``x``: where a segment's section changes, its section there)."""
     segs = sol.segs
     out = np.empty((7, depth.size))
     pars = [sg.cb.par for sg in segs]
@@ -109,6 +111,14 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth):
         np.array([sg.cb.law for sg in segs], np.int64), roughs, np.ascontiguousarray(seg_ix, np.int64),
         segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
         out)
+    for k, sg in enumerate(segs):
+        cols = np.flatnonzero(seg_ix == k) if sg.change is not None else ()
+        if len(cols):
+            c, part = sg.change, np.empty((7, len(cols)))
+            core("changing", len(cols)).quantities_at(sg.cb, c.par_dn, c.rough_dn, sg.fl, i, float(sg.discharge[i]),
+                                                      np.ascontiguousarray(depth[cols], float), sg.fractions(x[cols]),
+                                                      sg.alpha, part)
+            out[:, cols] = part
     return out
 
 
@@ -298,7 +308,8 @@ class Profile:
         k2 = sol.jump_segment[rows]
         k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
         props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
-                                    np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]))
+                                    np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]),
+                                    np.concatenate([x, sol.jump_x[rows], sol.jump_x[rows]]))
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
@@ -367,12 +378,24 @@ class Profile:
         a = np.empty(self.x.size)
         p = np.empty(self.x.size)
         t = np.empty(self.x.size)
+        xb = self.reach.boundaries
         for k, seg in enumerate(self.reach.segments):
             sel = self.segment == k
-            if np.any(sel):
-                sec = seg.section
-                y = np.minimum(self.depth[sel], sec.max_depth)
+            if not np.any(sel):
+                continue
+            sec = seg.section
+            y = np.minimum(self.depth[sel], sec.max_depth)
+            if seg.section_downstream is None:
                 a[sel], p[sel], t[sel] = sec._geometry(y)[:3]
+                continue
+            # a changing section: the section interpolated at each station (gvflow.sections.matched_parameters)
+            kind, par_up, par_dn = matched_parameters(sec, seg.section_downstream)
+            frac = np.clip((self.x[sel] - xb[k]) / (xb[k + 1] - xb[k]), 0.0, 1.0)
+            out = np.empty((6, 1))
+            for j, (yy, f) in enumerate(zip(y, frac, strict=True)):
+                core("arrays", 1).geometry_many(kind, (1.0 - f) * par_up + f * par_dn, np.array([yy]), out)
+                idx = np.flatnonzero(sel)[j]
+                a[idx], p[idx], t[idx] = out[:3, 0]
         return a, p, t
 
     @property

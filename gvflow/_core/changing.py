@@ -24,7 +24,7 @@ import math
 from ._jit import kernel
 from .flow import critical_depth, specific_energy, specific_force
 from .geometry import geometry, max_depth
-from .march import station_state, step_from
+from .march import station_state, station_values, step_from
 from .records import Channel
 from .resistance import friction_slope
 
@@ -174,3 +174,10 @@ def force_or_energy_at(cb, par_dn, rough_dn, fl, q, y, t, alpha, energy, out):
             else:
                 out[s, j] = specific_force(ch, fl, q[s], yy, alpha)
 
+
+
+@kernel
+def quantities_at(cb, par_dn, rough_dn, fl, s, q, y, t, alpha, out):
+    """:func:`~gvflow._core.march.station_values` of scenario s at depth y[i] and fraction t[i] into out[:, i]."""
+    for i in range(y.shape[0]):
+        station_values(channel_at(cb, par_dn, rough_dn, s, t[i]), fl, q, y[i], alpha, out, i)

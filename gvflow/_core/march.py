@@ -693,29 +693,34 @@ def froude_band_depths(cb, fl, q, lo_fr, hi_fr, y_lo, y_hi):
 
 
 @kernel
+def station_values(ch, fl, q, y, alpha, out, i):
+    """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g, alpha) at depth y in channel ``ch`` for discharge q
+    (NaN where y is not positive). Fr is V/sqrt(gA/T) for a geometric section, the compound Froude number
+    for a surveyed one."""
+    if not (y > 0.0):
+        for j in range(7):
+            out[j, i] = math.nan
+        return
+    a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
+    v = q / a
+    out[0, i] = a
+    out[1, i] = t
+    out[2, i] = slope_of(q, kk)
+    out[3, i] = v
+    out[4, i] = math.sqrt(fr2) if ch.kind == SURVEYED else math.sqrt(fr2 / al)
+    out[5, i] = al * v * v / (2.0 * fl.g)
+    out[6, i] = al
+
+
+@kernel
 def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, qs, y, alpha, out):
-    """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g, alpha) at depth y[i] in segment seg[i], whose discharge is
-    qs[seg[i]]; NaN where y[i] is not positive. Segment s has kind ``kinds[s]``, parameters
-    ``pars[offsets[s]:offsets[s + 1]]``, law ``laws[s]`` and zone roughness ``roughs[s]`` (padded rows)."""
+    """:func:`station_values` at depth y[i] in segment seg[i], whose discharge is qs[seg[i]], into out[:, i].
+    Segment s has kind ``kinds[s]``, parameters ``pars[offsets[s]:offsets[s + 1]]``, law ``laws[s]`` and
+    zone roughness ``roughs[s]`` (padded rows)."""
     s = seg[0] if y.shape[0] > 0 else 0
     ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
     for i in range(y.shape[0]):
-        yi = y[i]
-        if not (yi > 0.0):
-            for j in range(7):
-                out[j, i] = math.nan
-            continue
         if seg[i] != s:  # the stations run segment by segment: a new channel record only where it changes
             s = seg[i]
             ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
-        q = qs[s]
-        a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, yi, alpha)
-        v = q / a
-        out[0, i] = a
-        out[1, i] = t
-        out[2, i] = slope_of(q, kk)
-        out[3, i] = v
-        # the Froude number V/sqrt(gA/T) of a geometric section; a surveyed section's compound one
-        out[4, i] = math.sqrt(fr2) if ch.kind == SURVEYED else math.sqrt(fr2 / al)
-        out[5, i] = al * v * v / (2.0 * fl.g)
-        out[6, i] = al
+        station_values(ch, fl, qs[s], y[i], alpha, out, i)

@@ -148,10 +148,11 @@ class SegmentBatch:
         returns, the friction slope at critical depth and the slope class taken at the downstream end."""
         from ..sections import matched_parameters
 
-        kind, par_up, par_dn = matched_parameters(segment.section, segment.section_downstream)
+        down = segment.section if segment.section_downstream is None else segment.section_downstream
+        kind, par_up, par_dn = matched_parameters(segment.section, down)
         head = cls._checked(segment.section, segment.slope, segment.roughness, q, u, alpha, coef, critical_tolerance,
                             strict, params=(kind, par_up))[0]
-        tail, sf_c, code = cls._checked(segment.section_downstream, segment.slope, segment.roughness, q, u, alpha,
+        tail, sf_c, code = cls._checked(down, segment.slope, segment.roughness, q, u, alpha,
                                         coef, critical_tolerance, strict, params=(kind, par_dn))
         if head.cb.rough.shape != tail.cb.rough.shape or head.law != tail.law:
             raise InvalidInputError("section_downstream: both ends of a changing segment need the same resistance "
