@@ -821,7 +821,7 @@ class SweepResult:
             for k, s in enumerate(sol.segs):
                 cols = np.flatnonzero(self.segment == k)
                 at = (slice(None), cols) if whole else np.ix_(idx, cols)
-                props = s.properties(self.depth[at])
+                props = s.properties(self.depth[at], s.fractions(self.x[cols]) if s.change is not None else None)
                 a[at] = props[0]
                 t[at] = props[2]
         v = q_seg[:, self.segment] / a

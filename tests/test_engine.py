@@ -18,7 +18,10 @@ REACH = gv.Reach(segments=[
     gv.Segment(length=100.0, slope=0.001, section=gv.Rectangular(width=4.0), roughness=0.014),
     gv.Segment(length=60.0, slope=0.05, section=gv.Rectangular(width=4.0), roughness=0.014),
     gv.Segment(length=200.0, slope=0.001, section=gv.Trapezoidal(bottom_width=4.0, side_slope=1.0),
-               roughness=0.014)], discharge=10.0, downstream=gv.FixedDepth(1.5))
+               roughness=0.014),
+    gv.Segment(length=80.0, slope=0.001, section=gv.Trapezoidal(bottom_width=4.0, side_slope=1.0), roughness=0.014,
+               section_downstream=gv.Rectangular(width=3.0), contraction=0.1, expansion=0.3)],
+    discharge=10.0, downstream=gv.FixedDepth(1.5))
 
 
 @pytest.fixture
@@ -52,6 +55,7 @@ def test_a_reach_solves_the_same_interpreted(interpreted):
     _engine.use("compiled")
     compiled = REACH.solve(n_steps=40)
     np.testing.assert_array_equal(plain.depth, compiled.depth)
+    np.testing.assert_array_equal(plain.velocity, compiled.velocity)
     assert [j.x for j in plain.jumps] == [j.x for j in compiled.jumps]
     assert plain.profile_types == compiled.profile_types
 

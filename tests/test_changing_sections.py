@@ -1,0 +1,186 @@
+"""Reaches through changing sections: the standard step between unlike sections.
+
+References, each written out here independently of gvflow:
+- the standard step between two sections (Chow 1959, *Open-Channel Hydraulics*, §10-3): energy at
+  the upstream station equals energy at the downstream one plus the friction loss over the interval,
+  with Sf from the mean conveyance (Sf = (2Q/(K1 + K2))²), plus a transition loss
+  C |Δ(V²/2g)|, C the contraction coefficient where the velocity head grows downstream and the
+  expansion coefficient where it falls (US Army Corps of Engineers EM 1110-2-1416, 1993; from memory),
+  solved here station by station with scipy's brentq;
+- for prismatic stretches, scipy's adaptive quadrature of dx/dy = (1 - Fr²)/(S0 - Sf).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy.integrate import quad
+from scipy.optimize import brentq
+
+import gvflow as gv
+
+G = 9.80665
+Q, N, S0 = 10.0, 0.015, 0.001
+
+
+def hand_standard_step(widths, x, y_end, cc, ce, q=Q, n=N, s0=S0, branch="sub"):
+    """Depths at stations x (increasing) of a rectangle whose width at station i is widths[i], marching
+    upstream from depth y_end at the last station (subcritical)."""
+    def props(b, y):
+        a, p = b * y, b + 2 * y
+        return a, a * (a / p) ** (2 / 3) / n
+
+    ys = [y_end]
+    for i in range(len(x) - 1, 0, -1):
+        b_dn, b_up, y_dn = widths[i], widths[i - 1], ys[-1]
+        a1, k1 = props(b_dn, y_dn)
+        hv1 = (q / a1) ** 2 / (2 * G)
+        dx = x[i] - x[i - 1]
+
+        def resid(y):
+            a2, k2 = props(b_up, y)
+            hv2 = (q / a2) ** 2 / (2 * G)
+            c = cc if hv1 > hv2 else ce  # station 1 is downstream: the velocity head grows downstream if hv1 > hv2
+            return y + hv2 + s0 * dx - (y_dn + hv1) - dx * (2 * q / (k1 + k2)) ** 2 - c * abs(hv2 - hv1)
+
+        yc = (q * q / (G * b_up * b_up)) ** (1 / 3)
+        ys.append(brentq(resid, yc * (1 + 1e-9), 10.0, xtol=1e-15, rtol=1e-15))
+    return np.array(ys[::-1])
+
+
+@pytest.mark.parametrize("b_up, b_dn", [(6.0, 4.0), (4.0, 6.5)], ids=["contraction", "expansion"])
+def test_standard_step_through_a_transition_matches_the_hand_energy_balance(b_up, b_dn):
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=S0, section=gv.Rectangular(width=b_up), roughness=N,
+                                          section_downstream=gv.Rectangular(width=b_dn), contraction=0.1,
+                                          expansion=0.3)],
+                     discharge=Q, downstream=gv.FixedDepth(1.5))
+    p = reach.solve(n_steps=20)
+    widths = b_up + (b_dn - b_up) * p.x / 200.0
+    ref = hand_standard_step(widths, p.x, 1.5, 0.1, 0.3)
+    np.testing.assert_allclose(p.depth, ref, rtol=1e-10, atol=0)
+    assert np.max(np.abs(p.depth - ref)) < 1e-3  # the issue's 1 mm, with room to spare
+    # the sections are exact at both ends and linear between
+    np.testing.assert_allclose(p.top_width, widths, rtol=1e-12)
+    assert p.top_width[0] == b_up and p.top_width[-1] == b_dn
+    np.testing.assert_allclose(p.velocity, Q / (widths * p.depth), rtol=1e-12)
+
+
+def test_losses_raise_the_water_upstream_of_a_contraction_and_an_expansion():
+    def solve(cc, ce):
+        segs = [gv.Segment(length=100.0, slope=S0, section=gv.Rectangular(width=6.0), roughness=N,
+                           section_downstream=gv.Rectangular(width=4.0), contraction=cc, expansion=ce),
+                gv.Segment(length=100.0, slope=S0, section=gv.Rectangular(width=4.0), roughness=N,
+                           section_downstream=gv.Rectangular(width=6.0), contraction=cc, expansion=ce)]
+        return gv.Reach(segments=segs, discharge=Q, downstream=gv.FixedDepth(1.5)).solve(n_steps=10)
+
+    none, some = solve(0.0, 0.0), solve(0.1, 0.3)
+    assert some.depth[0] > none.depth[0] + 1e-3
+    # the loss of each interval is C |Δ hv| on top of friction: summed over the reach, the energy grade rises by it
+    assert some.energy_grade[0] - some.energy_grade[-1] > none.energy_grade[0] - none.energy_grade[-1]
+
+
+def test_a_reach_of_identical_surveyed_sections_matches_quadrature():
+    # a trapezoid entered as points at three stations, no transition losses: a prismatic channel, whose
+    # M1 profile is checked against quadrature of dx/dy (b = 3, side slopes 1.5, n = 0.018)
+    def trapezoid(z0):
+        return gv.Surveyed(offset=[-15, 0, 3, 18], elevation=[z0 + 10, z0, z0, z0 + 10], roughness=0.018)
+
+    secs = [trapezoid(100.6), trapezoid(100.3), trapezoid(100.0)]
+    reach = gv.Reach.from_sections(stations=[0.0, 300.0, 600.0], sections=secs, discharge=12.0, contraction=0.0,
+                                   expansion=0.0, downstream=gv.FixedDepth(2.4))
+    assert reach.datum == 100.0 and [s.slope for s in reach.segments] == pytest.approx([1e-3, 1e-3])
+    p = reach.solve(n_steps=200)
+    b, z, n, q, s0 = 3.0, 1.5, 0.018, 12.0, 1e-3
+
+    def dxdy(y):
+        a, t, per = (b + z * y) * y, b + 2 * z * y, b + 2 * y * np.sqrt(1 + z * z)
+        sf = (n * q / (a * (a / per) ** (2 / 3))) ** 2
+        return (1 - q * q * t / (G * a ** 3)) / (s0 - sf)
+
+    for y in (p.depth[0], p.depth[p.x.size // 3]):
+        xq = 600.0 - quad(dxdy, y, 2.4, epsabs=1e-12, epsrel=1e-12)[0]
+        assert np.interp(xq, p.x, p.depth) == pytest.approx(y, abs=2e-5)
+
+
+def test_from_sections_through_unlike_surveyed_sections_notes_sections_far_apart():
+    def section(width, z0):
+        return gv.Surveyed(offset=[0, 20, 20, 20 + width, 20 + width, 40 + width],
+                           elevation=[z0 + 3, z0 + 2, z0, z0, z0 + 2, z0 + 3],
+                           roughness=[0.05, 0.03, 0.05], zone_edges=[20, 20 + width])
+
+    close = [section(8.0, 10.2), section(7.0, 10.1), section(6.5, 10.0)]
+    p = gv.Reach.from_sections(stations=[0, 100, 200], sections=close, discharge=20.0,
+                               downstream=gv.FixedDepth(2.5)).solve(n_steps=20)
+    assert not any(c.kind == "sections far apart" for c in p.controls)
+    # a junction between two segments has the same section on both sides: one station there
+    assert np.count_nonzero(p.x == 100.0) == 1
+    assert p.bed[0] == pytest.approx(10.2) and p.bed[-1] == 10.0
+    far = [section(20.0, 10.1), section(3.0, 10.0)]
+    p2 = gv.Reach.from_sections(stations=[0, 100], sections=far, discharge=20.0,
+                                downstream=gv.FixedDepth(2.5)).solve(n_steps=20)
+    assert any(c.kind == "sections far apart" for c in p2.controls)
+
+
+def test_sweep_of_a_changing_reach_gives_each_scenario_as_alone():
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=S0, section=gv.Rectangular(width=6.0), roughness=N,
+                                          section_downstream=gv.Rectangular(width=4.0), contraction=0.1,
+                                          expansion=0.3)],
+                     discharge=Q, downstream=gv.FixedDepth(1.5))
+    res = reach.sweep(discharge=[6.0, 10.0, 14.0], n_steps=20)
+    for i, q in enumerate([6.0, 10.0, 14.0]):
+        alone = reach.model_copy(update={"discharge": q}).solve(n_steps=20)
+        np.testing.assert_array_equal(res.depth[i], alone.depth)
+        np.testing.assert_allclose(res.velocity[i], alone.velocity, rtol=1e-12)
+
+
+def test_supercritical_flow_through_a_contracting_chute_matches_the_hand_energy_balance():
+    # steep chute entered at critical depth; the supercritical branch marched downstream
+    b_up, b_dn, s0, q = 5.0, 4.0, 0.04, 12.0
+    reach = gv.Reach(segments=[gv.Segment(length=60.0, slope=s0, section=gv.Rectangular(width=b_up), roughness=N,
+                                          section_downstream=gv.Rectangular(width=b_dn))],
+                     discharge=q, downstream=gv.CriticalFlow())
+    p = reach.solve(n_steps=30)
+    assert np.all(p.regime[1:] == "supercritical")
+    widths = b_up + (b_dn - b_up) * p.x / 60.0
+
+    def props(b, y):
+        a, per = b * y, b + 2 * y
+        return a, a * (a / per) ** (2 / 3) / N
+
+    y = p.depth[0]
+    assert y == pytest.approx((q * q / (G * b_up * b_up)) ** (1 / 3), rel=1e-9)
+    for i in range(1, 8):
+        a1, k1 = props(widths[i - 1], y)
+        e1 = y + (q / a1) ** 2 / (2 * G)
+        dx = p.x[i] - p.x[i - 1]
+
+        def resid(y2, b=widths[i], k1=k1, e1=e1, dx=dx):
+            a2, k2 = props(b, y2)
+            return y2 + (q / a2) ** 2 / (2 * G) - e1 - s0 * dx + dx * (2 * q / (k1 + k2)) ** 2
+
+        yc2 = (q * q / (G * widths[i] ** 2)) ** (1 / 3)
+        y = brentq(resid, 0.05, yc2 * (1 - 1e-12), xtol=1e-15, rtol=1e-15)
+        assert p.depth[i] == pytest.approx(y, rel=1e-9)
+
+
+def test_changing_section_errors_name_the_field():
+    with pytest.raises(gv.InvalidInputError, match="section_downstream"):
+        gv.Segment(length=10.0, slope=1e-3, section=gv.Rectangular(width=3.0), roughness=N,
+                   section_downstream=gv.Parabolic(top_width=2.0, reference_depth=1.0))
+    with pytest.raises(gv.InvalidInputError, match="section_downstream"):
+        gv.Segment(length=10.0, slope=1e-3, section=gv.Circular(diameter=1.0), roughness=N,
+                   section_downstream=gv.Circular(diameter=1.2))
+    a = gv.Surveyed(offset=[0, 5, 10], elevation=[2, 0, 2], roughness=0.03)
+    b = gv.Surveyed(offset=[0, 5, 10], elevation=[2, 0, 2], roughness=[0.05, 0.03], zone_edges=[5])
+    with pytest.raises(gv.InvalidInputError, match="same number of zones"):
+        gv.Segment(length=10.0, slope=1e-3, section=a, section_downstream=b)
+    with pytest.raises(gv.InvalidInputError, match=r"inverts\[0\]"):
+        gv.Reach.from_sections(stations=[0, 10], sections=[gv.Rectangular(width=2.0)] * 2, discharge=1.0,
+                               roughness=0.02)
+    with pytest.raises(gv.InvalidInputError, match="increase"):
+        gv.Reach.from_sections(stations=[0, 0], sections=[a, a], discharge=1.0)
+    reach = gv.Reach(segments=[gv.Segment(length=50.0, slope=S0, section=gv.Rectangular(width=6.0), roughness=N,
+                                          section_downstream=gv.Rectangular(width=4.0))],
+                     discharge=Q, downstream=gv.FixedDepth(1.5))
+    with pytest.raises(gv.InvalidInputError, match="standard_step"):
+        reach.solve(method="ivp")
