@@ -37,7 +37,7 @@ def hand_standard_step(widths, x, y_end, cc, ce, q=Q, n=N, s0=S0, branch="sub"):
         hv1 = (q / a1) ** 2 / (2 * G)
         dx = x[i] - x[i - 1]
 
-        def resid(y):
+        def resid(y, b_up=b_up, hv1=hv1, dx=dx, y_dn=y_dn, k1=k1):
             a2, k2 = props(b_up, y)
             hv2 = (q / a2) ** 2 / (2 * G)
             c = cc if hv1 > hv2 else ce  # station 1 is downstream: the velocity head grows downstream if hv1 > hv2
