@@ -25,7 +25,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ._core.codes import AVERAGES, REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
+from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
 from ._engine import core
 from ._near_critical import near_critical_notes
 from ._plausible import check_reach, check_segments, note_sloping_jumps
@@ -192,32 +192,20 @@ def _check_stop_codes(marcher, seg, code, stop, grp, x_order, full_ok=False):
 
 
 def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
-    """March a branch through a segment whose section changes (:mod:`gvflow._core.changing`); where the
+    """March a branch through a segment whose section changes (the marcher's ``march_changing``); where the
     branch fails the depth is critical there and beyond, flagged (no restart: the other pass takes over)."""
-    avg, tol = getattr(marcher, "friction_average", None), getattr(marcher, "tol", None)
-    if avg is None or tol is None:
-        raise InvalidInputError(
-            f"method {getattr(marcher, 'name', marcher)!r} cannot march a segment whose section changes along it "
-            "(section_downstream, contraction or expansion); use method='standard_step'")
     n, m = seg.n, x_order.shape[0]
-    t = seg.fractions(x_order)
-    c = seg.change
-    force = np.zeros((0, 0)) if rival is None else np.ascontiguousarray(rival, dtype=float)
-    out_y, out_n = np.empty((n, m)), np.empty(n, np.int64)
-    out_xc, out_code = np.empty(n), np.empty(n, np.int64)
-    core("changing", 40 * n * m).march(seg.cb, c.par_dn, c.rough_dn, seg.fl, seg.discharge, seg.slope,
-                                       np.ascontiguousarray(x_order, dtype=float), t,
-                                       np.ascontiguousarray(y0, dtype=float), int(branch), seg.alpha, c.contraction,
-                                       c.expansion, AVERAGES[avg], tol, force, _M_TOL, out_y, out_n, out_xc, out_code)
-    if np.any(out_code == 3):
-        _check_stop_codes(marcher, seg, out_code, out_n, np.arange(n), x_order)
+    res = marcher.march_changing(seg, x_order, np.asarray(y0, dtype=float), branch, rival, _M_TOL)
+    if np.any(res.code == 3):
+        _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order)
     crit = np.zeros((n, m), bool)
     crit[:, 0] = crit0
-    failed = (np.arange(m)[None, :] >= out_n[:, None]) & (out_code == 1)[:, None]
+    failed = (np.arange(m)[None, :] >= res.n_valid[:, None]) & (res.code == 1)[:, None]
+    y = res.depth
     if np.any(failed):
-        out_y = np.where(failed, seg.critical_depths_at(t), out_y)
+        y = np.where(failed, seg.critical_depths_at(seg.fractions(x_order)), y)
         crit |= failed
-    return out_y, crit
+    return y, crit
 
 
 def _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub):

@@ -182,5 +182,35 @@ def test_changing_section_errors_name_the_field():
     reach = gv.Reach(segments=[gv.Segment(length=50.0, slope=S0, section=gv.Rectangular(width=6.0), roughness=N,
                                           section_downstream=gv.Rectangular(width=4.0))],
                      discharge=Q, downstream=gv.FixedDepth(1.5))
-    with pytest.raises(gv.InvalidInputError, match="standard_step"):
-        reach.solve(method="ivp")
+    from gvflow.profiles import Marcher
+
+    class Plain(Marcher):  # a marcher of prismatic segments only
+        name = "plain"
+
+    with pytest.raises(gv.InvalidInputError, match="cannot march a segment whose section changes"):
+        reach.solve(method=Plain)
+
+
+@pytest.mark.parametrize("b_up, b_dn", [(6.0, 4.0), (4.0, 6.5)], ids=["contraction", "expansion"])
+def test_ivp_integrates_the_nonprismatic_equation_and_agrees_with_the_standard_step(b_up, b_dn):
+    # method="ivp" integrates dy/dx with the dA/dx term and the transition losses; the standard step
+    # converges to it at second order in the station spacing
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=S0, section=gv.Rectangular(width=b_up), roughness=N,
+                                          section_downstream=gv.Rectangular(width=b_dn), contraction=0.1,
+                                          expansion=0.3),
+                               gv.Segment(length=100.0, slope=S0, section=gv.Rectangular(width=b_dn), roughness=N)],
+                     discharge=Q, downstream=gv.FixedDepth(1.5))
+    ivp = reach.solve(method="ivp", n_steps=50)
+    errors = [abs(reach.solve(n_steps=k).depth[0] - ivp.depth[0]) for k in (10, 50)]
+    assert errors[1] < 2e-5 and errors[1] < errors[0] / 15  # (5x the stations: 25x smaller at second order)
+    fine = reach.solve(n_steps=250)
+    np.testing.assert_allclose(fine.depth, reach.solve(method="ivp", n_steps=250).depth, rtol=1e-6)
+
+
+def test_ivp_through_a_contracting_chute_leaves_critical_depth_and_agrees():
+    chute = gv.Reach(segments=[gv.Segment(length=60.0, slope=0.04, section=gv.Rectangular(width=5.0), roughness=N,
+                                          section_downstream=gv.Rectangular(width=4.0))],
+                     discharge=12.0, downstream=gv.CriticalFlow())
+    a, b = chute.solve(n_steps=60), chute.solve(method="ivp", n_steps=60)
+    assert list(b.regime[1:]) == ["supercritical"] * (b.x.size - 1)
+    np.testing.assert_allclose(b.depth, a.depth, rtol=2e-4)

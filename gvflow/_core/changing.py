@@ -22,11 +22,11 @@ from __future__ import annotations
 import math
 
 from ._jit import kernel
-from .flow import critical_depth, specific_energy, specific_force
+from .flow import critical_depth, specific_energy, specific_force, velocity_head
 from .geometry import geometry, max_depth
 from .march import station_state, station_values, step_from
 from .records import Channel
-from .resistance import friction_slope
+from .resistance import friction_slope, hydraulics
 
 
 @kernel
@@ -181,3 +181,30 @@ def quantities_at(cb, par_dn, rough_dn, fl, s, q, y, t, alpha, out):
     """:func:`~gvflow._core.march.station_values` of scenario s at depth y[i] and fraction t[i] into out[:, i]."""
     for i in range(y.shape[0]):
         station_values(channel_at(cb, par_dn, rough_dn, s, t[i]), fl, q, y[i], alpha, out, i)
+
+
+@kernel
+def slope_at(cb, par_dn, rough_dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
+    """dy/dx of the gradually varied flow equation of a changing section, and Fr², at depth y and fraction t
+    (``dtdx`` = 1/length of the segment): with E = y + alpha V²/2g and the transition loss of the module
+    notes, dE/dx = S0 - Sf - C |d(alpha V²/2g)/dx| (x downstream), where d(alpha V²/2g)/dx =
+    -Fr² dy/dx + b and b, the change of the velocity head with x at a fixed depth (the dA/dx term, and a
+    changing alpha), is taken by central differences in t. So dy/dx = (S0 - Sf - b (1 + C σ)) /
+    (1 - Fr² (1 + C σ)), σ the sign of the velocity head's change: the contraction coefficient where it
+    grows, the expansion coefficient where it falls (zero change where neither is consistent)."""
+    ch = channel_at(cb, par_dn, rough_dn, s, t)
+    a, tw, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
+    sf = (q / kk) * (q / kk)
+    h = 1e-6
+    tp = min(t + h, 1.0)
+    tm = max(t - h, 0.0)
+    b = (velocity_head(channel_at(cb, par_dn, rough_dn, s, tp), fl, q, y, alpha)
+         - velocity_head(channel_at(cb, par_dn, rough_dn, s, tm), fl, q, y, alpha)) / (tp - tm) * dtdx
+    num = s0 - sf - b
+    dydx = (num - cc * b) / (1.0 - fr2 * (1.0 + cc))
+    if -fr2 * dydx + b > 0.0 or cc == ce:
+        return dydx, fr2
+    dydx = (num + ce * b) / (1.0 - fr2 * (1.0 - ce))
+    if -fr2 * dydx + b <= 0.0:
+        return dydx, fr2
+    return (b / fr2 if fr2 > 0.0 else 0.0), fr2

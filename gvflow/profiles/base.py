@@ -380,6 +380,15 @@ class Marcher:
         """
         return self.march(seg, x, y0, branch)
 
+    def march_changing(self, seg: SegmentBatch, x: np.ndarray, y0: np.ndarray, branch: int, force=None,
+                       rtol: float = 0.0) -> MarchResult:
+        """:meth:`march_until` (or :meth:`march` without ``force``) through a segment whose section changes
+        along it (``seg.change``; the stations ``x`` are distances along the reach). A marcher that cannot
+        says so with an InvalidInputError."""
+        raise InvalidInputError(f"method {getattr(self, 'name', type(self).__name__)!r} cannot march a segment whose "
+                                "section changes along it (section_downstream, contraction or expansion); use "
+                                "method='standard_step' or 'ivp'")
+
     def step_to(self, seg: SegmentBatch, index: int, y1: float, x1: float, x2: float, branch: int) -> float:
         """Depth at x2 of the profile through (x1, y1) for scenario ``index`` (NaN if none)."""
         raise NotImplementedError  # pragma: no cover

@@ -32,6 +32,7 @@ from .._engine import core
 from .._validate import finite_float, positive_float
 from ..errors import ConvergenceError, InvalidInputError
 from .base import Marcher, MarchResult, SegmentBatch, register_marcher
+from .standard_step import StandardStep
 
 __all__ = ["IVPMarcher", "IVP_METHODS"]
 
@@ -306,6 +307,73 @@ class IVPMarcher(Marcher):
             out_n[s] = nv
             out_code[s] = code
             out_xc[s] = xc
+        return MarchResult(out_y, out_n, out_xc, out_code)
+
+    #: the march through a changing section stops where Fr² comes within this of 1 (the critical depth
+    #: there is filled in by the solver)
+    CHANGING_CRITICAL_MARGIN = 0.02
+
+    def march_changing(self, seg, x, y0, branch, force=None, rtol=0.0):
+        """Integrate the gradually varied flow equation of a section that changes along the segment
+        (:func:`gvflow._core.changing.slope_at`: the dA/dx term and the transition losses) with
+        ``solve_ivp`` in the y(x) form, stopping (code 1) where the flow comes within
+        :data:`CHANGING_CRITICAL_MARGIN` of critical (Fr² = 1). ``force`` is not used: the whole
+        segment is marched, which is always correct (:meth:`Marcher.march_until`)."""
+        x = np.asarray(x, dtype=float)
+        n, m = seg.n, x.shape[0]
+        c = seg.change
+        kern = core("changing", 2000)
+        dtdx = 1.0 / c.length
+        y0 = np.broadcast_to(np.asarray(y0, dtype=float), (n,))
+        out_y = np.full((n, m), np.nan)
+        out_n = np.full(n, m, dtype=np.int64)
+        out_xc = np.full(n, np.nan)
+        out_code = np.zeros(n, dtype=np.int64)
+        margin = self.CHANGING_CRITICAL_MARGIN
+        for s in range(n):
+            out_y[s, 0] = y0[s]
+            if m == 1:
+                continue
+            args = (seg.cb, c.par_dn, c.rough_dn, seg.fl, s, float(seg.discharge[s]), seg.slope, seg.alpha,
+                    c.contraction, c.expansion)
+
+            def at(xx, yy, _args=args):
+                t = min(max((xx - c.x0) * dtdx, 0.0), 1.0)
+                return kern.slope_at(*_args, t, dtdx, max(float(yy[0]), 1e-12))
+
+            def rhs(xx, yy, _at=at):
+                return [_at(xx, yy)[0]]
+
+            def critical(xx, yy, _at=at):
+                return branch * (1.0 - _at(xx, yy)[1]) - margin
+            critical.terminal = True
+            j0, y_start = 0, float(y0[s])
+            if critical(x[0], [y_start]) <= 0.0:
+                # starting at (or within the margin of) critical depth, where dy/dx is infinite: the first
+                # interval by the standard step between the two sections, whose energy equation is regular there
+                first = StandardStep().march_changing(seg.take(np.array([s])), x[:2], np.array([y_start]),
+                                                             branch)
+                if first.code[0] != 0 or m == 2:
+                    out_y[s, 1] = first.depth[0, 1]
+                    out_n[s], out_code[s], out_xc[s] = first.n_valid[0], first.code[0], first.x_critical[0]
+                    continue
+                j0, y_start = 1, float(first.depth[0, 1])
+                out_y[s, 1] = y_start
+            span = abs(x[-1] - x[j0])
+            sol = integrate.solve_ivp(rhs, (x[j0], x[-1]), [y_start], method=self.ivp_method, rtol=self.rtol,
+                                      atol=self.atol, dense_output=True, events=[critical],
+                                      max_step=self.max_step or span / 10.0)
+            if sol.status < 0:
+                out_n[s], out_code[s] = j0 + 1, 3
+                continue
+            reached = float(sol.t[-1])
+            dirn = 1.0 if x[-1] > x[0] else -1.0
+            inside = (x[j0 + 1:] - reached) * dirn <= 0
+            out_y[s, j0 + 1:][inside] = sol.sol(x[j0 + 1:][inside])[0]
+            if sol.status == 1:
+                out_code[s] = 1
+                out_xc[s] = reached
+                out_n[s] = j0 + 1 + int(np.count_nonzero(inside))
         return MarchResult(out_y, out_n, out_xc, out_code)
 
     def step_to(self, seg, index, y1, x1, x2, branch):

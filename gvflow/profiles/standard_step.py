@@ -108,6 +108,22 @@ class StandardStep(Marcher):
             out_y, out_n, out_xc, out_code)
         return MarchResult(out_y, out_n, out_xc, out_code)
 
+    def march_changing(self, seg, x, y0, branch, force=None, rtol=0.0):
+        """The standard step between unlike sections (:mod:`gvflow._core.changing`), station to station: an
+        interval without a root on the branch is taken again in 4, 16 and 64 sub-steps (no relaxation
+        sub-steps or x(y) legs near critical depth, which assume one section)."""
+        x = np.ascontiguousarray(x, dtype=float)
+        n, m = seg.n, x.shape[0]
+        c = seg.change
+        force = np.zeros((0, 0)) if force is None else np.ascontiguousarray(force, dtype=float)
+        out_y, out_n = np.empty((n, m)), np.empty(n, np.int64)
+        out_xc, out_code = np.empty(n), np.empty(n, np.int64)
+        core("changing", 40 * n * m).march(seg.cb, c.par_dn, c.rough_dn, seg.fl, seg.discharge, seg.slope, x,
+                                           seg.fractions(x), _per_scenario(y0, n), int(branch), seg.alpha,
+                                           c.contraction, c.expansion, AVERAGES[self.friction_average], self.tol,
+                                           force, float(rtol), out_y, out_n, out_xc, out_code)
+        return MarchResult(out_y, out_n, out_xc, out_code)
+
     def step_to(self, seg, index, y1, x1, x2, branch):
         d = finite_float(x2, "x2") - finite_float(x1, "x1")
         if d == 0.0:
