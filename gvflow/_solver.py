@@ -694,7 +694,7 @@ def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
                    "specific energy conserved across the junction (no loss)")
             notes[s].append((float(x[i0]), "inflow",
                              f"{segments[k].inflow:g} {units.discharge} enters at the head of segment {k}: the "
-                             f"discharge goes from {segs[k - 1].discharge[s]:g} to {segs[k].discharge[s]:g} "
+                             f"discharge goes from {segs[k - 1].tail.discharge[s]:g} to {segs[k].discharge[s]:g} "
                              f"{units.discharge}; {how}"))
 
 

@@ -814,17 +814,18 @@ class SweepResult:
     def _kinematics(self):
         a = np.empty(self.depth.shape)
         t = np.empty(self.depth.shape)
-        q_seg = np.empty((len(self), self.segment.max() + 1))  # each segment's discharge (inflows included)
+        q = np.empty(self.depth.shape)  # each station's discharge (inflows and lateral inflow included)
         for idx, sol in self._parts:
             whole = idx.size == len(self)
-            q_seg[idx] = np.stack([s.discharge for s in sol.segs], axis=1)
             for k, s in enumerate(sol.segs):
                 cols = np.flatnonzero(self.segment == k)
                 at = (slice(None), cols) if whole else np.ix_(idx, cols)
-                props = s.properties(self.depth[at], s.fractions(self.x[cols]) if s.change is not None else None)
+                frac = s.fractions(self.x[cols]) if s.change is not None else None
+                props = s.properties(self.depth[at], frac)
                 a[at] = props[0]
                 t[at] = props[2]
-        v = q_seg[:, self.segment] / a
+                q[at] = s.discharge_at(np.zeros(cols.size) if frac is None else frac)
+        v = q / a
         fr = v * np.sqrt(t / (self.units.g * a))
         v.setflags(write=False)
         fr.setflags(write=False)

@@ -100,6 +100,12 @@ class Segment(FrozenModel):
         is subcritical and specific force (momentum) where it is
         supercritical; the result says which. The profile has two stations
         at the junction's x: the discharge above it, then below it.
+    lateral_inflow : float
+        Discharge added uniformly along the segment [length³/s per length]
+        (spatially varied flow: side weirs, gutters, a side-channel
+        spillway), bringing no momentum along the channel; solved in the
+        momentum form (in a horizontal frictionless channel the specific
+        force stays constant). Not on a segment whose section changes.
     section_downstream : Section, optional
         The section at the segment's downstream end when it changes along the
         segment: stations inside use sections interpolated between the two
@@ -138,12 +144,19 @@ class Segment(FrozenModel):
     bank_height: float | None = Field(default=None, gt=0, allow_inf_nan=False)
     drop: float = Field(default=0.0, ge=0, allow_inf_nan=False)
     inflow: float = Field(default=0.0, allow_inf_nan=False)
+    lateral_inflow: float = Field(default=0.0, allow_inf_nan=False)
     section_downstream: AnySection | None = None
     contraction: float = Field(default=0.0, ge=0, le=1, allow_inf_nan=False)
     expansion: float = Field(default=0.0, ge=0, le=1, allow_inf_nan=False)
 
     @model_validator(mode="after")
     def _changing_section(self):
+        if self.lateral_inflow and (self.section_downstream is not None or self.contraction or self.expansion):
+            raise InvalidInputError("lateral_inflow: a segment with lateral inflow keeps one section and has no "
+                                    "transition losses; give the changing section a segment of its own")
+        if self.lateral_inflow and self.section.closed:
+            raise InvalidInputError("lateral_inflow: lateral inflow into a closed conduit is not modelled; use an "
+                                    "open section")
         if self.section_downstream is None:
             return self
         from .sections import matched_parameters
@@ -161,7 +174,8 @@ class Segment(FrozenModel):
     def changes(self) -> bool:
         """Whether the segment is marched as one whose section changes (a downstream section or a
         transition loss coefficient)."""
-        return self.section_downstream is not None or self.contraction > 0 or self.expansion > 0
+        return (self.section_downstream is not None or self.contraction > 0 or self.expansion > 0
+                or self.lateral_inflow != 0)
 
     @model_validator(mode="after")
     def _drop_without_gate(self):
@@ -244,10 +258,12 @@ class Reach(FrozenModel):
             raise InvalidInputError("segments[0].inflow: the first segment's discharge is the reach's; add the "
                                     "inflow to Reach.discharge, or give it to a later segment")
         q = self.segment_discharges(self.discharge)
-        if np.any(q <= 0):
-            k = int(np.flatnonzero(q <= 0)[0])
-            raise InvalidInputError(f"segments[{k}].inflow: the withdrawals leave no discharge in segment {k} "
-                                    f"({q[k]:g}); the discharge must stay positive along the reach")
+        q_end = q + np.array([s.lateral_inflow * s.length for s in self.segments])
+        if np.any(np.minimum(q, q_end) <= 0):
+            k = int(np.flatnonzero(np.minimum(q, q_end) <= 0)[0])
+            what = "inflow" if q[k] <= 0 else "lateral_inflow"
+            raise InvalidInputError(f"segments[{k}].{what}: the withdrawals leave no discharge in segment {k} "
+                                    f"({min(q[k], q_end[k]):g}); the discharge must stay positive along the reach")
         for end in ("upstream", "downstream"):
             ctrl = getattr(self, end)
             if ctrl is not None:
@@ -311,11 +327,14 @@ class Reach(FrozenModel):
                    datum=beds[-1], name=name, alpha=alpha)
 
     def segment_discharges(self, discharge) -> np.ndarray:
-        """Discharge in each segment for the reach discharge(s) ``discharge``: shape (..., K) [length³/s].
+        """Discharge at the head of each segment for the reach discharge(s) ``discharge``: shape (..., K)
+        [length³/s].
 
-        The discharge entering the reach plus every segment inflow down to and including the segment's own.
+        The discharge entering the reach plus every inflow down to and including the segment's own, and the
+        lateral inflow of every segment above it.
         """
-        added = np.cumsum([s.inflow for s in self.segments])
+        lateral = [s.lateral_inflow * s.length for s in self.segments]
+        added = np.cumsum([s.inflow for s in self.segments]) + np.concatenate([[0.0], np.cumsum(lateral)[:-1]])
         return np.asarray(discharge, dtype=float)[..., None] + added
 
     # -- geometry --------------------------------------------------------------------

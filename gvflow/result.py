@@ -95,6 +95,17 @@ def _coefficients_used(reach, jumps, notes) -> list:
     return out
 
 
+def _station_discharge(sol: BatchSolution, i: int, x, seg_ix) -> np.ndarray:
+    """Discharge of scenario i at each station (segment index ``seg_ix``, distance ``x``): its segment's, growing
+    along a segment with lateral inflow."""
+    out = np.array([sg.discharge[i] for sg in sol.segs])[seg_ix]
+    for k, sg in enumerate(sol.segs):
+        if sg.change is not None and sg.change.along.added:
+            cols = seg_ix == k
+            out[cols] = sg.discharge_at(sg.fractions(x[cols]))[i]
+    return out
+
+
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
     """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``,
     distance ``x``: where a segment's section changes, its section there)."""
@@ -115,7 +126,7 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         cols = np.flatnonzero(seg_ix == k) if sg.change is not None else ()
         if len(cols):
             c, part = sg.change, np.empty((7, len(cols)))
-            core("changing", len(cols)).quantities_at(sg.cb, c.par_dn, c.rough_dn, sg.fl, i, float(sg.discharge[i]),
+            core("changing", len(cols)).quantities_at(sg.cb, c.along, sg.fl, i, float(sg.discharge[i]),
                                                       np.ascontiguousarray(depth[cols], float), sg.fractions(x[cols]),
                                                       sg.alpha, part)
             out[:, cols] = part
@@ -299,9 +310,9 @@ class Profile:
         # a junction station appears twice; keep one where nothing changes across it
         drop = np.array([s.drop for s in reach.segments])
         keep = np.ones(x.size, bool)
-        q_seg = np.array([s.discharge[i] for s in sol.segs])
+        q_at = _station_discharge(sol, i, x, seg)
         keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
-                     & (drop[seg[1:]] == 0) & (q_seg[seg[1:]] == q_seg[seg[:-1]]))
+                     & (drop[seg[1:]] == 0) & (q_at[1:] == q_at[:-1]))
         x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
@@ -314,7 +325,7 @@ class Profile:
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
         stations[3:8] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head, alpha
-        stations[8] = q_seg[seg]
+        stations[8] = q_at[keep]
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])

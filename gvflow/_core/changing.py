@@ -2,10 +2,18 @@
 
 A changing segment holds two channels of the same kind and parameter layout, the one at its
 upstream end (``cb``: a :class:`~gvflow._core.records.ChannelBatch`) and the one at its downstream
-end (``par_dn``, ``rough_dn``: parameters and one row of zone roughness per scenario). At fraction
-t of the segment's length the section's parameters and zone roughness are
-``(1 - t) * upstream + t * downstream`` (:func:`channel_at`); how two sections are brought to one
-layout is :func:`gvflow.sections.matched_parameters`.
+end (``dn``: an :class:`~gvflow._core.records.Along` record, which also carries the discharge added
+along the segment by lateral inflow). At fraction t of the segment's length the section's
+parameters and zone roughness are ``(1 - t) * upstream + t * downstream`` (:func:`channel_at`) and
+the discharge is q + t * added; how two sections are brought to one layout is
+:func:`gvflow.sections.matched_parameters`.
+
+Lateral inflow (spatially varied flow, on a segment whose section does not change) brings no
+momentum along the channel, so between two stations the specific force M = beta Q²/(gA) + A ybar
+changes by the weight component less the friction, d (A1 + A2)/2 (S0 - Sf) (the momentum form;
+Chow 1959, ch. 12, from memory): :func:`momentum_step`. In a horizontal frictionless channel M is
+then constant, which makes the depth upstream of a critical outlet sqrt(3) times critical depth in a
+rectangle (energy would give 1.5).
 
 Between two stations the energy equation of the standard step (Chow 1959, *Open-Channel Hydraulics*,
 §10-3; the same :func:`~gvflow._core.march.step_from` as a prismatic segment) balances the energy at
@@ -26,19 +34,19 @@ from .flow import critical_depth, specific_energy, specific_force, velocity_head
 from .geometry import geometry, max_depth
 from .march import station_state, station_values, step_from
 from .records import Channel
-from .resistance import friction_slope, hydraulics
+from .resistance import friction_slope, hydraulics, sf_average
 
 
 @kernel
-def channel_at(cb, par_dn, rough_dn, s, t):
-    """The :class:`~gvflow._core.records.Channel` of scenario ``s`` at fraction ``t`` of a changing segment:
-    parameters and zone roughness linear in t, exact at both ends (t = 0 the upstream channel, t = 1 the
-    downstream one)."""
+def channel_at(cb, dn, s, t):
+    """The :class:`~gvflow._core.records.Channel` of scenario ``s`` at fraction ``t`` of a changing segment
+    (``dn`` its :class:`~gvflow._core.records.Along` record): parameters and zone roughness linear in t,
+    exact at both ends (t = 0 the upstream channel, t = 1 the downstream one)."""
     if t == 0.0:
         return Channel(cb.kind, cb.par, cb.law, cb.rough[s])
     if t == 1.0:
-        return Channel(cb.kind, par_dn, cb.law, rough_dn[s])
-    return Channel(cb.kind, (1.0 - t) * cb.par + t * par_dn, cb.law, (1.0 - t) * cb.rough[s] + t * rough_dn[s])
+        return Channel(cb.kind, dn.par, cb.law, dn.rough[s])
+    return Channel(cb.kind, (1.0 - t) * cb.par + t * dn.par, cb.law, (1.0 - t) * cb.rough[s] + t * dn.rough[s])
 
 
 @kernel
@@ -63,27 +71,95 @@ def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha
 
 
 @kernel
-def _interval(cb, par_dn, rough_dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub):
+def _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, y2, alpha, avg):
+    """Momentum residual of a spatially varied step: M(y2) - M1 - d (A1 + A2)/2 (S0 - mean Sf)."""
+    a2 = geometry(ch.kind, ch.par, y2)[0]
+    sav = sf_average(avg, sf1, friction_slope(ch, fl, q2, y2))[0]
+    return specific_force(ch, fl, q2, y2, alpha) - m1 - d * 0.5 * (a1 + a2) * (s0 - sav)
+
+
+@kernel
+def momentum_step(ch, fl, q1, q2, s0, y1, d, yc2, branch, alpha, avg, tol):
+    """Depth at station 2 (discharge q2, signed distance d) from depth y1 at station 1 (discharge q1) in one
+    channel ``ch`` with lateral inflow between them (module notes): (depth, code) as
+    :func:`~gvflow._core.march.step`, found by bracketing on the branch and regula falsi (Illinois)."""
+    m1 = specific_force(ch, fl, q1, y1, alpha)
+    a1 = geometry(ch.kind, ch.par, y1)[0]
+    sf1 = friction_slope(ch, fl, q1, y1)
+    rc = _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, yc2, alpha, avg)
+    if rc > 0.0:
+        return yc2, 1  # M at its least (critical depth) already exceeds the target: no root on either branch
+    if branch == 1:
+        lo, flo = yc2, rc
+        hi = max(y1, yc2) * 1.25
+        fhi = _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, hi, alpha, avg)
+        for _ in range(200):
+            if fhi > 0.0:
+                break
+            lo, flo = hi, fhi
+            hi *= 2.0
+            fhi = _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, hi, alpha, avg)
+    else:
+        hi, fhi = yc2, rc
+        lo = min(y1, yc2) * 0.8
+        flo = _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, lo, alpha, avg)
+        for _ in range(200):
+            if flo > 0.0:
+                break
+            hi, fhi = lo, flo
+            lo *= 0.5
+            flo = _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, lo, alpha, avg)
+    side = 0
+    y = 0.5 * (lo + hi)
+    for _ in range(200):
+        y = (lo * fhi - hi * flo) / (fhi - flo) if fhi != flo else 0.5 * (lo + hi)
+        if not (min(lo, hi) < y < max(lo, hi)):
+            y = 0.5 * (lo + hi)
+        f = _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, y, alpha, avg)
+        if f == 0.0 or abs(hi - lo) <= tol * y:
+            return y, 0
+        if (f > 0.0) == (fhi > 0.0):
+            hi, fhi = y, f
+            if side == 1:
+                flo *= 0.5
+            side = 1
+        else:
+            lo, flo = y, f
+            if side == -1:
+                fhi *= 0.5
+            side = -1
+    return y, 3
+
+
+@kernel
+def _interval(cb, dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub):
     """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d):
     (depth, code, stations done)."""
     y = y1
-    ch1 = channel_at(cb, par_dn, rough_dn, s, t1)
+    ch1 = channel_at(cb, dn, s, t1)
+    ta = t1
     for k in range(nsub):
         tb = t1 + (t2 - t1) * (k + 1) / nsub
-        ch2 = channel_at(cb, par_dn, rough_dn, s, tb)
-        yc2 = critical_depth(ch2, fl, q, alpha)[0]
-        e1, sf1, hv1, _ = station_state(ch1, fl, q, alpha, y)
-        y2, code = transition_step(ch1, ch2, fl, q, s0, y, e1, sf1, hv1, d / nsub, yc2, branch, alpha, cc, ce, avg,
-                                   max_depth(ch2.kind, ch2.par), tol, guess if nsub == 1 else y)
+        ch2 = channel_at(cb, dn, s, tb)
+        q1 = q + dn.added * ta
+        q2 = q + dn.added * tb
+        yc2 = critical_depth(ch2, fl, q2, alpha)[0]
+        if dn.added != 0.0:
+            y2, code = momentum_step(ch2, fl, q1, q2, s0, y, d / nsub, yc2, branch, alpha, avg, tol)
+        else:
+            e1, sf1, hv1, _ = station_state(ch1, fl, q1, alpha, y)
+            y2, code = transition_step(ch1, ch2, fl, q2, s0, y, e1, sf1, hv1, d / nsub, yc2, branch, alpha, cc, ce,
+                                       avg, max_depth(ch2.kind, ch2.par), tol, guess if nsub == 1 else y)
         if code != 0:
             return y2, code, k
         y = y2
         ch1 = ch2
+        ta = tb
     return y, 0, nsub
 
 
 @kernel
-def march(cb, par_dn, rough_dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg, tol, until_force, force_tol,
+def march(cb, dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg, tol, until_force, force_tol,
           out_y, out_n, out_xc, out_code):
     """Standard-step march of every scenario over the stations ``x`` (in marching order) of a changing
     segment; ``t[j]`` is the fraction of the segment's length at station j. Arguments and outputs as
@@ -98,7 +174,7 @@ def march(cb, par_dn, rough_dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg,
         out_n[s] = m
         out_xc[s] = math.nan
         out_code[s] = 0
-        if watch and specific_force(channel_at(cb, par_dn, rough_dn, s, t[0]), fl, q[s], y, alpha) < \
+        if watch and specific_force(channel_at(cb, dn, s, t[0]), fl, q[s] + dn.added * t[0], y, alpha) < \
                 until_force[s, 0] * (1.0 - force_tol):
             out_n[s] = 1
             out_code[s] = 4
@@ -107,11 +183,11 @@ def march(cb, par_dn, rough_dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg,
             continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code, done = _interval(cb, par_dn, rough_dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch, alpha,
+            y2, code, done = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch, alpha,
                                        cc, ce, avg, tol, y, 1)
             nsub = 4
             while code == 1 and nsub <= 64:
-                y2, code, done = _interval(cb, par_dn, rough_dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch,
+                y2, code, done = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch,
                                            alpha, cc, ce, avg, tol, y, nsub)
                 if code == 1 and nsub == 64:
                     out_xc[s] = x[j - 1] + d * done / nsub
@@ -124,7 +200,7 @@ def march(cb, par_dn, rough_dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg,
                 break
             out_y[s, j] = y2
             y = y2
-            if watch and specific_force(channel_at(cb, par_dn, rough_dn, s, t[j]), fl, q[s], y, alpha) < \
+            if watch and specific_force(channel_at(cb, dn, s, t[j]), fl, q[s] + dn.added * t[j], y, alpha) < \
                     until_force[s, j] * (1.0 - force_tol):
                 out_n[s] = j + 1
                 out_code[s] = 4
@@ -134,15 +210,15 @@ def march(cb, par_dn, rough_dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg,
 
 
 @kernel
-def critical_depths_at(cb, par_dn, rough_dn, fl, q, t, alpha, out):
+def critical_depths_at(cb, dn, fl, q, t, alpha, out):
     """out[s, j]: critical depth (least specific energy) of scenario s at fraction t[j] of the segment."""
     for s in range(q.shape[0]):
         for j in range(t.shape[0]):
-            out[s, j] = critical_depth(channel_at(cb, par_dn, rough_dn, s, t[j]), fl, q[s], alpha)[0]
+            out[s, j] = critical_depth(channel_at(cb, dn, s, t[j]), fl, q[s] + dn.added * t[j], alpha)[0]
 
 
 @kernel
-def properties_at(cb, par_dn, rough_dn, fl, rows, q, y, t, out):
+def properties_at(cb, dn, fl, rows, q, y, t, out):
     """out[:, i] = (A, P, T, A*ybar, Sf) at depth y[i], fraction t[i], scenario rows[i], discharge q[i]
     (NaN where y[i] is not positive)."""
     for i in range(y.shape[0]):
@@ -151,40 +227,40 @@ def properties_at(cb, par_dn, rough_dn, fl, rows, q, y, t, out):
             for j in range(5):
                 out[j, i] = math.nan
             continue
-        ch = channel_at(cb, par_dn, rough_dn, rows[i], t[i])
+        ch = channel_at(cb, dn, rows[i], t[i])
         a, p, tw, mm, dt, dp = geometry(ch.kind, ch.par, yi)
         out[0, i] = a
         out[1, i] = p
         out[2, i] = tw
         out[3, i] = mm
-        out[4, i] = friction_slope(ch, fl, q[i], yi)
+        out[4, i] = friction_slope(ch, fl, q[i] + dn.added * t[i], yi)
 
 
 @kernel
-def force_or_energy_at(cb, par_dn, rough_dn, fl, q, y, t, alpha, energy, out):
+def force_or_energy_at(cb, dn, fl, q, y, t, alpha, energy, out):
     """out[s, j]: specific energy (``energy``) or force of scenario s at depth y[s, j], fraction t[j]."""
     for s in range(y.shape[0]):
         for j in range(y.shape[1]):
-            ch = channel_at(cb, par_dn, rough_dn, s, t[j])
+            ch = channel_at(cb, dn, s, t[j])
             yy = y[s, j]
             if not (yy > 0.0):
                 out[s, j] = math.nan
             elif energy:
-                out[s, j] = specific_energy(ch, fl, q[s], yy, alpha)
+                out[s, j] = specific_energy(ch, fl, q[s] + dn.added * t[j], yy, alpha)
             else:
-                out[s, j] = specific_force(ch, fl, q[s], yy, alpha)
+                out[s, j] = specific_force(ch, fl, q[s] + dn.added * t[j], yy, alpha)
 
 
 
 @kernel
-def quantities_at(cb, par_dn, rough_dn, fl, s, q, y, t, alpha, out):
+def quantities_at(cb, dn, fl, s, q, y, t, alpha, out):
     """:func:`~gvflow._core.march.station_values` of scenario s at depth y[i] and fraction t[i] into out[:, i]."""
     for i in range(y.shape[0]):
-        station_values(channel_at(cb, par_dn, rough_dn, s, t[i]), fl, q, y[i], alpha, out, i)
+        station_values(channel_at(cb, dn, s, t[i]), fl, q + dn.added * t[i], y[i], alpha, out, i)
 
 
 @kernel
-def slope_at(cb, par_dn, rough_dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
+def slope_at(cb, dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
     """dy/dx of the gradually varied flow equation of a changing section, and Fr², at depth y and fraction t
     (``dtdx`` = 1/length of the segment): with E = y + alpha V²/2g and the transition loss of the module
     notes, dE/dx = S0 - Sf - C |d(alpha V²/2g)/dx| (x downstream), where d(alpha V²/2g)/dx =
@@ -192,14 +268,20 @@ def slope_at(cb, par_dn, rough_dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
     changing alpha), is taken by central differences in t. So dy/dx = (S0 - Sf - b (1 + C σ)) /
     (1 - Fr² (1 + C σ)), σ the sign of the velocity head's change: the contraction coefficient where it
     grows, the expansion coefficient where it falls (zero change where neither is consistent)."""
-    ch = channel_at(cb, par_dn, rough_dn, s, t)
+    ch = channel_at(cb, dn, s, t)
+    qstar = dn.added * dtdx  # lateral inflow per length
+    q = q + dn.added * t
     a, tw, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
     sf = (q / kk) * (q / kk)
+    if qstar != 0.0:
+        # spatially varied flow in one section (momentum form, module notes): the inflow brings no
+        # momentum along the channel, dy/dx = (S0 - Sf - 2 alpha Q q*/(g A²)) / (1 - Fr²)
+        return (s0 - sf - 2.0 * al * q * qstar / (fl.g * a * a)) / (1.0 - fr2), fr2
     h = 1e-6
     tp = min(t + h, 1.0)
     tm = max(t - h, 0.0)
-    b = (velocity_head(channel_at(cb, par_dn, rough_dn, s, tp), fl, q, y, alpha)
-         - velocity_head(channel_at(cb, par_dn, rough_dn, s, tm), fl, q, y, alpha)) / (tp - tm) * dtdx
+    b = (velocity_head(channel_at(cb, dn, s, tp), fl, q, y, alpha)
+         - velocity_head(channel_at(cb, dn, s, tm), fl, q, y, alpha)) / (tp - tm) * dtdx
     num = s0 - sf - b
     dydx = (num - cc * b) / (1.0 - fr2 * (1.0 + cc))
     if -fr2 * dydx + b > 0.0 or cc == ce:

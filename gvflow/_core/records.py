@@ -19,6 +19,11 @@ Channel = namedtuple("Channel", ["kind", "par", "law", "rough"])
 #: (scenarios, zones), one row of zone roughness per scenario.
 ChannelBatch = namedtuple("ChannelBatch", ["kind", "par", "law", "rough"])
 
+#: The downstream end of a segment that changes along its length (:mod:`gvflow._core.changing`):
+#: its parameters ``par`` (in the layout of the upstream end's), ``rough`` one row of zone roughness per
+#: scenario, and ``added`` the discharge that enters along the segment (lateral inflow times length).
+Along = namedtuple("Along", ["par", "rough", "added"])
+
 #: The unit system and the fluid: gravity g, the Manning factor k and the kinematic viscosity nu.
 Fluid = namedtuple("Fluid", ["g", "k", "nu"])
 

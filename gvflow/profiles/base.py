@@ -22,7 +22,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from .._core.codes import NOT_CONVERGED, SUB, SUPER
-from .._core.records import ChannelBatch, Fluid, channel_batch, fluid
+from .._core.records import Along, ChannelBatch, Fluid, channel_batch, fluid
 from .._engine import core
 from .._roots import bracketed_root
 from .._validate import positive_array
@@ -42,16 +42,16 @@ STOP_CODES = {0: "segment end", 1: "critical depth", 2: "conduit full", 3: "no c
 
 @dataclass(frozen=True, eq=False)
 class Change:
-    """How a segment's section changes along it (see :mod:`gvflow._core.changing`).
+    """How a segment changes along it (see :mod:`gvflow._core.changing`).
 
-    ``par_dn`` the core parameters of the downstream end in the layout of the upstream end's,
-    ``rough_dn`` (n, zones) its zone roughness per scenario, ``contraction`` and ``expansion`` the
-    transition loss coefficients, ``x0`` and ``length`` where the segment starts along the reach and
-    how long it is, ``tail`` the downstream end as a prismatic :class:`SegmentBatch`.
+    ``along`` the :class:`~gvflow._core.records.Along` record of its downstream end (parameters in the
+    layout of the upstream end's, zone roughness per scenario, the discharge added by lateral inflow),
+    ``contraction`` and ``expansion`` the transition loss coefficients, ``x0`` and ``length`` where the
+    segment starts along the reach and how long it is, ``tail`` the downstream end as a prismatic
+    :class:`SegmentBatch` (with the discharge there).
     """
 
-    par_dn: np.ndarray
-    rough_dn: np.ndarray
+    along: Along
     contraction: float
     expansion: float
     x0: float
@@ -59,7 +59,8 @@ class Change:
     tail: SegmentBatch
 
     def take(self, idx) -> Change:
-        return Change(self.par_dn, np.ascontiguousarray(self.rough_dn[idx]), self.contraction, self.expansion,
+        a = self.along
+        return Change(Along(a.par, np.ascontiguousarray(a.rough[idx]), a.added), self.contraction, self.expansion,
                       self.x0, self.length, self.tail.take(idx))
 
 
@@ -150,15 +151,16 @@ class SegmentBatch:
 
         down = segment.section if segment.section_downstream is None else segment.section_downstream
         kind, par_up, par_dn = matched_parameters(segment.section, down)
+        added = float(segment.lateral_inflow * length)
         head = cls._checked(segment.section, segment.slope, segment.roughness, q, u, alpha, coef, critical_tolerance,
                             strict, params=(kind, par_up))[0]
-        tail, sf_c, code = cls._checked(down, segment.slope, segment.roughness, q, u, alpha,
+        tail, sf_c, code = cls._checked(down, segment.slope, segment.roughness, q + added, u, alpha,
                                         coef, critical_tolerance, strict, params=(kind, par_dn))
         if head.cb.rough.shape != tail.cb.rough.shape or head.law != tail.law:
             raise InvalidInputError("section_downstream: both ends of a changing segment need the same resistance "
                                     "law and the same number of zones")
-        change = Change(tail.cb.par, tail.cb.rough, float(segment.contraction), float(segment.expansion), float(x0),
-                        float(length), tail)
+        change = Change(Along(tail.cb.par, tail.cb.rough, added), float(segment.contraction),
+                        float(segment.expansion), float(x0), float(length), tail)
         unconverged = None if head.unconverged is None else head.unconverged | tail.unconverged
         return replace(head, change=change, unconverged=unconverged), sf_c, code
 
@@ -201,6 +203,13 @@ class SegmentBatch:
         c = self.change
         return np.ascontiguousarray(np.clip((np.asarray(x, dtype=float) - c.x0) / c.length, 0.0, 1.0))
 
+    def discharge_at(self, t) -> np.ndarray:
+        """Discharge of each scenario at fractions ``t`` (m,) of the segment: shape (n, m) (lateral inflow adds
+        along a changing segment)."""
+        t = np.asarray(t, dtype=float)
+        added = 0.0 if self.change is None else self.change.along.added
+        return self.discharge[:, None] + added * t[None, :]
+
     def critical_depths_at(self, t) -> np.ndarray:
         """Critical depth of each scenario at fractions ``t`` (m,) of a changing segment: shape (n, m)."""
         t = np.ascontiguousarray(t, dtype=float)
@@ -208,7 +217,7 @@ class SegmentBatch:
             return np.repeat(self.yc[:, None], t.size, axis=1)
         out = np.empty((self.n, t.size))
         c = self.change
-        core("changing", 100 * out.size).critical_depths_at(self.cb, c.par_dn, c.rough_dn, self.fl, self.discharge,
+        core("changing", 100 * out.size).critical_depths_at(self.cb, c.along, self.fl, self.discharge,
                                                             t, self.alpha, out)
         return out
 
@@ -216,7 +225,7 @@ class SegmentBatch:
         c = self.change
         y2 = np.ascontiguousarray(np.asarray(depth, dtype=float).reshape(self.n, -1))
         out = np.empty(y2.shape)
-        core("changing", y2.size).force_or_energy_at(self.cb, c.par_dn, c.rough_dn, self.fl, self.discharge, y2,
+        core("changing", y2.size).force_or_energy_at(self.cb, c.along, self.fl, self.discharge, y2,
                                                      np.ascontiguousarray(t, dtype=float), self.alpha, energy, out)
         return out
 
@@ -230,7 +239,7 @@ class SegmentBatch:
             m = rows.shape[1]
             out = np.empty((5, rows.size))
             core("changing", rows.size).properties_at(
-                self.cb, c.par_dn, c.rough_dn, self.fl, np.repeat(np.arange(self.n), m), np.repeat(self.discharge, m),
+                self.cb, c.along, self.fl, np.repeat(np.arange(self.n), m), np.repeat(self.discharge, m),
                 rows.ravel(), np.tile(np.ascontiguousarray(t, dtype=float), self.n), out)
             return out.reshape((5,) + d.shape)
         shape = d.shape if d.ndim else (self.n,)

@@ -334,7 +334,7 @@ class IVPMarcher(Marcher):
             out_y[s, 0] = y0[s]
             if m == 1:
                 continue
-            args = (seg.cb, c.par_dn, c.rough_dn, seg.fl, s, float(seg.discharge[s]), seg.slope, seg.alpha,
+            args = (seg.cb, c.along, seg.fl, s, float(seg.discharge[s]), seg.slope, seg.alpha,
                     c.contraction, c.expansion)
 
             def at(xx, yy, _args=args):
