@@ -62,6 +62,8 @@ def _check_any_chain(segs, q, down, gate, method):
         assert jump.upstream_depth < jump.downstream_depth
         if jump.where == "in segment":
             sec = reach.segments[jump.segment].section
+            if jump.downstream_depth > sec.max_depth:
+                continue  # a jump into a conduit running full: its momentum balance is checked in test_surcharge
             m1 = gv.specific_force(sec, q, jump.upstream_depth)
             m2 = gv.specific_force(sec, q, jump.downstream_depth)
             assert abs(m1 - m2) <= 1e-6 * m2
