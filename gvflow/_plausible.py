@@ -25,6 +25,7 @@ import contextlib
 
 import numpy as np
 
+from ._notes import note
 from ._warn import warn
 from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
 from .errors import InvalidInputError
@@ -250,14 +251,8 @@ def note_sloping_jumps(sol, reach) -> None:
     HEC-14, ch. 6, eq. 6.7; the USBR model tests of jumps on sloping aprons, Peterka 1958, Engineering
     Monograph 25, show the same trend).
     """
-    L = reach.resolved_units.length
     for s, x, k in zip(sol.jump_scenario, sol.jump_x, sol.jump_segment, strict=True):
         slope = reach.segments[int(k)].slope
         if slope > STEEP_SLOPE:
-            sol.notes[int(s)].append((float(x), "jump on a sloping floor",
-                                      f"the jump at x = {x:.2f} {L} stands on segment {int(k)}, bed slope {slope:g}: "
-                                      "it was located with the level-floor momentum balance, which leaves out the "
-                                      "weight of the roller along the slope and so underestimates the sequent "
-                                      "depth needed to hold the jump there (FHWA HEC-14, 2006, ch. 6, eq. 6.7: "
-                                      f"the weight may be neglected only below a slope of {STEEP_SLOPE:g}); "
-                                      "treat its location as approximate"))
+            sol.notes[int(s)].append(note(float(x), "jump on a sloping floor", k=int(k), slope=slope,
+                                          steep=STEEP_SLOPE))

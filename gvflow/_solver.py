@@ -28,6 +28,7 @@ import numpy as np
 from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
 from ._engine import core
 from ._near_critical import near_critical_notes
+from ._notes import note
 from ._plausible import check_reach, check_segments, note_sloping_jumps
 from ._validate import positive_array
 from .controls import EndState
@@ -64,7 +65,7 @@ class BatchSolution:
     jump_segment: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
-    notes: list = field(default_factory=list)  # per scenario: list of (x, kind, text)
+    notes: list = field(default_factory=list)  # per scenario: list of Note (x, kind, values; gvflow._notes)
     # per scenario: list of (segment, x_up, x_down) where the subcritical pass found the conduit full
     # (pressure flow), before the supercritical profile governs any of it
     pressure_runs: list = field(default_factory=list)
@@ -358,16 +359,12 @@ class _Setup:
     seg_ix: np.ndarray  # (M,) segment of each station
     bed: np.ndarray  # (M,) bed elevation
     bounds: list  # (first station, count) per segment
-    notes: list  # per scenario: list of (x, kind, text)
+    notes: list  # per scenario: list of Note (gvflow._notes)
     pressure_runs: list  # per scenario: list of (segment, x_up, x_down) found full by the subcritical pass
 
     @property
     def n(self) -> int:
         return self.q.size
-
-    @property
-    def units(self):
-        return self.reach.resolved_units
 
     @property
     def segments(self):
@@ -542,7 +539,7 @@ def _subcritical_pass(st: _Setup, down: _Downstream) -> _SubPass:
 def _upstream_start(st: _Setup, sub: _SubPass) -> _Upstream:
     """The depth the supercritical pass starts from: a supercritical upstream control's, or critical depth
     where the subcritical pass fell back to it at the head of a steep first segment (NaN: neither)."""
-    first, n, notes, units = st.segs[0], st.n, st.notes, st.units
+    first, n, notes = st.segs[0], st.n, st.notes
     sup_state = np.full(n, np.nan)
     sup_from_control = np.zeros(n, bool)
     up = st.control("upstream", st.reach.upstream)
@@ -556,13 +553,11 @@ def _upstream_start(st: _Setup, sub: _SubPass) -> _Upstream:
         sup_state = np.where(ok, y_up, np.nan)
         sup_from_control = ok.copy()
         for s in np.flatnonzero(~ok):
-            notes[s].append((0.0, "unused control",
-                             f"upstream control {_one(up, s).describe(units)} does not govern: the flow entering the "
-                             "reach is subcritical and is governed from downstream"))
+            notes[s].append(note(0.0, "unused control", end="upstream", control=_one(up, s)))
     entry = np.isnan(sup_state) & sub.c[:, 0] & st.can_sup_start[0]
     sup_state = np.where(entry, first.yc, sup_state)
     for s in np.flatnonzero(entry):
-        notes[s].append((0.0, "critical control", "critical depth at the head of a steep segment"))
+        notes[s].append(note(0.0, "critical control", where="steep head"))
     return _Upstream(ctrl=up, state=up_state, sup_state=sup_state, from_control=sup_from_control)
 
 
@@ -617,9 +612,7 @@ def _govern_segment(st: _Setup, k, sub: _SubPass, up: _Upstream, gov: _Governed,
                 continue  # critical entry immediately overtaken: plain subcritical flow
             if k == 0:
                 sup_from_control[s] = False
-                notes[s].append((0.0, "drowned jump",
-                                 "the tailwater drowns the jump against the upstream control: "
-                                 "submerged outflow at x = 0"))
+                notes[s].append(note(0.0, "drowned jump"))
                 continue
             if k in sub.gate_jet:
                 continue  # a submerged gate: noted with the gate below
@@ -666,14 +659,12 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     changed = not seg.same_section(nseg1)
     for s in np.flatnonzero(crit_up | crit_dn):
         if crit_up[s] and st.segments[k + 1].inflow:
-            text = (f"critical depth at the end of segment {k}: below the inflow at the head of segment "
-                    f"{k + 1} the discharge needs more energy than subcritical flow above it carries")
+            where = "inflow"  # below the inflow the discharge needs more energy
         elif crit_up[s] and changed:
-            text = (f"critical depth at the end of segment {k}, where the flow passes into the larger "
-                    f"section of segment {k + 1}")
+            where = "larger section"
         else:
-            text = "critical depth where the bed steepens (the flow passes from subcritical to supercritical)"
-        st.notes[s].append((float(st.x[j0]), "critical control", text))
+            where = "steepening"
+        st.notes[s].append(note(float(st.x[j0]), "critical control", where=where, k=k))
     return nxt, carried
 
 
@@ -685,55 +676,44 @@ def _note_swept_out(st: _Setup, down: _Downstream, act, gov_sup_end):
     for r in np.flatnonzero(gov_sup_end):
         s = act[r]
         if down.governs[s]:
-            st.notes[s].append((float(st.x[-1]), "jump swept out",
-                                f"the downstream control ({_one(down.ctrl, s).describe(st.units)}) is too low to "
-                                "hold a jump: the supercritical flow leaves the reach and the jump forms downstream "
-                                "of it"))
+            st.notes[s].append(note(float(st.x[-1]), "jump swept out", control=_one(down.ctrl, s)))
 
 
 def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, gov: _Governed):
     """The notes on the governed profile: inflows, chokes, near-critical stretches, gates, and what the end
     controls did."""
-    notes, segs, x, units, n = st.notes, st.segs, st.x, st.units, st.n
+    notes, segs, x, n = st.notes, st.segs, st.x, st.n
     depth, regime, classes = gov.depth, gov.regime, st.classes
-    _inflow_notes(notes, st.segments, segs, st.bounds, x, regime, units)
-    _choke_notes(notes, segs, classes, st.bounds, x, depth, regime, units)
-    near_critical_notes(notes, segs, st.bounds, x, depth, units)
+    _inflow_notes(notes, st.segments, segs, st.bounds, x, regime)
+    _choke_notes(notes, segs, classes, st.bounds, x, depth, regime)
+    near_critical_notes(notes, segs, st.bounds, x, depth)
     for k, jet in sub.gate_jet.items():
         i0 = st.bounds[k][0]
         gate = st.control(k, st.segments[k].gate)
         for s in range(n):
-            how = ("submerged by the water below it" if sub.gate_submerged[k][s]
-                   else f"free flow, jet {jet[s]:.3f} {units.length} deep")
-            notes[s].append((float(x[i0]), "gate", f"{_one(gate, s).describe(units)} at the head of segment {k}: "
-                             f"{how}; the water upstream stands {depth[s, i0 - 1]:.3f} {units.length} deep"))
+            notes[s].append(note(float(x[i0]), "gate", k=k, control=_one(gate, s), submerged=sub.gate_submerged[k][s],
+                                 jet=jet[s], depth_up=depth[s, i0 - 1]))
     ctrl, governs_down = down.ctrl, down.governs
     if ctrl is not None:
         for s in range(n):
             if governs_down[s] and regime[s, -1] != REGIME_SUPER:
-                notes[s].append((float(x[-1]), "downstream control", f"{_one(ctrl, s).describe(units)} governs"))
+                notes[s].append(note(float(x[-1]), "downstream control", control=_one(ctrl, s)))
             elif not governs_down[s]:
-                notes[s].append((float(x[-1]), "unused control",
-                                 f"downstream control {_one(ctrl, s).describe(units)} does not govern: the flow "
-                                 "leaving the reach is supercritical"))
+                notes[s].append(note(float(x[-1]), "unused control", end="downstream", control=_one(ctrl, s)))
         _add_details(notes, ctrl, down.end_state, depth[:, -1], float(x[-1]))
     elif st.reach.downstream is None:
         for s in range(n):
             if classes[s, -1] != "steep" and regime[s, -1] != REGIME_SUPER:
-                kind = "normal depth" if classes[s, -1] == "mild" else "critical depth"
-                notes[s].append((float(x[-1]), "downstream control",
-                                 f"no downstream control given: {kind} assumed at the downstream end"))
+                assumed = "normal depth" if classes[s, -1] == "mild" else "critical depth"
+                notes[s].append(note(float(x[-1]), "downstream control", assumed=assumed))
     if up.ctrl is not None:
         for s in np.flatnonzero(up.from_control):
-            notes[s].append((0.0, "upstream control", f"{_one(up.ctrl, s).describe(units)} governs"))
+            notes[s].append(note(0.0, "upstream control", control=_one(up.ctrl, s)))
         _add_details(notes, up.ctrl, up.state, depth[:, 0], 0.0)
     if ctrl is not None:
         top = segs[-1].section.max_depth
         for s in np.flatnonzero(governs_down & (down.y_down > top)):
-            notes[s].append((float(x[-1]), "submerged outlet",
-                             f"the downstream water level stands {down.y_down[s] - top:.3f} {units.length} above the "
-                             "crown of the outlet: the grade line in the conduit at its outlet is the tailwater level "
-                             "(the velocity head is lost at the exit)"))
+            notes[s].append(note(float(x[-1]), "submerged outlet", head=down.y_down[s] - top))
 
 
 def _solution(st: _Setup, gov: _Governed) -> BatchSolution:
@@ -757,7 +737,7 @@ def _solution(st: _Setup, gov: _Governed) -> BatchSolution:
     return sol
 
 
-def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
+def _inflow_notes(notes, segments, segs, bounds, x, regime):
     """One note per scenario at every inflow: the discharges either side and the balance used across it."""
     for k in range(1, len(segments)):
         if not segments[k].inflow:
@@ -765,21 +745,17 @@ def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
         i0 = bounds[k][0]
         for s in range(len(notes)):
             sup = regime[s, i0 - 1] == REGIME_SUPER and regime[s, i0] == REGIME_SUPER
-            how = ("supercritical flow: specific force (momentum) conserved across the junction" if sup else
-                   "specific energy conserved across the junction (no loss)")
-            notes[s].append((float(x[i0]), "inflow",
-                             f"{segments[k].inflow:g} {units.discharge} enters at the head of segment {k}: the "
-                             f"discharge goes from {segs[k - 1].discharge[s]:g} to {segs[k].discharge[s]:g} "
-                             f"{units.discharge}; {how}"))
+            notes[s].append(note(float(x[i0]), "inflow", k=k, inflow=segments[k].inflow,
+                                 q_up=segs[k - 1].discharge[s], q_down=segs[k].discharge[s], supercritical=sup))
 
 
 def _add_details(notes, ctrl, state, depth, x):
     """Append the per-scenario lines a control adds to its note (:meth:`Control.notes`)."""
     for s, lines in enumerate(ctrl.notes(state, depth)):
-        notes[s].extend((x, "control detail", text) for text in lines)
+        notes[s].extend(note(x, "control detail", text=text) for text in lines)
 
 
-def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
+def _choke_notes(notes, segs, classes, bounds, x, depth, regime):
     """Note each contraction whose critical section holds the subcritical water upstream above normal depth."""
     for k in range(len(segs) - 1):
         if segs[k].same_section(segs[k + 1]):
@@ -791,10 +767,7 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
         raised &= np.isin(classes[:, k], ("mild", "critical"))
         raised &= (regime[:, j0:j0 + m1] == REGIME_CRITICAL).any(axis=1)
         for s in np.flatnonzero(raised):
-            notes[s].append((float(x[i_end]), "choke",
-                             f"the section of segment {k + 1} passes the flow only through critical depth, which "
-                             f"holds the water upstream at {depth[s, i_end]:.3f} {units.length}, above segment {k}'s "
-                             f"normal depth {yn[s]:.3f} {units.length}"))
+            notes[s].append(note(float(x[i_end]), "choke", k=k, depth=depth[s, i_end], yn=yn[s]))
 
 
 def _jump_into_full(jump, marcher, seg, x, sub_y, runs):
@@ -877,7 +850,4 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
         s, _, _, _, kk, aft, junc = jumps[j]
         jumps[j] = (s, float(xj[r]), float(ys[r]), float(yb[r]), kk, aft, junc)
         if off[r] > JUMP_BALANCE_TOLERANCE:
-            notes[s].append((float(xj[r]), "unbalanced jump",
-                             f"the specific forces on the two sides of the jump at x = {xj[r]:.2f} differ by "
-                             f"{off[r]:.2%}: a profile reaches critical depth next to it, so its position is "
-                             "uncertain to about a station spacing; check it with more steps (n_steps)"))
+            notes[s].append(note(float(xj[r]), "unbalanced jump", off=off[r]))

@@ -9,6 +9,7 @@ import numpy as np
 
 from ._core.codes import REGIME_NAMES
 from ._engine import core
+from ._notes import note, note_text
 from ._pieces import ProfilePiece, scenario_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
@@ -66,8 +67,8 @@ def _coefficients_used(reach, jumps, notes) -> list:
 
     The coefficients of the end controls that governed (an end with an "unused control" or a
     "jump swept out" note is left out), of every gate between segments, and the jump-length curve
-    and jump types when the profile holds a jump. ``notes`` are the scenario's (x, kind, text)
-    control notes.
+    and jump types when the profile holds a jump. ``notes`` are the scenario's notes, (x, kind, ...)
+    each.
     """
     from dataclasses import replace
 
@@ -142,17 +143,14 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
         inside = [t for t in ends[k] if xa <= t <= xb]
         t = inside[0] if inside else 0.5 * (xa + xb)
         lengths[k] += (xb - t) if full[j + 1] else (t - xa)
-    L = reach.resolved_units.length
     notes = []
     for k in np.flatnonzero(lengths > 0):
         sel = (seg == k) & full
         h = y[sel] - crown[k]
         xs = x[sel]
-        notes.append((float(xs.min()), "surcharge",
-                      f"segment {k} runs full (surcharged, pressure flow) over {lengths[k]:.2f} {L} from x = "
-                      f"{xs.min():.2f} to {xs.max():.2f} {L}: the grade line stands up to {h.max():.3f} {L} above "
-                      f"its crown (at x = {xs[np.argmax(h)]:.2f} {L}) and rises at the full-flow friction slope "
-                      f"{float(sol.segs[k].friction_slope(np.full(sol.segs[k].n, crown[k]))[i]):.6g}"))
+        notes.append(note(float(xs.min()), "surcharge", k=k, length=lengths[k], x_end=xs.max(), head=h.max(),
+                          x_head=xs[np.argmax(h)],
+                          sf_full=float(sol.segs[k].friction_slope(np.full(sol.segs[k].n, crown[k]))[i])))
     return lengths, notes
 
 
@@ -316,8 +314,9 @@ class Profile:
 
         full_len, full_notes = _surcharge(reach, sol, i, x, y, seg)
         notes = list(sol.notes[i]) + full_notes
-        notes += [(x, "coefficient", rec.line()) for x, rec in _coefficients_used(reach, jumps, sol.notes[i])]
-        controls = sorted((ControlNote(float(a), b, c) for a, b, c in notes), key=lambda c: c.x)
+        notes += [note(x, "coefficient", record=rec) for x, rec in _coefficients_used(reach, jumps, sol.notes[i])]
+        units = reach.resolved_units
+        controls = sorted((ControlNote(float(n.x), n.kind, note_text(n, units)) for n in notes), key=lambda c: c.x)
         profile = cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
                       pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes,
                       surcharged_lengths=full_len)
