@@ -46,9 +46,10 @@ _M_TOL = 1e-12  # relative tolerance when comparing specific forces
 JUMP_BALANCE_TOLERANCE = 1e-6
 
 
-@dataclass(eq=False)
+@dataclass(frozen=True, eq=False)
 class BatchSolution:
-    """Governing solution of n scenarios on shared base stations."""
+    """Governing solution of n scenarios on shared base stations (frozen: every field, the jumps and the
+    notes included, is given at construction)."""
 
     x: np.ndarray  # (M,)
     segment: np.ndarray  # (M,) segment index of each station
@@ -65,13 +66,15 @@ class BatchSolution:
     jump_segment: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
-    notes: list = field(default_factory=list)  # per scenario: list of Note (x, kind, values; gvflow._notes)
-    # per scenario: list of (segment, x_up, x_down) where the subcritical pass found the conduit full
+    notes: tuple = ()  # per scenario: a tuple of Note (x, kind, values; gvflow._notes)
+    # per scenario: a tuple of (segment, x_up, x_down) where the subcritical pass found the conduit full
     # (pressure flow), before the supercritical profile governs any of it
-    pressure_runs: list = field(default_factory=list)
+    pressure_runs: tuple = ()
 
     _PER_SCENARIO = ("depth", "regime", "slope_class")
     _JUMPS = ("jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after", "jump_at_junction")
+    #: the jump fields in the order of the solver's jump tuples
+    _JUMP_ROWS = ("jump_scenario",) + _JUMPS
 
     @classmethod
     def concatenate(cls, parts: list[BatchSolution]) -> BatchSolution:
@@ -88,8 +91,8 @@ class BatchSolution:
             segs.append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"], s0.units, s0.alpha,
                                      cat["yc"], cat["yn"], cb, s0.fl))
         out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
-                  notes=[note for p in parts for note in p.notes],
-                  pressure_runs=[run for p in parts for run in p.pressure_runs],
+                  notes=tuple(note for p in parts for note in p.notes),
+                  pressure_runs=tuple(run for p in parts for run in p.pressure_runs),
                   jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
                   **{f: np.concatenate([getattr(p, f) for p in parts], axis=0) for f in cls._PER_SCENARIO},
                   **{f: np.concatenate([getattr(p, f) for p in parts]) for f in cls._JUMPS})
@@ -718,23 +721,19 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
 
 def _solution(st: _Setup, gov: _Governed) -> BatchSolution:
     """The solution record, jumps sorted by scenario and x, with the notes on jumps on sloping floors."""
-    sol = BatchSolution(x=st.x, segment=st.seg_ix, bed=st.bed, depth=gov.depth, regime=gov.regime, segs=st.segs,
-                        slope_class=st.classes, notes=st.notes, pressure_runs=st.pressure_runs)
+    jumps = {}
+    notes = st.notes
     if gov.jumps:
         arr = list(zip(*gov.jumps, strict=True))
-        sol.jump_scenario = np.array(arr[0], int)
-        sol.jump_x = np.array(arr[1], float)
-        sol.jump_y1 = np.array(arr[2], float)
-        sol.jump_y2 = np.array(arr[3], float)
-        sol.jump_segment = np.array(arr[4], int)
-        sol.jump_after = np.array(arr[5], int)
-        sol.jump_at_junction = np.array(arr[6], bool)
-        order = np.lexsort((sol.jump_x, sol.jump_scenario))
-        for name in ("jump_scenario", "jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after",
-                     "jump_at_junction"):
-            setattr(sol, name, getattr(sol, name)[order])
-        note_sloping_jumps(sol, st.reach)
-    return sol
+        types = (int, float, float, float, int, int, bool)
+        jumps = {name: np.array(a, t) for name, a, t in zip(BatchSolution._JUMP_ROWS, arr, types, strict=True)}
+        order = np.lexsort((jumps["jump_x"], jumps["jump_scenario"]))
+        jumps = {name: a[order] for name, a in jumps.items()}
+        for s, n in note_sloping_jumps(jumps["jump_scenario"], jumps["jump_x"], jumps["jump_segment"], st.reach):
+            notes[s].append(n)
+    return BatchSolution(x=st.x, segment=st.seg_ix, bed=st.bed, depth=gov.depth, regime=gov.regime, segs=st.segs,
+                         slope_class=st.classes, notes=tuple(map(tuple, notes)),
+                         pressure_runs=tuple(map(tuple, st.pressure_runs)), **jumps)
 
 
 def _inflow_notes(notes, segments, segs, bounds, x, regime):
