@@ -118,11 +118,12 @@ def station_layout(reach, n_steps: int, max_step: float | None):
 
 
 _SLOPE_CLASS_NAMES = np.array(SLOPE_CLASSES, dtype=object)  # indexed by SegmentBatch._checked's class codes
+_MILD, _STEEP, _CRITICAL = (SLOPE_CLASSES.index(c) for c in ("mild", "steep", "critical"))
 
 
 def _check_inside(seg, y, ctrl, end):
     top = seg.section.max_depth
-    if np.any(y > top):
+    if (y > top).any():
         raise ControlError(
             f"{end} control {ctrl!r} puts the water {float(np.max(y)):.4g} deep in {seg.section!r}, above its "
             "crown: the conduit would flow full (pressure flow is outside gvflow's free-surface model)")
@@ -160,7 +161,7 @@ def _pressure_head_with_energy(seg: SegmentBatch, e):
     over = e > e_full
     out, flag = np.empty(e.shape), np.zeros(e.shape, bool)
     out[over] = top + (e - e_full)[over]
-    if not np.all(over):
+    if not over.all():
         idx = np.flatnonzero(~over)
         out[idx], flag[idx] = _depth_with_energy(_subset(seg, idx), e[idx], SUB)
     return out, flag
@@ -180,14 +181,14 @@ def _check_stop_codes(marcher, seg, code, stop, grp, x_order, full_ok=False):
     caller continues in pressure flow) or without convergence (3)."""
     m = x_order.shape[0]
     full = code == 2
-    if np.any(full) and not full_ok:
+    if full.any() and not full_ok:
         r = int(np.flatnonzero(full)[0])
         raise NoSolutionError(
             f"the water surface reaches the crown of {seg.section!r} near x = "
             f"{x_order[min(stop[r], m - 1)]:.2f} (discharge {seg.discharge[grp[r]]:g}): the conduit flows "
             "full there; pressure flow is outside gvflow's free-surface model. Use a larger conduit or "
             "a lower downstream level")
-    if np.any(code == 3):
+    if (code == 3).any():
         r = int(np.flatnonzero(code == 3)[0])
         raise ConvergenceError(
             f"the {getattr(marcher, 'name', 'profile')} marcher could not meet its tolerance near x = "
@@ -356,6 +357,7 @@ class _Setup:
     q: np.ndarray  # (n,) discharge entering the reach
     segs: list  # SegmentBatch per segment
     classes: np.ndarray  # (n, K) slope class names
+    class_code: np.ndarray  # (n, K) the same as indices into SLOPE_CLASSES
     can_sub_restart: list  # per segment, (n,) bool: the subcritical march may leave critical depth again
     can_sup_start: list  # per segment, (n,) bool: the supercritical march may start from critical depth
     x: np.ndarray  # (M,) base stations
@@ -451,7 +453,7 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
     check_reach(reach)  # refuse lengths and end depths no channel holds
     q_seg = reach.segment_discharges(q)  # (n, K): continuity at every inflow
-    if np.any(q_seg <= 0):
+    if (q_seg <= 0).any():
         s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
@@ -464,8 +466,9 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
     for seg in segs:
         seg.require_converged()
     x, seg_ix, bed, bounds = station_layout(reach, n_steps, max_step)
+    code = np.stack([b[2] for b in built], axis=1)
     return _Setup(reach=reach, marcher=marcher, controls=controls, q=q, segs=segs,
-                  classes=_SLOPE_CLASS_NAMES[np.stack([b[2] for b in built], axis=1)],
+                  classes=_SLOPE_CLASS_NAMES[code], class_code=code,
                   can_sub_restart=[sf_c[k] > segs[k].slope for k in range(nseg)],
                   can_sup_start=[sf_c[k] < segs[k].slope for k in range(nseg)],
                   x=x, seg_ix=seg_ix, bed=bed, bounds=bounds, notes=[[] for _ in range(n)],
@@ -479,23 +482,24 @@ def _downstream_start(st: _Setup) -> _Downstream:
     classes = st.classes
     end_state = EndState("downstream", last, float(st.bed[-1]), classes[:, -1])
     ctrl = st.control("downstream", st.reach.downstream)
+    code = st.class_code[:, -1]
     if ctrl is None:
-        y_down = np.where(classes[:, -1] == "mild", last.yn, last.yc)
-        governs_down = classes[:, -1] != "steep"
+        y_down = np.where(code == _MILD, last.yn, last.yc)
+        governs_down = code != _STEEP
     else:
         ctrl.check_end("downstream")
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
         governs_down = y_down >= last.yc * (1 - 1e-12)
-        must_be_sub = (classes[:, -1] != "steep") & (classes[:, -1] != "critical") & ~governs_down
-        if np.any(must_be_sub):
+        must_be_sub = (code != _STEEP) & (code != _CRITICAL) & ~governs_down
+        if must_be_sub.any():
             i = int(np.flatnonzero(must_be_sub)[0])
             raise ControlError(
                 f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, below critical depth "
                 f"{last.yc[i]:.4g} (discharge {st.q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
                 "subcritical, so its downstream control must be at or above critical depth. For a free "
                 "overfall or a drop use gv.CriticalFlow()")
-    if np.any(~np.isfinite(y_down)):
+    if not np.isfinite(y_down).all():
         i = int(np.flatnonzero(~np.isfinite(y_down))[0])
         raise NoSolutionError(
             f"no downstream depth for discharge {st.q[i]:g}: {last.section!r} cannot carry it in uniform flow at "
@@ -638,7 +642,7 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     seg, nseg1 = segs[k], segs[k + 1]
     nxt = np.full(n, np.nan)
     carried = np.zeros(n, bool)
-    if act.size and np.any(gov_sup_end):
+    if act.size and gov_sup_end.any():
         idx = act[gov_sup_end]
         yt, flag = _transfer(_subset(seg, idx), _subset(nseg1, idx), y_end[gov_sup_end], SUPER, drop)
         nxt[idx] = yt
@@ -651,7 +655,7 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     crit_up = sub_end & sub.c[:, i_end]
     # critical depth at the head of a steep segment k + 1
     crit_dn = sub_end & ~crit_up & sub.c[:, j0] & st.can_sup_start[k + 1]
-    if np.any(crit_up):
+    if crit_up.any():
         idx = np.flatnonzero(crit_up)
         yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER, drop)
         nxt[idx] = yt
@@ -838,7 +842,7 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
     y_sub1 = sub_y[s_idx, after + 1]
     xj, ys, yb = marcher.locate_jumps(_subset(seg, s_idx), y_sup0, x_lo, y_sub1, x_hi)  # one jump a scenario
     bad = ~np.isfinite(xj)
-    if np.any(bad):
+    if bad.any():
         r = int(np.flatnonzero(bad)[0])
         raise ConvergenceError(f"the jump between x = {x_lo[r]:.3f} and {x_hi[r]:.3f} could not be located to "
                                "tolerance; try more steps (n_steps)", iterations=200)
