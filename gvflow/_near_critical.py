@@ -26,6 +26,7 @@ from __future__ import annotations
 import numpy as np
 
 from ._engine import core
+from ._notes import note
 
 #: Froude numbers bounding near-critical flow (Chow 1959, ch. 3; common practice).
 NEAR_CRITICAL_FROUDE = (0.85, 1.15)
@@ -34,10 +35,9 @@ NEAR_CRITICAL_FROUDE = (0.85, 1.15)
 NEAR_CRITICAL_MIN_LENGTH = 10.0
 
 
-def near_critical_notes(notes, segs, bounds, x, depth, units) -> None:
+def near_critical_notes(notes, segs, bounds, x, depth) -> None:
     """Append a note to each scenario for every long near-critical stretch of each segment."""
     lo_fr, hi_fr = NEAR_CRITICAL_FROUDE
-    L = units.length
     for k, seg in enumerate(segs):
         i0, m = bounds[k]
         q = np.ascontiguousarray(seg.discharge, dtype=float)
@@ -57,10 +57,4 @@ def near_critical_notes(notes, segs, bounds, x, depth, units) -> None:
         for r in np.flatnonzero(length >= NEAR_CRITICAL_MIN_LENGTH * yc):
             s = int(s_start[r])
             a, b = float(xs[j_start[r]]), float(xs[j_end[r] - 1])
-            notes[s].append((a, "near-critical flow",
-                             f"the Froude number stays between {lo_fr:g} and {hi_fr:g} from x = {a:.2f} to "
-                             f"{b:.2f} {L} in segment {k} ({b - a:.0f} {L}, {(b - a) / yc[r]:.0f} critical "
-                             "depths): near critical depth the water surface is unstable and wavy, and small "
-                             "changes of roughness or discharge move it noticeably (Chow 1959, ch. 3); allow "
-                             "extra freeboard, or change the slope or section to move the Froude number out "
-                             "of this band"))
+            notes[s].append(note(a, "near-critical flow", k=k, x_end=b, yc=yc[r], froude=(lo_fr, hi_fr)))

@@ -16,7 +16,7 @@ Two kinds of check, in one place:
   times the channel's width (a sign of mixed units). One warning per kind and
   call, attributed to the caller's line (the first frame outside gvflow).
 
-:func:`note_sloping_jumps` adds the note on a jump located on a steep floor.
+:func:`note_sloping_jumps` gives the notes on jumps located on a steep floor.
 """
 
 from __future__ import annotations
@@ -25,6 +25,7 @@ import contextlib
 
 import numpy as np
 
+from ._notes import note
 from ._warn import warn
 from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
 from .errors import InvalidInputError
@@ -241,8 +242,9 @@ def _warn_mixed_units(segs, L, g) -> None:
              "units (a width in feet with a discharge in m³/s, say); check the section, the discharge and units")
 
 
-def note_sloping_jumps(sol, reach) -> None:
-    """Note every jump located on a floor sloping down more steeply than :data:`STEEP_SLOPE`.
+def note_sloping_jumps(scenario, x, segment, reach) -> list:
+    """(scenario, note) for every jump (``scenario``, ``x``, ``segment`` arrays, one entry a jump) located on
+    a floor sloping down more steeply than :data:`STEEP_SLOPE`.
 
     The jump location solver balances the level-floor specific forces. On a sloping floor the weight
     of the water in the roller has a component along the bed that the balance leaves out, so the
@@ -250,14 +252,9 @@ def note_sloping_jumps(sol, reach) -> None:
     HEC-14, ch. 6, eq. 6.7; the USBR model tests of jumps on sloping aprons, Peterka 1958, Engineering
     Monograph 25, show the same trend).
     """
-    L = reach.resolved_units.length
-    for s, x, k in zip(sol.jump_scenario, sol.jump_x, sol.jump_segment, strict=True):
+    out = []
+    for s, xj, k in zip(scenario, x, segment, strict=True):
         slope = reach.segments[int(k)].slope
         if slope > STEEP_SLOPE:
-            sol.notes[int(s)].append((float(x), "jump on a sloping floor",
-                                      f"the jump at x = {x:.2f} {L} stands on segment {int(k)}, bed slope {slope:g}: "
-                                      "it was located with the level-floor momentum balance, which leaves out the "
-                                      "weight of the roller along the slope and so underestimates the sequent "
-                                      "depth needed to hold the jump there (FHWA HEC-14, 2006, ch. 6, eq. 6.7: "
-                                      f"the weight may be neglected only below a slope of {STEEP_SLOPE:g}); "
-                                      "treat its location as approximate"))
+            out.append((int(s), note(float(xj), "jump on a sloping floor", k=int(k), slope=slope, steep=STEEP_SLOPE)))
+    return out

@@ -28,6 +28,7 @@ import numpy as np
 from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
 from ._engine import core
 from ._near_critical import near_critical_notes
+from ._notes import note
 from ._plausible import check_reach, check_segments, note_sloping_jumps
 from ._validate import positive_array
 from .controls import EndState
@@ -45,9 +46,10 @@ _M_TOL = 1e-12  # relative tolerance when comparing specific forces
 JUMP_BALANCE_TOLERANCE = 1e-6
 
 
-@dataclass(eq=False)
+@dataclass(frozen=True, eq=False)
 class BatchSolution:
-    """Governing solution of n scenarios on shared base stations."""
+    """Governing solution of n scenarios on shared base stations (frozen: every field, the jumps and the
+    notes included, is given at construction)."""
 
     x: np.ndarray  # (M,)
     segment: np.ndarray  # (M,) segment index of each station
@@ -64,13 +66,15 @@ class BatchSolution:
     jump_segment: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
-    notes: list = field(default_factory=list)  # per scenario: list of (x, kind, text)
-    # per scenario: list of (segment, x_up, x_down) where the subcritical pass found the conduit full
+    notes: tuple = ()  # per scenario: a tuple of Note (x, kind, values; gvflow._notes)
+    # per scenario: a tuple of (segment, x_up, x_down) where the subcritical pass found the conduit full
     # (pressure flow), before the supercritical profile governs any of it
-    pressure_runs: list = field(default_factory=list)
+    pressure_runs: tuple = ()
 
     _PER_SCENARIO = ("depth", "regime", "slope_class")
     _JUMPS = ("jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after", "jump_at_junction")
+    #: the jump fields in the order of the solver's jump tuples
+    _JUMP_ROWS = ("jump_scenario",) + _JUMPS
 
     @classmethod
     def concatenate(cls, parts: list[BatchSolution]) -> BatchSolution:
@@ -87,8 +91,8 @@ class BatchSolution:
             segs.append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"], s0.units, s0.alpha,
                                      cat["yc"], cat["yn"], cb, s0.fl))
         out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
-                  notes=[note for p in parts for note in p.notes],
-                  pressure_runs=[run for p in parts for run in p.pressure_runs],
+                  notes=tuple(note for p in parts for note in p.notes),
+                  pressure_runs=tuple(run for p in parts for run in p.pressure_runs),
                   jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
                   **{f: np.concatenate([getattr(p, f) for p in parts], axis=0) for f in cls._PER_SCENARIO},
                   **{f: np.concatenate([getattr(p, f) for p in parts]) for f in cls._JUMPS})
@@ -114,11 +118,12 @@ def station_layout(reach, n_steps: int, max_step: float | None):
 
 
 _SLOPE_CLASS_NAMES = np.array(SLOPE_CLASSES, dtype=object)  # indexed by SegmentBatch._checked's class codes
+_MILD, _STEEP, _CRITICAL = (SLOPE_CLASSES.index(c) for c in ("mild", "steep", "critical"))
 
 
 def _check_inside(seg, y, ctrl, end):
     top = seg.section.max_depth
-    if np.any(y > top):
+    if (y > top).any():
         raise ControlError(
             f"{end} control {ctrl!r} puts the water {float(np.max(y)):.4g} deep in {seg.section!r}, above its "
             "crown: the conduit would flow full (pressure flow is outside gvflow's free-surface model)")
@@ -156,7 +161,7 @@ def _pressure_head_with_energy(seg: SegmentBatch, e):
     over = e > e_full
     out, flag = np.empty(e.shape), np.zeros(e.shape, bool)
     out[over] = top + (e - e_full)[over]
-    if not np.all(over):
+    if not over.all():
         idx = np.flatnonzero(~over)
         out[idx], flag[idx] = _depth_with_energy(_subset(seg, idx), e[idx], SUB)
     return out, flag
@@ -176,14 +181,14 @@ def _check_stop_codes(marcher, seg, code, stop, grp, x_order, full_ok=False):
     caller continues in pressure flow) or without convergence (3)."""
     m = x_order.shape[0]
     full = code == 2
-    if np.any(full) and not full_ok:
+    if full.any() and not full_ok:
         r = int(np.flatnonzero(full)[0])
         raise NoSolutionError(
             f"the water surface reaches the crown of {seg.section!r} near x = "
             f"{x_order[min(stop[r], m - 1)]:.2f} (discharge {seg.discharge[grp[r]]:g}): the conduit flows "
             "full there; pressure flow is outside gvflow's free-surface model. Use a larger conduit or "
             "a lower downstream level")
-    if np.any(code == 3):
+    if (code == 3).any():
         r = int(np.flatnonzero(code == 3)[0])
         raise ConvergenceError(
             f"the {getattr(marcher, 'name', 'profile')} marcher could not meet its tolerance near x = "
@@ -377,6 +382,82 @@ def _one(ctrl, s):
     return ctrl if pick is None else pick(s)
 
 
+@dataclass(frozen=True)
+class _Setup:
+    """What both passes share: the reach, its segments as batches of scenarios, their slope classes, the
+    base stations, and the per-scenario lists the passes add notes and full stretches to."""
+
+    reach: object
+    marcher: object
+    controls: dict  # replacements of the reach's controls for this batch (see solve_batch)
+    q: np.ndarray  # (n,) discharge entering the reach
+    segs: list  # SegmentBatch per segment
+    classes: np.ndarray  # (n, K) slope class names
+    class_code: np.ndarray  # (n, K) the same as indices into SLOPE_CLASSES
+    can_sub_restart: list  # per segment, (n,) bool: the subcritical march may leave critical depth again
+    can_sup_start: list  # per segment, (n,) bool: the supercritical march may start from critical depth
+    x: np.ndarray  # (M,) base stations
+    seg_ix: np.ndarray  # (M,) segment of each station
+    bed: np.ndarray  # (M,) bed elevation
+    bounds: list  # (first station, count) per segment
+    notes: list  # per scenario: list of Note (gvflow._notes)
+    pressure_runs: list  # per scenario: list of (segment, x_up, x_down) found full by the subcritical pass
+
+    @property
+    def n(self) -> int:
+        return self.q.size
+
+    @property
+    def segments(self):
+        return self.reach.segments
+
+    def control(self, key, default):
+        return self.controls.get(key, default)
+
+
+@dataclass(frozen=True)
+class _Downstream:
+    """The downstream end: its control (None: normal or critical depth), where it governs, and the start of
+    the subcritical pass."""
+
+    ctrl: object
+    end_state: EndState
+    y_down: np.ndarray  # (n,) depth the control sets (or normal/critical depth without one)
+    governs: np.ndarray  # (n,) bool
+    y_start: np.ndarray  # (n,) depth the subcritical pass starts from
+    c_start: np.ndarray  # (n,) bool: that depth is critical
+
+
+@dataclass(frozen=True)
+class _SubPass:
+    """The subcritical pass: depth and critical flags at every station, and the gates it met."""
+
+    y: np.ndarray  # (n, M)
+    c: np.ndarray  # (n, M) bool
+    gate_jet: dict  # segment -> (n,) jet depth below the gate at its head
+    gate_submerged: dict  # segment -> (n,) bool
+
+
+@dataclass(frozen=True)
+class _Upstream:
+    """The upstream end: its control, and the supercritical pass's starting depth (NaN: none)."""
+
+    ctrl: object
+    state: EndState | None
+    sup_state: np.ndarray  # (n,)
+    from_control: np.ndarray  # (n,) bool: the control starts supercritical flow (cleared where drowned)
+
+
+@dataclass(frozen=True)
+class _Governed:
+    """The governing depth and regime at every station, and the jumps (scenario, x, y1, y2, segment,
+    after_index, at_junction)."""
+
+    depth: np.ndarray
+    regime: np.ndarray
+    jumps: list
+
+
 def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_step=None,
                 critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, controls=None) -> BatchSolution:
     """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None).
@@ -386,7 +467,19 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     per-scenario controls with the same methods (``depth_at`` and ``notes`` answer per scenario,
     ``for_scenario(s)`` gives one scenario's control, attributes are per-scenario arrays).
     """
-    controls = {} if controls is None else controls
+    st = _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical_tolerance,
+                         {} if controls is None else controls)
+    down = _downstream_start(st)
+    sub = _subcritical_pass(st, down)
+    up = _upstream_start(st, sub)
+    gov = _supercritical_pass(st, down, sub, up)
+    _control_notes(st, down, sub, up, gov)
+    return _solution(st, gov)
+
+
+def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical_tolerance, controls) -> _Setup:
+    """Validate the scenarios, build each segment's batch (normal and critical depths, slope classes) and
+    lay out the base stations."""
     units = reach.resolved_units
     segments = reach.segments
     nseg = len(segments)
@@ -396,7 +489,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
     check_reach(reach)  # refuse lengths and end depths no channel holds
     q_seg = reach.segment_discharges(q)  # (n, K): continuity at every inflow
-    if np.any(q_seg <= 0):
+    if (q_seg <= 0).any():
         s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
@@ -412,249 +505,284 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     check_segments(reach, segs, sf_c, coef)  # depths and critical slopes no channel holds; warnings
     for seg in segs:
         seg.require_converged()
-    classes = _SLOPE_CLASS_NAMES[np.stack([b[2] for b in built], axis=1)]
-    can_sub_restart = [sf_c[k] > segs[k].slope for k in range(nseg)]
-    can_sup_start = [sf_c[k] < segs[k].slope for k in range(nseg)]
-
     x, seg_ix, bed, bounds = station_layout(reach, n_steps, max_step)
-    M = x.size
-    notes = [[] for _ in range(n)]
+    code = np.stack([b[2] for b in built], axis=1)
+    return _Setup(reach=reach, marcher=marcher, controls=controls, q=q, segs=segs,
+                  classes=_SLOPE_CLASS_NAMES[code], class_code=code,
+                  can_sub_restart=[sf_c[k] > segs[k].slope for k in range(nseg)],
+                  can_sup_start=[sf_c[k] < segs[k].slope for k in range(nseg)],
+                  x=x, seg_ix=seg_ix, bed=bed, bounds=bounds, notes=[[] for _ in range(n)],
+                  pressure_runs=[[] for _ in range(n)])
 
-    # ---------------- subcritical pass -------------------------------------------------
-    sub_y = np.full((n, M), np.nan)
-    sub_c = np.zeros((n, M), bool)
-    last = segs[-1].tail  # the reach's downstream end
-    end_state = EndState("downstream", last, float(bed[-1]), classes[:, -1])
-    ctrl = controls.get("downstream", reach.downstream)
+
+def _downstream_start(st: _Setup) -> _Downstream:
+    """The depth the subcritical pass starts from: the downstream control's where it governs, else
+    critical depth (normal or critical depth where the reach gives no control)."""
+    last = st.segs[-1].tail  # the reach's downstream end
+    classes = st.classes
+    end_state = EndState("downstream", last, float(st.bed[-1]), classes[:, -1])
+    ctrl = st.control("downstream", st.reach.downstream)
+    code = st.class_code[:, -1]
     if ctrl is None:
-        y_down = np.where(classes[:, -1] == "mild", last.yn, last.yc)
-        governs_down = classes[:, -1] != "steep"
+        y_down = np.where(code == _MILD, last.yn, last.yc)
+        governs_down = code != _STEEP
     else:
         ctrl.check_end("downstream")
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
         governs_down = y_down >= last.yc * (1 - 1e-12)
-        must_be_sub = (classes[:, -1] != "steep") & (classes[:, -1] != "critical") & ~governs_down
-        if np.any(must_be_sub):
+        must_be_sub = (code != _STEEP) & (code != _CRITICAL) & ~governs_down
+        if must_be_sub.any():
             i = int(np.flatnonzero(must_be_sub)[0])
             raise ControlError(
                 f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, below critical depth "
-                f"{last.yc[i]:.4g} (discharge {q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
+                f"{last.yc[i]:.4g} (discharge {st.q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
                 "subcritical, so its downstream control must be at or above critical depth. For a free "
                 "overfall or a drop use gv.CriticalFlow()")
-    if np.any(~np.isfinite(y_down)):
+    if not np.isfinite(y_down).all():
         i = int(np.flatnonzero(~np.isfinite(y_down))[0])
         raise NoSolutionError(
-            f"no downstream depth for discharge {q[i]:g}: {last.section!r} cannot carry it in uniform flow at slope "
-            f"{last.slope:g} (see gv.conduit_capacity); give the reach a downstream control or a larger section")
-    gate_jet, gate_submerged = {}, {}  # per segment with a gate at its head
-    y_start = np.where(governs_down, y_down, last.yc)
+            f"no downstream depth for discharge {st.q[i]:g}: {last.section!r} cannot carry it in uniform flow at "
+            f"slope {last.slope:g} (see gv.conduit_capacity); give the reach a downstream control or a larger "
+            "section")
     # a control at critical depth (a brink) makes the end station critical
-    c_start = ~governs_down | (np.abs(y_down - last.yc) <= 1e-12 * last.yc)
-    drops = [s.drop for s in segments]
-    pressure_runs = [[] for _ in range(n)]
-    for k in range(nseg - 1, -1, -1):
-        i0, m = bounds[k]
+    return _Downstream(ctrl=ctrl, end_state=end_state, y_down=y_down, governs=governs_down,
+                       y_start=np.where(governs_down, y_down, last.yc),
+                       c_start=~governs_down | (np.abs(y_down - last.yc) <= 1e-12 * last.yc))
+
+
+def _subcritical_pass(st: _Setup, down: _Downstream) -> _SubPass:
+    """March the subcritical branch segment by segment, downstream to upstream, carrying the depth across
+    every junction (:func:`_transfer`) and gate (:func:`_through_gate`)."""
+    segs, segments, x, n = st.segs, st.segments, st.x, st.n
+    sub_y = np.full((n, x.size), np.nan)
+    sub_c = np.zeros((n, x.size), bool)
+    gate_jet, gate_submerged = {}, {}  # per segment with a gate at its head
+    y_start, c_start = down.y_start, down.c_start
+    for k in range(len(segs) - 1, -1, -1):
+        i0, m = st.bounds[k]
         xs = x[i0:i0 + m][::-1]
-        y, c = _sub_segment(marcher, segs[k], xs, y_start, c_start, can_sub_restart[k], k, pressure_runs)
+        y, c = _sub_segment(st.marcher, segs[k], xs, y_start, c_start, st.can_sub_restart[k], k, st.pressure_runs)
         sub_y[:, i0:i0 + m] = y[:, ::-1]
         sub_c[:, i0:i0 + m] = c[:, ::-1]
         if k > 0 and segments[k].gate is not None:
-            gate = controls.get(k, segments[k].gate)
-            jet = np.asarray(gate.depth_at(EndState("upstream", segs[k], float(bed[i0]), classes[:, k])), float)
+            gate = st.control(k, segments[k].gate)
+            jet = np.asarray(gate.depth_at(EndState("upstream", segs[k], float(st.bed[i0]), st.classes[:, k])),
+                             float)
             gate_jet[k] = jet
             tail = np.where(sub_c[:, i0], np.nan, sub_y[:, i0])  # no subcritical water below: free flow
             y_start, gate_submerged[k] = _through_gate(gate, segs[k - 1].tail, segs[k], jet, tail)
             c_start = np.zeros(n, bool)
         elif k > 0:
-            y_start, flag = _transfer(segs[k], segs[k - 1].tail, sub_y[:, i0], SUB, -drops[k])
+            drop = segments[k].drop
+            y_start, flag = _transfer(segs[k], segs[k - 1].tail, sub_y[:, i0], SUB, -drop)
             # critical on the upstream side too where the section and bed are the same, or where it has no
             # subcritical root
-            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1].tail) & (drops[k] == 0)
-                                 & (segments[k].inflow == 0))
+            c_start = flag | (sub_c[:, i0] & segs[k].same_section(segs[k - 1].tail) & (drop == 0)
+                              & (segments[k].inflow == 0))
+    return _SubPass(y=sub_y, c=sub_c, gate_jet=gate_jet, gate_submerged=gate_submerged)
 
-    # ---------------- supercritical pass and governance ------------------------------------
-    depth = sub_y.copy()
-    regime = np.where(sub_c, REGIME_CRITICAL, REGIME_SUB)
-    jumps = []  # (scenario, x, y1, y2, segment, after_index, at_junction)
-    first = segs[0]
+
+def _upstream_start(st: _Setup, sub: _SubPass) -> _Upstream:
+    """The depth the supercritical pass starts from: a supercritical upstream control's, or critical depth
+    where the subcritical pass fell back to it at the head of a steep first segment (NaN: neither)."""
+    first, n, notes = st.segs[0], st.n, st.notes
     sup_state = np.full(n, np.nan)
     sup_from_control = np.zeros(n, bool)
-    up = controls.get("upstream", reach.upstream)
+    up = st.control("upstream", st.reach.upstream)
+    up_state = None
     if up is not None:
         up.check_end("upstream")
-        up_state = EndState("upstream", first, float(bed[0]), classes[:, 0])
+        up_state = EndState("upstream", first, float(st.bed[0]), st.classes[:, 0])
         y_up = np.asarray(up.depth_at(up_state), dtype=float)
         _check_inside(first, y_up, up, "upstream")
-        ok = (y_up < first.yc * (1 - 1e-9)) | (np.isclose(y_up, first.yc, rtol=1e-9) & can_sup_start[0])
+        ok = (y_up < first.yc * (1 - 1e-9)) | (np.isclose(y_up, first.yc, rtol=1e-9) & st.can_sup_start[0])
         sup_state = np.where(ok, y_up, np.nan)
         sup_from_control = ok.copy()
         for s in np.flatnonzero(~ok):
-            notes[s].append((0.0, "unused control",
-                             f"upstream control {_one(up, s).describe(units)} does not govern: the flow entering the "
-                             "reach is subcritical and is governed from downstream"))
-    entry = np.isnan(sup_state) & sub_c[:, 0] & can_sup_start[0]
+            notes[s].append(note(0.0, "unused control", end="upstream", control=_one(up, s)))
+    entry = np.isnan(sup_state) & sub.c[:, 0] & st.can_sup_start[0]
     sup_state = np.where(entry, first.yc, sup_state)
     for s in np.flatnonzero(entry):
-        notes[s].append((0.0, "critical control", "critical depth at the head of a steep segment"))
-    carried = np.zeros(n, bool)  # supercritical flow carried over from the previous segment
-    for k in range(nseg):
-        i0, m = bounds[k]
-        seg = segs[k]
+        notes[s].append(note(0.0, "critical control", where="steep head"))
+    return _Upstream(ctrl=up, state=up_state, sup_state=sup_state, from_control=sup_from_control)
+
+
+def _supercritical_pass(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream) -> _Governed:
+    """March the supercritical branch segment by segment, upstream to downstream, where it starts or is
+    carried over; govern each segment's stations and locate its jumps (:func:`_govern_segment`), then hand
+    the state on to the next segment's head (:func:`_next_head`)."""
+    gov = _Governed(depth=sub.y.copy(), regime=np.where(sub.c, REGIME_CRITICAL, REGIME_SUB), jumps=[])
+    sup_state = up.sup_state
+    carried = np.zeros(st.n, bool)  # supercritical flow carried over from the previous segment
+    for k in range(len(st.segs)):
         act = np.flatnonzero(np.isfinite(sup_state))
         if act.size:
-            xs = x[i0:i0 + m]
-            from_critical = np.abs(sup_state[act] - seg.yc[act]) <= 1e-12 * seg.yc[act]
-            seg_act = _subset(seg, act)
-            t = seg.fractions(xs) if seg.change is not None else None  # a changing section: per station
-            msub = seg_act.specific_force(sub_y[act, i0:i0 + m], t)
-            # (the supercritical march may stop where the subcritical profile overtakes it: NaN beyond)
-            ysup, csup = _march_with_fallback(marcher, seg_act, xs, sup_state[act], from_critical, SUPER,
-                                              can_sup_start[k][act], rival=msub)
-            msup = seg_act.specific_force(ysup, t)
-            first_loss = np.empty(act.size, np.int64)
-            if act.size == n:  # write in place
-                core("stations", msup.size).govern(msup, msub, ysup, csup, depth[:, i0:i0 + m],
-                                                   regime[:, i0:i0 + m], _M_TOL, first_loss)
-            else:
-                blk_y, blk_r = depth[act, i0:i0 + m], regime[act, i0:i0 + m]
-                core("stations", msup.size).govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
-                depth[act, i0:i0 + m], regime[act, i0:i0 + m] = blk_y, blk_r
-            for r in np.flatnonzero(first_loss < m):
-                s, i = int(act[r]), int(first_loss[r])
-                if i == 0:
-                    if k == 0 and not sup_from_control[s]:
-                        continue  # critical entry immediately overtaken: plain subcritical flow
-                    if k == 0:
-                        sup_from_control[s] = False
-                        notes[s].append((0.0, "drowned jump",
-                                         "the tailwater drowns the jump against the upstream control: "
-                                         "submerged outflow at x = 0"))
-                        continue
-                    if k in gate_jet:
-                        continue  # a submerged gate: noted with the gate below
-                    if carried[s] and regime[s, i0 - 1] != REGIME_CRITICAL:
-                        jumps.append((s, x[i0], depth[s, i0 - 1], sub_y[s, i0], k, i0 - 1, True))
-                    # (from critical depth at the junction straight into subcritical flow: an expansion
-                    # whose energy difference is lost, not a jump)
-                    continue
-                jumps.append((s, np.nan, ysup[r, i - 1], sub_y[s, i0 + i], k, i0 + i - 1, False))
-            # refine the jumps inside this segment, all scenarios at once
-            if seg.change is not None:
-                _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub)
-            else:
-                _refine(jumps, marcher, seg, x, sub_y, k, notes, pressure_runs)
-            gov_sup_end = first_loss == m
-            y_end = ysup[:, -1]
+            gov_sup_end, y_end = _govern_segment(st, k, sub, up, gov, act, sup_state[act], carried)
         else:
-            gov_sup_end = np.zeros(0, bool)
-            y_end = np.zeros(0)
-        # state at the head of the next segment
-        nxt = np.full(n, np.nan)
-        carried = np.zeros(n, bool)
-        if k + 1 < nseg:
-            if act.size and np.any(gov_sup_end):
-                idx = act[gov_sup_end]
-                yt, flag = _transfer(_subset(seg.tail, idx), _subset(segs[k + 1], idx), y_end[gov_sup_end], SUPER,
-                                     drops[k + 1])
-                nxt[idx] = yt
-                carried[idx] = True
-            j0 = bounds[k + 1][0]
-            i_end = i0 + m - 1
-            nseg1 = segs[k + 1]
-            sub_end = np.isnan(nxt) & (regime[:, i_end] != REGIME_SUPER)
-            # critical depth at the end of segment k: a choke (the next section needs more energy)
-            # or a brink; the flow leaves it supercritical into segment k + 1
-            crit_up = sub_end & sub_c[:, i_end]
-            # critical depth at the head of a steep segment k + 1
-            crit_dn = sub_end & ~crit_up & sub_c[:, j0] & can_sup_start[k + 1]
-            if np.any(crit_up):
-                idx = np.flatnonzero(crit_up)
-                yt, _ = _transfer(_subset(seg.tail, idx), _subset(nseg1, idx), seg.tail.yc[idx], SUPER, drops[k + 1])
-                nxt[idx] = yt
-                carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
-            nxt = np.where(crit_dn, nseg1.yc, nxt)
-            if k + 1 in gate_jet:  # the gate releases its jet whatever arrives from upstream
-                nxt = gate_jet[k + 1].copy()
-                carried = np.zeros(n, bool)
-                crit_up[:] = crit_dn[:] = False
-            changed = not seg.tail.same_section(nseg1)
-            for s in np.flatnonzero(crit_up | crit_dn):
-                if crit_up[s] and segments[k + 1].inflow:
-                    text = (f"critical depth at the end of segment {k}: below the inflow at the head of segment "
-                            f"{k + 1} the discharge needs more energy than subcritical flow above it carries")
-                elif crit_up[s] and changed:
-                    text = (f"critical depth at the end of segment {k}, where the flow passes into the larger "
-                            f"section of segment {k + 1}")
-                else:
-                    text = "critical depth where the bed steepens (the flow passes from subcritical to supercritical)"
-                notes[s].append((float(x[j0]), "critical control", text))
-        elif act.size:
-            for r in np.flatnonzero(gov_sup_end):
-                s = act[r]
-                if ctrl is not None and governs_down[s]:
-                    notes[s].append((float(x[-1]), "jump swept out",
-                                     f"the downstream control ({_one(ctrl, s).describe(units)}) is too low to hold a "
-                                     "jump: the supercritical flow leaves the reach and the jump forms downstream of "
-                                     "it"))
-        sup_state = nxt
+            gov_sup_end, y_end = np.zeros(0, bool), np.zeros(0)
+        if k + 1 < len(st.segs):
+            sup_state, carried = _next_head(st, k, sub, gov, act, gov_sup_end, y_end)
+        else:
+            _note_swept_out(st, down, act, gov_sup_end)
+    return gov
 
-    _inflow_notes(notes, segments, segs, bounds, x, regime, units)
-    _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth)
-    _choke_notes(notes, segs, classes, bounds, x, depth, regime, units)
-    near_critical_notes(notes, segs, bounds, x, depth, units)
-    for k, jet in gate_jet.items():
-        i0 = bounds[k][0]
-        gate = controls.get(k, segments[k].gate)
+
+def _govern_segment(st: _Setup, k, sub: _SubPass, up: _Upstream, gov: _Governed, act, y0, carried):
+    """Segment k: march the supercritical branch of scenarios ``act`` from ``y0``, let the larger specific
+    force govern each station, collect and locate the jumps. Returns which of ``act`` leave the segment
+    supercritical and their depth at its end."""
+    i0, m = st.bounds[k]
+    seg = st.segs[k]
+    depth, regime, jumps, notes, n = gov.depth, gov.regime, gov.jumps, st.notes, st.n
+    xs = st.x[i0:i0 + m]
+    from_critical = np.abs(y0 - seg.yc[act]) <= 1e-12 * seg.yc[act]
+    seg_act = _subset(seg, act)
+    t = seg.fractions(xs) if seg.change is not None else None  # a changing segment: its section at each station
+    msub = seg_act.specific_force(sub.y[act, i0:i0 + m], t)
+    # (the supercritical march may stop where the subcritical profile overtakes it: NaN beyond)
+    ysup, csup = _march_with_fallback(st.marcher, seg_act, xs, y0, from_critical, SUPER, st.can_sup_start[k][act],
+                                      rival=msub)
+    msup = seg_act.specific_force(ysup, t)
+    first_loss = np.empty(act.size, np.int64)
+    if act.size == n:  # write in place
+        core("stations", msup.size).govern(msup, msub, ysup, csup, depth[:, i0:i0 + m], regime[:, i0:i0 + m],
+                                           _M_TOL, first_loss)
+    else:
+        blk_y, blk_r = depth[act, i0:i0 + m], regime[act, i0:i0 + m]
+        core("stations", msup.size).govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
+        depth[act, i0:i0 + m], regime[act, i0:i0 + m] = blk_y, blk_r
+    sup_from_control = up.from_control
+    for r in np.flatnonzero(first_loss < m):
+        s, i = int(act[r]), int(first_loss[r])
+        if i == 0:
+            if k == 0 and not sup_from_control[s]:
+                continue  # critical entry immediately overtaken: plain subcritical flow
+            if k == 0:
+                sup_from_control[s] = False
+                notes[s].append(note(0.0, "drowned jump"))
+                continue
+            if k in sub.gate_jet:
+                continue  # a submerged gate: noted with the gate below
+            if carried[s] and regime[s, i0 - 1] != REGIME_CRITICAL:
+                jumps.append((s, st.x[i0], depth[s, i0 - 1], sub.y[s, i0], k, i0 - 1, True))
+            # (from critical depth at the junction straight into subcritical flow: an expansion
+            # whose energy difference is lost, not a jump)
+            continue
+        jumps.append((s, np.nan, ysup[r, i - 1], sub.y[s, i0 + i], k, i0 + i - 1, False))
+    # refine the jumps inside this segment, all scenarios at once
+    if seg.change is not None:
+        _place_changing_jumps(jumps, k, act, i0, st.x, ysup, sub.y, msup, msub)
+    else:
+        _refine(jumps, st.marcher, seg, st.x, sub.y, k, notes, st.pressure_runs)
+    return first_loss == m, ysup[:, -1]
+
+
+def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y_end):
+    """The supercritical state at the head of segment k + 1 (NaN: none) and whether it was carried over
+    from segment k: the supercritical flow leaving k, critical depth at a choke or brink at the end of k
+    or at the head of a steep k + 1, or the jet of a gate at its head."""
+    n, segs, drop = st.n, st.segs, st.segments[k + 1].drop
+    seg, nseg1 = segs[k].tail, segs[k + 1]  # (the end of segment k)
+    nxt = np.full(n, np.nan)
+    carried = np.zeros(n, bool)
+    if act.size and gov_sup_end.any():
+        idx = act[gov_sup_end]
+        yt, flag = _transfer(_subset(seg, idx), _subset(nseg1, idx), y_end[gov_sup_end], SUPER, drop)
+        nxt[idx] = yt
+        carried[idx] = True
+    j0 = st.bounds[k + 1][0]
+    i_end = st.bounds[k][0] + st.bounds[k][1] - 1
+    sub_end = np.isnan(nxt) & (gov.regime[:, i_end] != REGIME_SUPER)
+    # critical depth at the end of segment k: a choke (the next section needs more energy)
+    # or a brink; the flow leaves it supercritical into segment k + 1
+    crit_up = sub_end & sub.c[:, i_end]
+    # critical depth at the head of a steep segment k + 1
+    crit_dn = sub_end & ~crit_up & sub.c[:, j0] & st.can_sup_start[k + 1]
+    if crit_up.any():
+        idx = np.flatnonzero(crit_up)
+        yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER, drop)
+        nxt[idx] = yt
+        carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
+    nxt = np.where(crit_dn, nseg1.yc, nxt)
+    if k + 1 in sub.gate_jet:  # the gate releases its jet whatever arrives from upstream
+        return sub.gate_jet[k + 1].copy(), np.zeros(n, bool)
+    changed = not seg.same_section(nseg1)
+    for s in np.flatnonzero(crit_up | crit_dn):
+        if crit_up[s] and st.segments[k + 1].inflow:
+            where = "inflow"  # below the inflow the discharge needs more energy
+        elif crit_up[s] and changed:
+            where = "larger section"
+        else:
+            where = "steepening"
+        st.notes[s].append(note(float(st.x[j0]), "critical control", where=where, k=k))
+    return nxt, carried
+
+
+def _note_swept_out(st: _Setup, down: _Downstream, act, gov_sup_end):
+    """Note the scenarios whose supercritical flow leaves the reach although the downstream control would
+    govern subcritical flow: the jump forms below the reach."""
+    if down.ctrl is None:
+        return
+    for r in np.flatnonzero(gov_sup_end):
+        s = act[r]
+        if down.governs[s]:
+            st.notes[s].append(note(float(st.x[-1]), "jump swept out", control=_one(down.ctrl, s)))
+
+
+def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, gov: _Governed):
+    """The notes on the governed profile: inflows, chokes, near-critical stretches, gates, and what the end
+    controls did."""
+    notes, segs, x, n = st.notes, st.segs, st.x, st.n
+    depth, regime, classes = gov.depth, gov.regime, st.classes
+    _inflow_notes(notes, st.segments, segs, st.bounds, x, regime)
+    _conveyance_ratio_notes(notes, st.segments, segs, st.bounds, x, depth)
+    _choke_notes(notes, segs, classes, st.bounds, x, depth, regime)
+    near_critical_notes(notes, segs, st.bounds, x, depth)
+    for k, jet in sub.gate_jet.items():
+        i0 = st.bounds[k][0]
+        gate = st.control(k, st.segments[k].gate)
         for s in range(n):
-            how = ("submerged by the water below it" if gate_submerged[k][s]
-                   else f"free flow, jet {jet[s]:.3f} {units.length} deep")
-            notes[s].append((float(x[i0]), "gate", f"{_one(gate, s).describe(units)} at the head of segment {k}: "
-                             f"{how}; the water upstream stands {depth[s, i0 - 1]:.3f} {units.length} deep"))
+            notes[s].append(note(float(x[i0]), "gate", k=k, control=_one(gate, s), submerged=sub.gate_submerged[k][s],
+                                 jet=jet[s], depth_up=depth[s, i0 - 1]))
+    ctrl, governs_down = down.ctrl, down.governs
     if ctrl is not None:
         for s in range(n):
             if governs_down[s] and regime[s, -1] != REGIME_SUPER:
-                notes[s].append((float(x[-1]), "downstream control", f"{_one(ctrl, s).describe(units)} governs"))
+                notes[s].append(note(float(x[-1]), "downstream control", control=_one(ctrl, s)))
             elif not governs_down[s]:
-                notes[s].append((float(x[-1]), "unused control",
-                                 f"downstream control {_one(ctrl, s).describe(units)} does not govern: the flow "
-                                 "leaving the reach is supercritical"))
-        _add_details(notes, ctrl, end_state, depth[:, -1], float(x[-1]))
-    elif reach.downstream is None:
+                notes[s].append(note(float(x[-1]), "unused control", end="downstream", control=_one(ctrl, s)))
+        _add_details(notes, ctrl, down.end_state, depth[:, -1], float(x[-1]))
+    elif st.reach.downstream is None:
         for s in range(n):
             if classes[s, -1] != "steep" and regime[s, -1] != REGIME_SUPER:
-                kind = "normal depth" if classes[s, -1] == "mild" else "critical depth"
-                notes[s].append((float(x[-1]), "downstream control",
-                                 f"no downstream control given: {kind} assumed at the downstream end"))
-    if up is not None:
-        for s in np.flatnonzero(sup_from_control):
-            notes[s].append((0.0, "upstream control", f"{_one(up, s).describe(units)} governs"))
-        _add_details(notes, up, up_state, depth[:, 0], 0.0)
-
+                assumed = "normal depth" if classes[s, -1] == "mild" else "critical depth"
+                notes[s].append(note(float(x[-1]), "downstream control", assumed=assumed))
+    if up.ctrl is not None:
+        for s in np.flatnonzero(up.from_control):
+            notes[s].append(note(0.0, "upstream control", control=_one(up.ctrl, s)))
+        _add_details(notes, up.ctrl, up.state, depth[:, 0], 0.0)
     if ctrl is not None:
-        top = last.section.max_depth
-        for s in np.flatnonzero(governs_down & (y_down > top)):
-            notes[s].append((float(x[-1]), "submerged outlet",
-                             f"the downstream water level stands {y_down[s] - top:.3f} {units.length} above the crown "
-                             "of the outlet: the grade line in the conduit at its outlet is the tailwater level "
-                             "(the velocity head is lost at the exit)"))
-    sol = BatchSolution(x=x, segment=seg_ix, bed=bed, depth=depth, regime=regime, segs=segs,
-                        slope_class=classes, notes=notes, pressure_runs=pressure_runs)
-    if jumps:
-        arr = list(zip(*jumps, strict=True))
-        sol.jump_scenario = np.array(arr[0], int)
-        sol.jump_x = np.array(arr[1], float)
-        sol.jump_y1 = np.array(arr[2], float)
-        sol.jump_y2 = np.array(arr[3], float)
-        sol.jump_segment = np.array(arr[4], int)
-        sol.jump_after = np.array(arr[5], int)
-        sol.jump_at_junction = np.array(arr[6], bool)
-        order = np.lexsort((sol.jump_x, sol.jump_scenario))
-        for name in ("jump_scenario", "jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after",
-                     "jump_at_junction"):
-            setattr(sol, name, getattr(sol, name)[order])
-        note_sloping_jumps(sol, reach)
-    return sol
+        top = segs[-1].section.max_depth
+        for s in np.flatnonzero(governs_down & (down.y_down > top)):
+            notes[s].append(note(float(x[-1]), "submerged outlet", head=down.y_down[s] - top))
+
+
+def _solution(st: _Setup, gov: _Governed) -> BatchSolution:
+    """The solution record, jumps sorted by scenario and x, with the notes on jumps on sloping floors."""
+    jumps = {}
+    notes = st.notes
+    if gov.jumps:
+        arr = list(zip(*gov.jumps, strict=True))
+        types = (int, float, float, float, int, int, bool)
+        jumps = {name: np.array(a, t) for name, a, t in zip(BatchSolution._JUMP_ROWS, arr, types, strict=True)}
+        order = np.lexsort((jumps["jump_x"], jumps["jump_scenario"]))
+        jumps = {name: a[order] for name, a in jumps.items()}
+        for s, n in note_sloping_jumps(jumps["jump_scenario"], jumps["jump_x"], jumps["jump_segment"], st.reach):
+            notes[s].append(n)
+    return BatchSolution(x=st.x, segment=st.seg_ix, bed=st.bed, depth=gov.depth, regime=gov.regime, segs=st.segs,
+                         slope_class=st.classes, notes=tuple(map(tuple, notes)),
+                         pressure_runs=tuple(map(tuple, st.pressure_runs)), **jumps)
 
 
 #: neighbouring sections whose conveyances differ by more than this factor are too far apart for the
@@ -675,14 +803,11 @@ def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
             ratio = k_up / k_dn
         far = (ratio > CONVEYANCE_RATIO_LIMIT) | (ratio < 1.0 / CONVEYANCE_RATIO_LIMIT)
         for s in np.flatnonzero(far):
-            notes[s].append((float(x[i0]), "sections far apart",
-                             f"the conveyances of the sections at x = {x[i0]:.2f} and {x[i0 + m - 1]:.2f} differ by "
-                             f"a factor {max(ratio[s], 1.0 / ratio[s]):.2f} (more than {CONVEYANCE_RATIO_LIMIT:g}): "
-                             "the sections are too far apart for the interpolation between them to be trusted; "
-                             "survey or interpolate a section between them (common practice)"))
+            notes[s].append(note(float(x[i0]), "sections far apart", x_up=float(x[i0]), x_down=float(x[i0 + m - 1]),
+                                 ratio=float(max(ratio[s], 1.0 / ratio[s])), limit=CONVEYANCE_RATIO_LIMIT))
 
 
-def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
+def _inflow_notes(notes, segments, segs, bounds, x, regime):
     """One note per scenario at every inflow: the discharges either side and the balance used across it."""
     for k in range(1, len(segments)):
         if not segments[k].inflow:
@@ -690,21 +815,17 @@ def _inflow_notes(notes, segments, segs, bounds, x, regime, units):
         i0 = bounds[k][0]
         for s in range(len(notes)):
             sup = regime[s, i0 - 1] == REGIME_SUPER and regime[s, i0] == REGIME_SUPER
-            how = ("supercritical flow: specific force (momentum) conserved across the junction" if sup else
-                   "specific energy conserved across the junction (no loss)")
-            notes[s].append((float(x[i0]), "inflow",
-                             f"{segments[k].inflow:g} {units.discharge} enters at the head of segment {k}: the "
-                             f"discharge goes from {segs[k - 1].tail.discharge[s]:g} to {segs[k].discharge[s]:g} "
-                             f"{units.discharge}; {how}"))
+            notes[s].append(note(float(x[i0]), "inflow", k=k, inflow=segments[k].inflow,
+                                 q_up=segs[k - 1].tail.discharge[s], q_down=segs[k].discharge[s], supercritical=sup))
 
 
 def _add_details(notes, ctrl, state, depth, x):
     """Append the per-scenario lines a control adds to its note (:meth:`Control.notes`)."""
     for s, lines in enumerate(ctrl.notes(state, depth)):
-        notes[s].extend((x, "control detail", text) for text in lines)
+        notes[s].extend(note(x, "control detail", text=text) for text in lines)
 
 
-def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
+def _choke_notes(notes, segs, classes, bounds, x, depth, regime):
     """Note each contraction whose critical section holds the subcritical water upstream above normal depth."""
     for k in range(len(segs) - 1):
         if segs[k].same_section(segs[k + 1]):
@@ -716,10 +837,7 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime, units):
         raised &= np.isin(classes[:, k], ("mild", "critical"))
         raised &= (regime[:, j0:j0 + m1] == REGIME_CRITICAL).any(axis=1)
         for s in np.flatnonzero(raised):
-            notes[s].append((float(x[i_end]), "choke",
-                             f"the section of segment {k + 1} passes the flow only through critical depth, which "
-                             f"holds the water upstream at {depth[s, i_end]:.3f} {units.length}, above segment {k}'s "
-                             f"normal depth {yn[s]:.3f} {units.length}"))
+            notes[s].append(note(float(x[i_end]), "choke", k=k, depth=depth[s, i_end], yn=yn[s]))
 
 
 def _jump_into_full(jump, marcher, seg, x, sub_y, runs):
@@ -791,7 +909,7 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
     y_sub1 = sub_y[s_idx, after + 1]
     xj, ys, yb = marcher.locate_jumps(_subset(seg, s_idx), y_sup0, x_lo, y_sub1, x_hi)  # one jump a scenario
     bad = ~np.isfinite(xj)
-    if np.any(bad):
+    if bad.any():
         r = int(np.flatnonzero(bad)[0])
         raise ConvergenceError(f"the jump between x = {x_lo[r]:.3f} and {x_hi[r]:.3f} could not be located to "
                                "tolerance; try more steps (n_steps)", iterations=200)
@@ -802,7 +920,4 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
         s, _, _, _, kk, aft, junc = jumps[j]
         jumps[j] = (s, float(xj[r]), float(ys[r]), float(yb[r]), kk, aft, junc)
         if off[r] > JUMP_BALANCE_TOLERANCE:
-            notes[s].append((float(xj[r]), "unbalanced jump",
-                             f"the specific forces on the two sides of the jump at x = {xj[r]:.2f} differ by "
-                             f"{off[r]:.2%}: a profile reaches critical depth next to it, so its position is "
-                             "uncertain to about a station spacing; check it with more steps (n_steps)"))
+            notes[s].append(note(float(xj[r]), "unbalanced jump", off=off[r]))

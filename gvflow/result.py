@@ -9,6 +9,7 @@ import numpy as np
 
 from ._core.codes import REGIME_NAMES
 from ._engine import core
+from ._notes import note, note_text
 from ._pieces import ProfilePiece, scenario_pieces
 from ._solver import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, BatchSolution
 from ._validate import finite_array, scalar_or_array
@@ -67,8 +68,8 @@ def _coefficients_used(reach, jumps, notes) -> list:
 
     The coefficients of the end controls that governed (an end with an "unused control" or a
     "jump swept out" note is left out), of every gate between segments, and the jump-length curve
-    and jump types when the profile holds a jump. ``notes`` are the scenario's (x, kind, text)
-    control notes.
+    and jump types when the profile holds a jump. ``notes`` are the scenario's notes, (x, kind, ...)
+    each.
     """
     from dataclasses import replace
 
@@ -106,19 +107,32 @@ def _station_discharge(sol: BatchSolution, i: int, x, seg_ix) -> np.ndarray:
     return out
 
 
+def _control_notes(reach, jumps, notes, full_notes) -> list:
+    """One scenario's notes (``notes`` from the solver, ``full_notes`` on surcharge, and one on each coefficient
+    used) as :class:`ControlNote` texts, ordered by x."""
+    used = _coefficients_used(reach, jumps, notes)
+    notes = list(notes) + full_notes + [note(x, "coefficient", record=rec) for x, rec in used]
+    units = reach.resolved_units
+    return sorted((ControlNote(float(n.x), n.kind, note_text(n, units)) for n in notes), key=lambda c: c.x)
+
+
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
     """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``,
     distance ``x``: where a segment's section changes, its section there)."""
     segs = sol.segs
     out = np.empty((7, depth.size))
-    pars = [sg.cb.par for sg in segs]
-    offsets = np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
-    zones = max(sg.cb.rough.shape[1] for sg in segs)
-    roughs = np.zeros((len(segs), zones))
-    for k, sg in enumerate(segs):
-        roughs[k, :sg.cb.rough.shape[1]] = sg.cb.rough[i]
+    if len(segs) == 1:  # (the common case, without the packing)
+        cb = segs[0].cb
+        par, offsets = cb.par, np.array([0, cb.par.size], np.int64)
+        roughs = np.ascontiguousarray(cb.rough[i:i + 1], float)
+    else:
+        pars = [sg.cb.par for sg in segs]
+        par, offsets = np.concatenate(pars), np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
+        roughs = np.zeros((len(segs), max(sg.cb.rough.shape[1] for sg in segs)))
+        for k, sg in enumerate(segs):
+            roughs[k, :sg.cb.rough.shape[1]] = sg.cb.rough[i]
     core("march", depth.size).station_quantities(
-        np.array([sg.cb.kind for sg in segs], np.int64), np.concatenate(pars), offsets,
+        np.array([sg.cb.kind for sg in segs], np.int64), par, offsets,
         np.array([sg.cb.law for sg in segs], np.int64), roughs, np.ascontiguousarray(seg_ix, np.int64),
         segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
         out)
@@ -163,17 +177,14 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
         inside = [t for t in ends[k] if xa <= t <= xb]
         t = inside[0] if inside else 0.5 * (xa + xb)
         lengths[k] += (xb - t) if full[j + 1] else (t - xa)
-    L = reach.resolved_units.length
     notes = []
     for k in np.flatnonzero(lengths > 0):
         sel = (seg == k) & full
         h = y[sel] - crown[k]
         xs = x[sel]
-        notes.append((float(xs.min()), "surcharge",
-                      f"segment {k} runs full (surcharged, pressure flow) over {lengths[k]:.2f} {L} from x = "
-                      f"{xs.min():.2f} to {xs.max():.2f} {L}: the grade line stands up to {h.max():.3f} {L} above "
-                      f"its crown (at x = {xs[np.argmax(h)]:.2f} {L}) and rises at the full-flow friction slope "
-                      f"{float(sol.segs[k].friction_slope(np.full(sol.segs[k].n, crown[k]))[i]):.6g}"))
+        notes.append(note(float(xs.min()), "surcharge", k=k, length=lengths[k], x_end=xs.max(), head=h.max(),
+                          x_head=xs[np.argmax(h)],
+                          sf_full=float(sol.segs[k].friction_slope(np.full(sol.segs[k].n, crown[k]))[i])))
     return lengths, notes
 
 
@@ -237,23 +248,58 @@ class Profile:
         self.segment = segment
         segment.setflags(write=False)
         self.jumps = jumps
-        self.pieces = pieces
-        self.profile_types = [p.label for p in pieces]
-        self.controls = controls
+        self._pieces = pieces  # a list, or a function giving it when first asked for
+        self._controls = controls  # the same
         self.normal_depths = normal_depths
         self.critical_depths = critical_depths
         self.slope_classes = slope_classes
-        crown = np.array([s.section.max_depth for s in reach.segments], dtype=float)[self.segment]
-        self.hydraulic_grade = self.stage
-        self.head_above_crown = np.where(np.isfinite(crown), self.depth - crown, np.nan)
-        self.surcharged = self.depth > crown
         self.surcharged_lengths = (np.zeros(len(reach.segments)) if surcharged_lengths is None
                                    else np.asarray(surcharged_lengths, dtype=float))
-        self.max_head_above_crown = float(np.max(self.head_above_crown, where=self.surcharged, initial=0.0))
-        for name in ("head_above_crown", "surcharged", "surcharged_lengths"):
-            getattr(self, name).setflags(write=False)
+        self.surcharged_lengths.setflags(write=False)
 
-    # the arrays that follow from the station rows, computed when first asked for (read-only, like the rows)
+    # what most callers never read is made when first asked for (read-only, like the rows)
+    @functools.cached_property
+    def pieces(self) -> list:
+        """The profile pieces with their extents and labels, upstream to downstream."""
+        return self._pieces() if callable(self._pieces) else self._pieces
+
+    @functools.cached_property
+    def profile_types(self) -> list:
+        """Labels of the profile pieces, upstream to downstream."""
+        return [p.label for p in self.pieces]
+
+    @functools.cached_property
+    def controls(self) -> list:
+        """Notes (:class:`ControlNote`) on what governs where, and on what the engineer should know."""
+        return self._controls() if callable(self._controls) else self._controls
+
+    @functools.cached_property
+    def _crown(self) -> np.ndarray:
+        return np.array([s.section.max_depth for s in self.reach.segments], dtype=float)[self.segment]
+
+    @functools.cached_property
+    def hydraulic_grade(self) -> np.ndarray:
+        """Hydraulic grade line at each station [length]: the water surface where it is free, the pressure
+        head above the invert where a conduit runs full (the same values as ``stage``)."""
+        return self.stage
+
+    @functools.cached_property
+    def head_above_crown(self) -> np.ndarray:
+        """Grade line above the crown at each station [length] (negative: the air space above a free
+        surface; NaN in open sections)."""
+        crown = self._crown
+        return _read_only(np.where(np.isfinite(crown), self.depth - crown, np.nan))
+
+    @functools.cached_property
+    def surcharged(self) -> np.ndarray:
+        """True at the stations where a closed conduit runs full."""
+        return _read_only(self.depth > self._crown)
+
+    @functools.cached_property
+    def max_head_above_crown(self) -> float:
+        """Highest head of the grade line above a crown [length] (0 without surcharge)."""
+        return float(np.max(self.head_above_crown, where=self.surcharged, initial=0.0))
+
     @functools.cached_property
     def stage(self) -> np.ndarray:
         """Water-surface elevation at each station [length]."""
@@ -306,14 +352,15 @@ class Profile:
         yn = np.array([s.yn[i] for s in sol.segs])
         yc = np.array([s.yc[i] for s in sol.segs])
         classes = [str(c) for c in sol.slope_class[i]]
-        pieces = scenario_pieces(sol, i, x, y, reg, seg, yn, yc)
+        pieces = functools.partial(scenario_pieces, sol, i, x, y, reg, seg, yn, yc)  # made when first read
         # a junction station appears twice; keep one where nothing changes across it
-        drop = np.array([s.drop for s in reach.segments])
-        keep = np.ones(x.size, bool)
         q_at = _station_discharge(sol, i, x, seg)
-        keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
-                     & (drop[seg[1:]] == 0) & (q_at[1:] == q_at[:-1]))
-        x, y, reg, seg = x[keep], y[keep], reg[keep], seg[keep]
+        if len(sol.segs) > 1:
+            drop = np.array([s.drop for s in reach.segments])
+            keep = np.ones(x.size, bool)
+            keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
+                         & (drop[seg[1:]] == 0) & (q_at[1:] == q_at[:-1]))
+            x, y, reg, seg, q_at = x[keep], y[keep], reg[keep], seg[keep], q_at[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
         k2 = sol.jump_segment[rows]
@@ -325,7 +372,7 @@ class Profile:
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
         stations[3:8] = props[2:, :x.size]  # friction slope, velocity, Froude number, velocity head, alpha
-        stations[8] = q_at[keep]
+        stations[8] = q_at
         jumps = []
         for r, j in enumerate(rows):
             y1, y2 = float(sol.jump_y1[j]), float(sol.jump_y2[j])
@@ -337,9 +384,7 @@ class Profile:
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
         full_len, full_notes = _surcharge(reach, sol, i, x, y, seg)
-        notes = list(sol.notes[i]) + full_notes
-        notes += [(x, "coefficient", rec.line()) for x, rec in _coefficients_used(reach, jumps, sol.notes[i])]
-        controls = sorted((ControlNote(float(a), b, c) for a, b, c in notes), key=lambda c: c.x)
+        controls = functools.partial(_control_notes, reach, jumps, sol.notes[i], full_notes)  # made when first read
         profile = cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
                       pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes,
                       surcharged_lengths=full_len)

@@ -21,7 +21,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "gvflow"
 LAYERS = [
     ("units and errors", ["gvflow.errors", "gvflow._warn", "gvflow._version", "gvflow.units", "gvflow._validate",
                           "gvflow._models", "gvflow._roots", "gvflow.coefficients",
-                          "gvflow._labels"]),
+                          "gvflow._labels", "gvflow._notes"]),
     ("core and engine", ["gvflow._core", "gvflow._engine"]),
     ("sections, friction and uniform flow", ["gvflow.sections", "gvflow.friction", "gvflow.uniform",
                                              "gvflow.jumps", "gvflow.survey", "gvflow.design"]),

@@ -1,0 +1,156 @@
+"""Notes on a solved profile: records made where something is found, written as text in one place (private).
+
+The solver, the near-critical and plausibility checks and the profile builder record what they find as
+a :class:`Note`: the station ``x``, the ``kind`` (the ``kind`` of the public
+:class:`gvflow.result.ControlNote`) and the values the text is made from. :func:`note_text` writes the
+text with the reach's units, one formatter per kind (:data:`FORMATTERS`), when a profile is built.
+A control's own detail lines (:meth:`gvflow.controls.Control.notes`) arrive as text already: kind
+``"control detail"`` carries them unchanged.
+"""
+
+from __future__ import annotations
+
+from typing import Any, NamedTuple
+
+
+class Note(NamedTuple):
+    """One note: where (x), what kind, and the values its text is made from."""
+
+    x: float
+    kind: str
+    values: dict[str, Any]
+
+
+def note(x, kind: str, **values) -> Note:
+    """A :class:`Note` at ``x`` of ``kind`` with ``values`` (checked against the kind's formatter when
+    the text is written)."""
+    return Note(x, kind, values)
+
+
+def note_text(n: Note, units) -> str:
+    """The text of note ``n`` in ``units`` (a :class:`gvflow.units.Units`)."""
+    return FORMATTERS[n.kind](n.x, units, **n.values)
+
+
+def _control_governs(x, u, *, control=None, assumed=None) -> str:
+    if control is None:
+        return f"no downstream control given: {assumed} assumed at the downstream end"
+    return f"{control.describe(u)} governs"
+
+
+def _unused_control(x, u, *, end, control) -> str:
+    if end == "upstream":
+        return (f"upstream control {control.describe(u)} does not govern: the flow entering the reach is "
+                "subcritical and is governed from downstream")
+    return (f"downstream control {control.describe(u)} does not govern: the flow leaving the reach is "
+            "supercritical")
+
+
+def _critical_control(x, u, *, where, k=None) -> str:
+    if where == "steep head":
+        return "critical depth at the head of a steep segment"
+    if where == "inflow":
+        return (f"critical depth at the end of segment {k}: below the inflow at the head of segment {k + 1} the "
+                "discharge needs more energy than subcritical flow above it carries")
+    if where == "larger section":
+        return (f"critical depth at the end of segment {k}, where the flow passes into the larger section of "
+                f"segment {k + 1}")
+    return "critical depth where the bed steepens (the flow passes from subcritical to supercritical)"
+
+
+def _drowned_jump(x, u) -> str:
+    return "the tailwater drowns the jump against the upstream control: submerged outflow at x = 0"
+
+
+def _unbalanced_jump(x, u, *, off) -> str:
+    return (f"the specific forces on the two sides of the jump at x = {x:.2f} differ by {off:.2%}: a profile "
+            "reaches critical depth next to it, so its position is uncertain to about a station spacing; check "
+            "it with more steps (n_steps)")
+
+
+def _jump_swept_out(x, u, *, control) -> str:
+    return (f"the downstream control ({control.describe(u)}) is too low to hold a jump: the supercritical flow "
+            "leaves the reach and the jump forms downstream of it")
+
+
+def _sloping_jump(x, u, *, k, slope, steep) -> str:
+    L = u.length
+    return (f"the jump at x = {x:.2f} {L} stands on segment {k}, bed slope {slope:g}: it was located with the "
+            "level-floor momentum balance, which leaves out the weight of the roller along the slope and so "
+            "underestimates the sequent depth needed to hold the jump there (FHWA HEC-14, 2006, ch. 6, eq. 6.7: "
+            f"the weight may be neglected only below a slope of {steep:g}); treat its location as approximate")
+
+
+def _inflow(x, u, *, k, inflow, q_up, q_down, supercritical) -> str:
+    how = ("supercritical flow: specific force (momentum) conserved across the junction" if supercritical else
+           "specific energy conserved across the junction (no loss)")
+    return (f"{inflow:g} {u.discharge} enters at the head of segment {k}: the discharge goes from {q_up:g} to "
+            f"{q_down:g} {u.discharge}; {how}")
+
+
+def _sections_far_apart(x, u, *, x_up, x_down, ratio, limit) -> str:
+    return (f"the conveyances of the sections at x = {x_up:.2f} and {x_down:.2f} differ by a factor {ratio:.2f} "
+            f"(more than {limit:g}): the sections are too far apart for the interpolation between them to be "
+            "trusted; survey or interpolate a section between them (common practice)")
+
+
+def _choke(x, u, *, k, depth, yn) -> str:
+    return (f"the section of segment {k + 1} passes the flow only through critical depth, which holds the water "
+            f"upstream at {depth:.3f} {u.length}, above segment {k}'s normal depth {yn:.3f} {u.length}")
+
+
+def _near_critical(x, u, *, k, x_end, yc, froude) -> str:
+    L, (lo, hi) = u.length, froude
+    a, b = x, x_end
+    return (f"the Froude number stays between {lo:g} and {hi:g} from x = {a:.2f} to {b:.2f} {L} in segment {k} "
+            f"({b - a:.0f} {L}, {(b - a) / yc:.0f} critical depths): near critical depth the water surface is "
+            "unstable and wavy, and small changes of roughness or discharge move it noticeably (Chow 1959, ch. 3); "
+            "allow extra freeboard, or change the slope or section to move the Froude number out of this band")
+
+
+def _gate(x, u, *, k, control, submerged, jet, depth_up) -> str:
+    how = "submerged by the water below it" if submerged else f"free flow, jet {jet:.3f} {u.length} deep"
+    return (f"{control.describe(u)} at the head of segment {k}: {how}; the water upstream stands "
+            f"{depth_up:.3f} {u.length} deep")
+
+
+def _submerged_outlet(x, u, *, head) -> str:
+    return (f"the downstream water level stands {head:.3f} {u.length} above the crown of the outlet: the grade "
+            "line in the conduit at its outlet is the tailwater level (the velocity head is lost at the exit)")
+
+
+def _surcharge(x, u, *, k, length, x_end, head, x_head, sf_full) -> str:
+    L = u.length
+    return (f"segment {k} runs full (surcharged, pressure flow) over {length:.2f} {L} from x = {x:.2f} to "
+            f"{x_end:.2f} {L}: the grade line stands up to {head:.3f} {L} above its crown (at x = {x_head:.2f} "
+            f"{L}) and rises at the full-flow friction slope {sf_full:.6g}")
+
+
+def _text(x, u, *, text) -> str:
+    return text
+
+
+def _coefficient(x, u, *, record) -> str:
+    return record.line()
+
+
+#: kind -> formatter(x, units, **values) -> text
+FORMATTERS = {
+    "upstream control": _control_governs,
+    "downstream control": _control_governs,
+    "unused control": _unused_control,
+    "critical control": _critical_control,
+    "drowned jump": _drowned_jump,
+    "unbalanced jump": _unbalanced_jump,
+    "jump swept out": _jump_swept_out,
+    "jump on a sloping floor": _sloping_jump,
+    "inflow": _inflow,
+    "sections far apart": _sections_far_apart,
+    "choke": _choke,
+    "near-critical flow": _near_critical,
+    "gate": _gate,
+    "submerged outlet": _submerged_outlet,
+    "surcharge": _surcharge,
+    "control detail": _text,
+    "coefficient": _coefficient,
+}
