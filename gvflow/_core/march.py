@@ -598,9 +598,10 @@ def step_many(cb, fl, rows, q, s0, y1, x1, x2, yc, branch, alpha, ce, avg, ymax,
 
 @kernel
 def force_or_energy(cb, fl, q, y, alpha, energy, out):
-    """Specific force (energy=False) or specific energy (energy=True) for y[s, j] at discharge q[s]."""
-    ch = scenario(cb, 0)
+    """Specific force (energy=False) or specific energy (energy=True) for y[s, j] at discharge q[s] (scenario s's
+    roughness: a surveyed section's alpha and beta depend on its zone roughness)."""
     for s in range(y.shape[0]):
+        ch = scenario(cb, s)
         qs = q[s]
         for j in range(y.shape[1]):
             yj = y[s, j]
