@@ -462,6 +462,10 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
                 critical_tolerance: float = CRITICAL_SLOPE_TOLERANCE, controls=None) -> BatchSolution:
     """Solve the reach for every scenario (``discharge`` (n,), ``coef`` (n, K) roughness values or None).
 
+    ``coef`` may also be a list of K arrays, one per segment: (n,) for a geometric section, (n, zones) for a
+    surveyed one (one coefficient per core zone, :meth:`gvflow.Surveyed.core_zone_rows`), or None to keep
+    the segment's own roughness.
+
     ``controls`` replaces controls of the reach for this batch: a dict with keys "upstream",
     "downstream" or a segment index (the gate at its head), each value a control or a set of
     per-scenario controls with the same methods (``depth_at`` and ``notes`` answer per scenario,
@@ -485,8 +489,18 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
     nseg = len(segments)
     q = np.array(positive_array(discharge, "discharge"), dtype=float, ndmin=1).ravel()
     n = q.size
-    if coef is not None:
+    cols = [None] * nseg
+    if isinstance(coef, list):
+        cols = [None if c is None else np.array(positive_array(c, "roughness"), dtype=float).reshape(n, -1)
+                for c in coef]
+        cols = [c if segments[k].roughness is None else
+                np.full(n, segments[k].roughness.kernel_spec()[1]) if c is None else c[:, 0].copy()
+                for k, c in enumerate(cols)]
+        # the one-coefficient columns for the plausibility checks (zone rows are checked by the caller)
+        coef = np.stack([c if c is not None and c.ndim == 1 else np.full(n, np.nan) for c in cols], axis=1)
+    elif coef is not None:
         coef = np.array(positive_array(coef, "roughness"), dtype=float).reshape(n, nseg)
+        cols = [coef[:, k].copy() for k in range(nseg)]
     check_reach(reach)  # refuse lengths and end depths no channel holds
     q_seg = reach.segment_discharges(q)  # (n, K): continuity at every inflow
     if (q_seg <= 0).any():
@@ -494,11 +508,11 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
     xb = reach.boundaries
-    built = [SegmentBatch._changing(s, q_seg[:, k].copy(), units, reach.alpha, None if coef is None else
-                                    coef[:, k].copy(), critical_tolerance, xb[k], xb[k + 1] - xb[k], strict=False)
+    built = [SegmentBatch._changing(s, q_seg[:, k].copy(), units, reach.alpha, cols[k], critical_tolerance, xb[k],
+                                    xb[k + 1] - xb[k], strict=False)
              if s.changes else
              SegmentBatch._checked(s.section, s.slope, s.roughness, q_seg[:, k].copy(), units, reach.alpha,
-                                   None if coef is None else coef[:, k].copy(), critical_tolerance, strict=False)
+                                   cols[k], critical_tolerance, strict=False)
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
     sf_c = [b[1] for b in built]  # friction slope at critical depth

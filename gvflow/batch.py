@@ -150,10 +150,28 @@ def _scaled_coefficients(rough, factors: np.ndarray) -> np.ndarray:
     return np.array([rough.scaled(float(f)).kernel_spec()[1] for f in factors])  # pragma: no cover
 
 
+def _own_coefficients(seg):
+    """A segment's own roughness coefficient: a float, or an array with one per roughness zone of a surveyed
+    section (each in its law: Manning's n, Chezy's C or the sand roughness ks)."""
+    if seg.roughness is not None:
+        return seg.roughness.kernel_spec()[1]
+    return np.array([r.kernel_spec()[1] for r in seg.section.roughness])
+
+
+def _roughness_objects(seg) -> list:
+    """The roughness objects of a segment: its own one, or one per roughness zone of a surveyed section."""
+    return [seg.roughness] if seg.roughness is not None else list(seg.section.roughness)
+
+
 def _scenario_inputs(reach, discharge, roughness, roughness_scale, vary=None):
-    """(discharge (n,), coef (n, K) or None, varied {name: (n,)}) from the sweep keywords, validated."""
+    """(discharge (n,), roughness per segment or None, varied {name: (n,)}) from the sweep keywords, validated.
+
+    The roughness is a list with one array per segment: (n,) for a geometric section, (n, zones) for a
+    surveyed one (one column per roughness zone, in the order of its ``roughness``).
+    """
     segs = reach.segments
     nseg = len(segs)
+    surveyed = [k for k, s in enumerate(segs) if s.roughness is None]
     given = {}
     if discharge is not None:
         q = positive_array(discharge, "discharge")
@@ -162,10 +180,13 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale, vary=None):
         given["discharge"] = q
     if roughness is not None and roughness_scale is not None:
         raise InvalidInputError("give either roughness (coefficients) or roughness_scale (factors), not both")
-    if (roughness is not None or roughness_scale is not None) and any(s.roughness is None for s in segs):
-        raise InvalidInputError("roughness sweeps take segments with one roughness each; a Surveyed section's zone "
-                                "roughness is swept by sweeping reaches built with scaled sections "
-                                "(gv.solve_many) for now")
+    if roughness is not None and surveyed:
+        k = surveyed[0]
+        raise InvalidInputError(
+            f"roughness= gives one coefficient per segment, but segment {k} is a Surveyed section with a roughness "
+            f"per zone: scale every zone with roughness_scale=, or give the coefficients by name in vary= "
+            f"('segments.{k}.roughness.0' for its first zone, 'segments.K.roughness' for a geometric segment; "
+            "gvflow.batch.vary_choices lists them)")
     if roughness is not None:
         c = positive_array(roughness, "roughness")
         if c.ndim > 2 or (c.ndim == 2 and c.shape[1] != nseg):
@@ -181,10 +202,18 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale, vary=None):
         given["roughness"] = c
     if roughness_scale is not None:
         f = positive_array(roughness_scale, "roughness_scale")
-        if f.ndim > 1:
-            raise InvalidInputError(f"roughness_scale must be a number or a 1-D array; got shape {f.shape}")
+        if f.ndim > 2 or (f.ndim == 2 and f.shape[1] != nseg):
+            raise InvalidInputError(
+                f"roughness_scale must be a number, a 1-D array (one factor per scenario) or an (n, {nseg}) array "
+                f"(per scenario and segment); got shape {f.shape}")
         given["roughness_scale"] = f
     varied = _parse_vary(reach, vary)
+    choices = vary_choices(reach)
+    named = {name: choices[name][1] for name in varied if choices[name][0] == "roughness"}
+    if named and (roughness is not None or roughness_scale is not None):
+        raise InvalidInputError(
+            f"vary[{next(iter(named))!r}] sets a roughness coefficient by name: give roughness coefficients either "
+            "by name in vary= or with roughness= / roughness_scale=, not both")
     given.update(varied)
     if not given:
         raise InvalidInputError("nothing to sweep: give discharge=, roughness=, roughness_scale= or vary= as an "
@@ -203,18 +232,60 @@ def _scenario_inputs(reach, discharge, roughness, roughness_scale, vary=None):
     coef = None
     if "roughness" in given:
         c = given["roughness"]
-        coef = np.broadcast_to(c.reshape(-1, 1) if c.ndim < 2 else c, (n, nseg)).astype(float)
+        c = np.broadcast_to(c.reshape(-1, 1) if c.ndim < 2 else c, (n, nseg)).astype(float)
+        coef = [c[:, k].copy() for k in range(nseg)]
     elif "roughness_scale" in given:
-        f = np.broadcast_to(given["roughness_scale"], (n,)).astype(float)
-        coef = np.stack([_scaled_coefficients(s.roughness, f) for s in segs], axis=1)
-    if coef is not None:
+        f = given["roughness_scale"]
+        f = np.broadcast_to(f.reshape(-1, 1) if f.ndim < 2 else f, (n, nseg)).astype(float)
+        coef = []
         for k, s in enumerate(segs):
-            if s.roughness.law == "manning":
-                check_manning_n(coef[:, k], f"Manning's n of segment {k}")
+            cols = [_scaled_coefficients(r, f[:, k]) for r in _roughness_objects(s)]
+            coef.append(cols[0] if s.roughness is not None else np.stack(cols, axis=1))
+    elif named:
+        coef = [np.array(np.broadcast_to(_own_coefficients(s), (n,) + np.shape(_own_coefficients(s))))
+                for s in segs]
+        for name, (k, z) in named.items():
+            v = positive_array(varied[name], f"vary[{name!r}]")
+            if segs[k].roughness is None:
+                coef[k][:, z] = v
+            else:
+                coef[k][:] = v
+    if coef is not None:
+        check_coefficients(reach, coef)
     varied = {name: np.broadcast_to(v, (n,)).astype(float) for name, v in varied.items()}
     for v in varied.values():
         v.setflags(write=False)
-    return np.ascontiguousarray(q), None if coef is None else np.ascontiguousarray(coef), varied
+    return np.ascontiguousarray(q), coef, varied
+
+
+def check_coefficients(reach, coef) -> None:
+    """Refuse Manning's n no surface has, in a roughness list of :func:`_scenario_inputs`."""
+    for k, (s, c) in enumerate(zip(reach.segments, coef, strict=True)):
+        if _roughness_objects(s)[0].law == "manning":
+            check_manning_n(c, f"Manning's n of segment {k}" + (" (zone roughness)" if c.ndim > 1 else ""))
+
+
+def _core_coefficients(reach, coef):
+    """The solver's roughness per segment: a surveyed section's roughness zones as its core zones."""
+    return [c if s.roughness is not None else s.section.core_zone_rows(c)
+            for s, c in zip(reach.segments, coef, strict=True)]
+
+
+def roughness_table(reach, coef, n: int) -> np.ndarray:
+    """The roughness of every scenario as one array: (n, K) for a reach of geometric sections, (n, K, Z) when a
+    segment is surveyed (Z its most roughness zones; a geometric segment's coefficient in zone 0, NaN past a
+    segment's zones). ``coef`` is a roughness list of :func:`_scenario_inputs`, or None for the reach's own."""
+    segs = reach.segments
+    if coef is None:
+        coef = [np.broadcast_to(_own_coefficients(s), (n,) + np.shape(_own_coefficients(s))) for s in segs]
+    if all(s.roughness is not None for s in segs):
+        return np.stack([np.asarray(c, float) for c in coef], axis=1)
+    zones = max(len(_roughness_objects(s)) for s in segs)
+    out = np.full((n, len(segs), zones), np.nan)
+    for k, c in enumerate(coef):
+        c = np.asarray(c, float).reshape(n, -1)
+        out[:, k, :c.shape[1]] = c
+    return out
 
 
 # -- inputs other than discharge and roughness (``vary``) ------------------------------------------
@@ -246,9 +317,12 @@ def vary_choices(reach) -> dict[str, tuple]:
     """The names ``vary`` accepts for this reach, each with its target (location, field path).
 
     Locations: ``"upstream"``, ``"downstream"``, a segment index k (the gate at the head of
-    segment k) and ``"slope"`` (field path: the segment index). A control with a main value
+    segment k), ``"slope"`` (field path: the segment index) and ``"roughness"`` (field path:
+    (segment index, zone index), zone 0 for a geometric section). A control with a main value
     (``FixedDepth.depth``, ``FixedStage.elevation``, ``SluiceGate.opening``, ``Pool.level``) is
-    also named by its location alone.
+    also named by its location alone. Roughness: ``"segments.K.roughness"`` is the coefficient of
+    a geometric segment, ``"segments.K.roughness.Z"`` that of zone Z of a surveyed section (its
+    ``roughness[Z]``, zones counted from the left from 0).
 
     Examples
     --------
@@ -257,7 +331,7 @@ def vary_choices(reach) -> dict[str, tuple]:
     >>> reach = gv.Reach(segments=[gv.Segment(length=500.0, slope=0.001, section=gv.Rectangular(width=3.0),
     ...                                       roughness=0.015)], discharge=5.0, downstream=gv.FixedStage(2.0))
     >>> list(vary_choices(reach))
-    ['downstream', 'downstream.elevation', 'segments.0.slope']
+    ['downstream', 'downstream.elevation', 'segments.0.slope', 'segments.0.roughness']
     """
     out: dict[str, tuple] = {}
 
@@ -274,6 +348,11 @@ def vary_choices(reach) -> dict[str, tuple]:
         control("downstream", "downstream", reach.downstream)
     for k, seg in enumerate(reach.segments):
         out[f"segments.{k}.slope"] = ("slope", k)
+        if seg.roughness is not None:
+            out[f"segments.{k}.roughness"] = ("roughness", (k, 0))
+        else:
+            for z in range(len(seg.section.roughness)):
+                out[f"segments.{k}.roughness.{z}"] = ("roughness", (k, z))
         if seg.gate is not None:
             control(f"segments.{k}.gate", k, seg.gate)
     return out
@@ -306,7 +385,8 @@ def _parse_vary(reach, vary) -> dict[str, np.ndarray]:
                 f"vary: unknown parameter {name!r} for this reach; valid choices are: {', '.join(choices)}. "
                 "A control's level is named by its end ('downstream', 'upstream' or 'segments.K.gate'), another "
                 "of its numbers by the end and the field ('downstream.crest_height'), a bed slope by "
-                "'segments.K.slope'")
+                "'segments.K.slope', a roughness coefficient by 'segments.K.roughness' (zone Z of a surveyed "
+                "section: 'segments.K.roughness.Z')")
         target = choices[name]
         if target in seen:
             raise InvalidInputError(f"vary: {name!r} and {seen[target]!r} name the same parameter; give it once")
@@ -386,7 +466,7 @@ class _Scenarios:
         by_loc: dict = {}
         for name in varied:
             loc, path = choices[name]
-            if loc != "slope":
+            if loc not in ("slope", "roughness"):  # roughness travels to the solver as coefficients
                 by_loc.setdefault(loc, []).append((name, path))
         # groups of equal slopes
         if slopes:
@@ -490,10 +570,14 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
         Roughness coefficient of each scenario (and segment, for an (n, K)
         array), in each segment's own law: Manning's n, Chezy's C or the sand
         roughness ks [length]. A 1-D array needs every segment to use the
-        same law.
-    roughness_scale : array_like, shape (n,), optional
-        Factor multiplying every segment's resistance, with the semantics of
-        the roughness objects' ``scaled``: Manning n·f, Chezy C/f, ks·f.
+        same law. Not for a reach with :class:`~gvflow.Surveyed` sections,
+        whose zones each have a coefficient: give those by name in ``vary``
+        (``"segments.K.roughness.Z"``) or scale them with ``roughness_scale``.
+    roughness_scale : array_like, shape (n,) or (n, K), optional
+        Factor multiplying the resistance of every segment (and every zone of
+        a surveyed section), one per scenario, or per scenario and segment
+        for an (n, K) array, with the semantics of the roughness objects'
+        ``scaled``: Manning n·f, Chezy C/f, ks·f.
     vary : dict of str to array_like, shape (n,), optional
         Other inputs of the reach, each named by its field path in the reach
         and given one value per scenario, in the field's own unit:
@@ -510,6 +594,12 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
         * ``"segments.K.gate"``, ``"segments.K.gate.FIELD"``: the gate at
           the head of segment K.
         * ``"segments.K.slope"``: the bed slope of segment K [-].
+        * ``"segments.K.roughness"``: the roughness coefficient of segment K
+          (a geometric section), in its law; ``"segments.K.roughness.Z"``:
+          that of zone Z of segment K's :class:`~gvflow.Surveyed` section
+          (its ``roughness[Z]``, zones counted from the left from 0; a zone
+          not named keeps its value). Not together with ``roughness`` or
+          ``roughness_scale``.
 
         :func:`vary_choices` lists the names a reach accepts. Each distinct
         control is built and checked as if given to the reach (a bad value
@@ -548,8 +638,9 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
     InvalidInputError
         Nothing to sweep, arrays of mismatched lengths, non-positive or
         non-finite values, a 1-D roughness array on segments with
-        different friction laws, or a name in ``vary`` this reach does not
-        have (the message lists the valid ones).
+        different friction laws, ``roughness`` on a reach with surveyed
+        sections, roughness given both by name and by keyword, or a name in
+        ``vary`` this reach does not have (the message lists the valid ones).
 
     Examples
     --------
@@ -572,10 +663,29 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
     >>> crest = weir.sweep(vary={"downstream.crest_height": [1.2, 1.5]})
     >>> crest.depth_at(500.0).round(4).tolist()
     [2.0917, 2.4019]
+
+    A compound channel surveyed as ground points, its floodplain zones' roughness swept:
+
+    >>> section = gv.Surveyed(offset=[0, 0, 30, 31, 39, 40, 70, 70], elevation=[3, 2, 1.5, 0, 0, 1.5, 2, 3],
+    ...                       roughness=[0.05, 0.03, 0.05], zone_edges=[30, 40])
+    >>> river = gv.Reach(segments=[gv.Segment(length=400.0, slope=0.001, section=section)], discharge=30.0,
+    ...                  downstream=gv.FixedDepth(2.2))
+    >>> plain = river.sweep(vary={"segments.0.roughness.0": [0.04, 0.08], "segments.0.roughness.2": [0.04, 0.08]})
+    >>> plain.roughness.shape  # (scenarios, segments, zones)
+    (2, 1, 3)
+    >>> plain.scenario_reach(1).segments[0].section.roughness
+    [Manning(n=0.08), Manning(n=0.03), Manning(n=0.08)]
     """
     marcher = get_marcher(method, **options)
     n_steps, max_step = _check_steps(n_steps, max_step)
     q, coef, varied = _scenario_inputs(reach, discharge, roughness, roughness_scale, vary)
+    return _solve_scenarios(reach, marcher, q, coef, varied, n_steps, max_step, critical_tolerance, progress,
+                            chunk_size, method)
+
+
+def _solve_scenarios(reach, marcher, q, coef, varied, n_steps, max_step, critical_tolerance, progress, chunk_size,
+                     method) -> SweepResult:
+    """:func:`sweep` of validated inputs (those of :func:`_scenario_inputs`)."""
     n = q.size
     plan = _Scenarios(reach, varied, n)
     show = progress_wanted(progress)
@@ -586,6 +696,7 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
             raise InvalidInputError(f"chunk_size must be a positive integer; got {chunk_size!r}")
         chunk = int(chunk_size)
     bar = _bar(progress, n, "sweep", "scenario") if n > chunk or len(plan.groups) > 1 else _NoBar()
+    core_coef = None if coef is None else _core_coefficients(reach, coef)
     sols = []
     try:
         for reach_g, idx in plan.groups:
@@ -593,18 +704,14 @@ def sweep(reach, discharge=None, *, roughness=None, roughness_scale=None, vary=N
             for start in range(0, idx.size, chunk):
                 sub = idx[start:start + chunk]
                 with arithmetic_guard():
-                    parts.append(solve_batch(reach_g, marcher, q[sub], None if coef is None else coef[sub], n_steps,
+                    parts.append(solve_batch(reach_g, marcher, q[sub],
+                                             None if core_coef is None else [c[sub] for c in core_coef], n_steps,
                                              max_step, critical_tolerance, controls=plan.controls_for(sub)))
                 bar.update(sub.size)
             sols.append(BatchSolution.concatenate(parts))
     finally:
         bar.close()
-    if coef is None:
-        coef = np.empty((n, len(reach.segments)))
-        for (_, idx), sol in zip(plan.groups, sols, strict=True):
-            # (a surveyed section's roughness per zone stays with the section: NaN here)
-            coef[idx] = np.stack([s.coef if s.coef.ndim == 1 else np.full(s.n, np.nan) for s in sol.segs], axis=1)
-    return SweepResult(reach, sols if len(sols) > 1 else sols[0], q, coef,
+    return SweepResult(reach, sols if len(sols) > 1 else sols[0], q, roughness_table(reach, coef, n),
                        method=getattr(marcher, "name", str(method)), scenarios=plan)
 
 
@@ -666,9 +773,12 @@ class SweepResult:
         Marcher name.
     discharge : ndarray, shape (n,)
         Discharge of each scenario [length³/s].
-    roughness : ndarray, shape (n, K)
+    roughness : ndarray, shape (n, K), or (n, K, Z) when a segment is surveyed
         Roughness coefficient of each scenario and segment, in the segment's
-        law (Manning n, Chezy C or sand roughness ks).
+        law (Manning n, Chezy C or sand roughness ks). With a
+        :class:`~gvflow.Surveyed` section in the reach, ``roughness[i, k, z]``
+        is the coefficient of zone z of segment k (Z the most zones of any
+        segment; a geometric segment's in zone 0, NaN past a segment's zones).
     varied : dict of str to ndarray, shape (n,)
         The inputs given in ``vary``, by name, one value per scenario.
     x : ndarray, shape (M,)
@@ -766,7 +876,8 @@ class SweepResult:
         ``bed`` and ``segment`` (per station; x repeats at a segment junction,
         so select stations by ``station``, or by ``x`` after dropping
         duplicates). Variables ``depth``, ``stage``, ``velocity``, ``froude``,
-        ``regime`` (scenario, station), ``roughness``, ``normal_depth``,
+        ``regime`` (scenario, station), ``roughness`` (scenario, segment_index,
+        and ``zone`` when a segment is surveyed), ``normal_depth``,
         ``critical_depth`` (scenario, segment_index) and ``jump_count``,
         ``first_jump_x`` (scenario); each input given in ``vary`` is a
         coordinate along ``scenario`` under its name (``bed`` is on
@@ -784,7 +895,7 @@ class SweepResult:
                 "froude": (station["dims"], np.asarray(self.froude), {"units": "1"}),
                 "regime": (station["dims"], np.asarray(self.regime),
                            {"meaning": "+1 subcritical, 0 critical, -1 supercritical"}),
-                "roughness": (per_seg, np.asarray(self.roughness)),
+                "roughness": (per_seg + (("zone",) if self.roughness.ndim == 3 else ()), np.asarray(self.roughness)),
                 "normal_depth": (per_seg, np.asarray(self.normal_depths), {"units": L}),
                 "critical_depth": (per_seg, np.asarray(self.critical_depths), {"units": L}),
                 "jump_count": ("scenario", np.asarray(self.jump_count)),
@@ -930,8 +1041,21 @@ class SweepResult:
         the inputs given in ``vary``."""
         i = self._index(i)
         base = self._plan.reach_of(i)
-        segs = [s if s.roughness is None else s.model_copy(update={"roughness": type(s.roughness)(
-                float(self.roughness[i, k]))}) for k, s in enumerate(base.segments)]
+        row = self.roughness[i]
+        segs = []
+        for k, s in enumerate(base.segments):
+            if s.roughness is not None:
+                segs.append(s.model_copy(update={"roughness": type(s.roughness)(float(row[k] if row.ndim == 1
+                                                                                      else row[k, 0]))}))
+            else:
+                zones = len(s.section.roughness)
+                update = {"section": s.section.with_roughness(row[k, :zones])}
+                down = s.section_downstream
+                if down is not None:  # the downstream end keeps its zones' ratios to the head's
+                    ratio = np.array([r.kernel_spec()[1] for r in down.roughness]) / np.array(
+                        [r.kernel_spec()[1] for r in s.section.roughness])
+                    update["section_downstream"] = down.with_roughness(row[k, :zones] * ratio)
+                segs.append(s.model_copy(update=update))
         return base.model_copy(update={"discharge": float(self.discharge[i]), "segments": segs})
 
     def _index(self, i) -> int:

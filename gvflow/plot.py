@@ -456,6 +456,8 @@ def _vary_name(name: str, reach) -> str:
         k, _, what = rest.partition(".")
         seg = reach.segments[int(k)]
         label = seg.name or f"segment {k}"
+        if what.startswith("roughness."):  # a zone of a surveyed section
+            return f"roughness of zone {what.partition('.')[2]} of {label}"
         return {"slope": f"bed slope of {label}"}.get(what, f"{what.replace('.', ' ')} of {label}")
     return name
 

@@ -427,6 +427,7 @@ class Surveyed(Section):
 
     _packed: _Packed = PrivateAttr()
     _zone_roughness: tuple = PrivateAttr()
+    _zone_of: tuple = PrivateAttr()
 
     @field_validator("roughness", mode="before")
     @classmethod
@@ -477,13 +478,15 @@ class Surveyed(Section):
         # core zones: the roughness zones, divided further at the bounds of ineffective areas
         cuts = sorted({*edges, *(v for a in self.ineffective for v in (a.left, a.right) if x[0] < v < x[-1])})
         bounds = [x[0], *cuts, x[-1]]
-        rough, active = [], []
+        rough, active, zone_of = [], [], []
         for lo, hi in zip(bounds[:-1], bounds[1:], strict=True):
             mid = 0.5 * (lo + hi)
-            rough.append(self.roughness[int(np.searchsorted(edges, mid))])
+            zone_of.append(int(np.searchsorted(edges, mid)))
+            rough.append(self.roughness[zone_of[-1]])
             levels = [a.elevation - min(z) for a in self.ineffective if a.left <= mid <= a.right]
             active.append(max([0.0, *levels]))
         self._zone_roughness = tuple(rough)
+        self._zone_of = tuple(zone_of)
         self._packed = _Packed(pack_surveyed(x, z, cuts, active))
 
     @property
@@ -505,6 +508,22 @@ class Surveyed(Section):
     def core_roughness(self) -> tuple[int, list[float]]:
         """(law code, roughness value of each zone) for the physics core."""
         return self._zone_roughness[0].kernel_spec()[0], [r.kernel_spec()[1] for r in self._zone_roughness]
+
+    def core_zone_rows(self, rows) -> np.ndarray:
+        """Roughness rows per roughness zone, shape (n, len(roughness)), as rows per core zone (n, zone_count).
+
+        The core divides the roughness zones further at the bounds of ineffective areas; each of those
+        zones takes the coefficient of the roughness zone it lies in.
+        """
+        return np.ascontiguousarray(np.asarray(rows, dtype=float)[:, list(self._zone_of)])
+
+    def with_roughness(self, values) -> Surveyed:
+        """The same section with zone roughness ``values`` (one coefficient per roughness zone, in the
+        section's law: Manning's n or Chezy's C)."""
+        law = type(self.roughness[0])
+        data = {name: getattr(self, name) for name in type(self).model_fields}
+        data["roughness"] = [law(float(v)) for v in values]
+        return type(self)(**data)
 
     def core_params(self):
         return SURVEYED, self._packed.array

@@ -19,8 +19,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._validate import finite_array, finite_float
-from .batch import SweepResult, _parse_vary, sweep
+from .batch import SweepResult, _own_coefficients, _parse_vary, _scenario_inputs, _solve_scenarios, check_coefficients
 from .errors import InvalidInputError
+from .profiles import get_marcher
+from .reach import _check_steps
 from .uniform import CRITICAL_SLOPE_TOLERANCE
 
 __all__ = ["Uncertain", "monte_carlo", "MonteCarloResult", "triangular_quantile"]
@@ -145,10 +147,14 @@ def _roughness_specs(reach, roughness):
     segs = reach.segments
     if roughness is None:
         return None
-    if any(s.roughness is None for s in segs):
-        raise InvalidInputError("an uncertain roughness takes segments with one roughness each; a Surveyed "
-                                "section's zone roughness cannot be sampled yet")
+    surveyed = [k for k, s in enumerate(segs) if s.roughness is None]
     if isinstance(roughness, Uncertain):
+        if surveyed:
+            k = surveyed[0]
+            raise InvalidInputError(
+                f"segment {k} is a Surveyed section with a roughness per zone, so one range for every segment is "
+                f"ambiguous: sample its zones by name, vary={{'segments.{k}.roughness.0': gv.Uncertain(...), ...}}, "
+                f"and give roughness as a list of {len(segs)} (None for a surveyed segment)")
         laws = {s.roughness.law for s in segs}
         if len(laws) > 1:
             raise InvalidInputError(
@@ -162,6 +168,10 @@ def _roughness_specs(reach, roughness):
     for k, s in enumerate(specs):
         if s is not None and not isinstance(s, Uncertain):
             raise InvalidInputError(f"roughness[{k}] must be a gv.Uncertain or None; got {s!r}")
+        if s is not None and k in surveyed:
+            raise InvalidInputError(f"roughness[{k}]: segment {k} is a Surveyed section with a roughness per zone; "
+                                    f"give None here and sample its zones by name in vary "
+                                    f"('segments.{k}.roughness.0', ...)")
     return specs
 
 
@@ -181,7 +191,9 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, v
         Range of each segment's roughness coefficient, in the segment's
         law (Manning's n, Chezy's C or sand roughness ks [length]). One
         ``Uncertain`` applies to every segment (they must share a law); in a
-        list, None keeps that segment's roughness fixed.
+        list, None keeps that segment's roughness fixed. A segment with a
+        :class:`~gvflow.Surveyed` section takes None here: its zones are
+        sampled by name in ``vary``.
     discharge : Uncertain, optional
         Range of the discharge [length³/s].
     vary : dict of str to Uncertain, optional
@@ -189,8 +201,10 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, v
         :func:`gvflow.batch.sweep`: ``"downstream"`` (the downstream
         control's level or depth: a tailwater), ``"upstream"``,
         ``"downstream.crest_height"``, ``"segments.K.gate.opening"``,
-        ``"segments.K.slope"``... in the unit of each. Drawn independently
-        of each other and of the roughness. Control numbers stay in the
+        ``"segments.K.slope"``, ``"segments.K.roughness.Z"`` (zone Z of a
+        surveyed section, in its law)... in the unit of each. Drawn
+        independently of each other and of the roughness (``correlated``
+        concerns ``roughness`` only). Control numbers stay in the
         vectorised batch; a sampled slope makes every sample a solve of its
         own (much slower).
     seed : int, numpy.random.Generator or None
@@ -256,24 +270,31 @@ def monte_carlo(reach, samples: int = 1000, *, roughness=None, discharge=None, v
         if discharge.minimum <= 0:
             raise InvalidInputError(f"the discharge range must be positive; got minimum {discharge.minimum:g}")
         q = discharge.quantile(rng.random(n))
-    coef = None
+    sampled = {}
     if specs is not None and any(s is not None for s in specs):
         k = len(specs)
         u = np.repeat(rng.random((n, 1)), k, axis=1) if correlated else rng.random((n, k))
-        coef = np.empty((n, k))
-        for j, (s, seg) in enumerate(zip(specs, reach.segments, strict=True)):
-            if s is None:
-                coef[:, j] = seg.roughness.kernel_spec()[1]
-            else:
+        for j, s in enumerate(specs):
+            if s is not None:
                 if s.minimum <= 0:
                     raise InvalidInputError(f"roughness range of segment {j} must be positive; got minimum "
                                             f"{s.minimum:g}")
-                coef[:, j] = s.quantile(u[:, j])
+                sampled[j] = s.quantile(u[:, j])
     if q is None:
         q = np.full(n, reach.discharge)
     drawn = {name: spec.quantile(rng.random(n)) for name, spec in vary_specs.items()}
-    result = sweep(reach, q, roughness=coef, vary=drawn or None, method=method, n_steps=n_steps, max_step=max_step,
-                   critical_tolerance=critical_tolerance, progress=progress, chunk_size=chunk_size, **options)
+    marcher = get_marcher(method, **options)
+    n_steps, max_step = _check_steps(n_steps, max_step)
+    q, coef, varied = _scenario_inputs(reach, q, None, None, drawn or None)  # zones named in vary: in coef
+    if sampled:
+        if coef is None:
+            coef = [np.array(np.broadcast_to(_own_coefficients(s), (n,) + np.shape(_own_coefficients(s))))
+                    for s in reach.segments]
+        for j, values in sampled.items():
+            coef[j] = np.asarray(values, dtype=float)
+        check_coefficients(reach, coef)
+    result = _solve_scenarios(reach, marcher, q, coef, varied, n_steps, max_step, critical_tolerance, progress,
+                              chunk_size, method)
     return MonteCarloResult(result, pct, roughness_ranges=specs, discharge_range=discharge, correlated=correlated,
                             vary_ranges=vary_specs)
 
@@ -300,8 +321,9 @@ class MonteCarloResult:
         Every scenario: ``sweep[i]`` is the Profile of sample i.
     discharge : ndarray, shape (n,)
         Sampled discharges [length³/s].
-    roughness : ndarray, shape (n, K)
-        Sampled roughness coefficients per segment, in each segment's law.
+    roughness : ndarray, shape (n, K), or (n, K, Z) when a segment is surveyed
+        Roughness coefficients of every sample per segment (and zone), in
+        each segment's law (as :attr:`gvflow.batch.SweepResult.roughness`).
     varied : dict of str to ndarray, shape (n,)
         Sampled values of the inputs given in ``vary``, by name.
     vary_ranges : dict of str to Uncertain

@@ -214,3 +214,21 @@ def test_ivp_through_a_contracting_chute_leaves_critical_depth_and_agrees():
     a, b = chute.solve(n_steps=60), chute.solve(method="ivp", n_steps=60)
     assert list(b.regime[1:]) == ["supercritical"] * (b.x.size - 1)
     np.testing.assert_allclose(b.depth, a.depth, rtol=2e-4)
+
+
+def test_roughness_sweep_through_surveyed_sections_scales_both_ends():
+    # zone roughness differs between the sections; a roughness_scale sweep scales each end's own zones
+    def section(width, z0, n_main):
+        return gv.Surveyed(offset=[0, 20, 20, 20 + width, 20 + width, 40 + width],
+                           elevation=[z0 + 3, z0 + 2, z0, z0, z0 + 2, z0 + 3],
+                           roughness=[0.05, n_main, 0.05], zone_edges=[20, 20 + width])
+
+    secs = [section(8.0, 10.2, 0.03), section(7.0, 10.1, 0.035), section(6.5, 10.0, 0.04)]
+    reach = gv.Reach.from_sections(stations=[0, 100, 200], sections=secs, discharge=20.0,
+                                   downstream=gv.FixedDepth(2.5))
+    res = reach.sweep(roughness_scale=[0.9, 1.0, 1.1], n_steps=20)
+    for i, f in enumerate([0.9, 1.0, 1.1]):
+        alone = res.scenario_reach(i)
+        assert alone.segments[1].section_downstream.roughness[1].n == pytest.approx(0.04 * f)
+        np.testing.assert_array_equal(res[i].depth, alone.solve(n_steps=20).depth)
+    np.testing.assert_array_equal(res[1].depth, reach.solve(n_steps=20).depth)

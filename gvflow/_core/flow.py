@@ -29,7 +29,8 @@ import numpy as np
 from ._jit import kernel
 from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
-from .resistance import conveyance, dlnsf_dy, froude_squared, velocity_coefficients
+from .records import Channel
+from .resistance import conveyance, dlnsf_dy, froude_squared, hydraulics, velocity_coefficients
 
 _RTOL = 1e-14
 
@@ -37,6 +38,9 @@ _RTOL = 1e-14
 @kernel
 def velocity_head(ch, fl, q, y, alpha):
     """alpha(y) V²/(2g) = alpha(y) Q²/(2 g A²) [length]."""
+    if ch.kind == SURVEYED:  # area and alpha from one pass over the zones
+        h = hydraulics(ch, fl, 1.0, y, alpha)
+        return h[5] * (q / h[0]) * (q / h[0]) / (2.0 * fl.g)
     a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
     al, be = velocity_coefficients(ch, fl, y, alpha)
     return al * (q / a) * (q / a) / (2.0 * fl.g)
@@ -52,6 +56,9 @@ def specific_energy(ch, fl, q, y, alpha):
 def specific_force(ch, fl, q, y, alpha):
     """M = beta(y) Q²/(g A) + A ybar [length³]; above a closed conduit's crown the full area under the
     pressure head y (module notes)."""
+    if ch.kind == SURVEYED:  # area, first moment and beta from one pass over the zones (an open section)
+        h = hydraulics(ch, fl, 1.0, y, alpha)
+        return h[6] * q * q / (fl.g * h[0]) + h[2]
     a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
     al, be = velocity_coefficients(ch, fl, y, alpha)
     top = max_depth(ch.kind, ch.par)
@@ -164,26 +171,21 @@ def _polish(ch, fl, q, alpha, lo, hi):
 
 
 @kernel
-def critical_depths(ch, fl, q, alpha, out):
-    """Every depth where the specific energy has a local minimum, ascending; returns (count, status).
-
-    Scans dE/dy on a grid that contains every breakpoint elevation and a hair on
-    either side of it (dE/dy jumps where the top width jumps), brackets each change
-    of sign from negative to positive and polishes it; a minimum at a kink (a
-    breakpoint where dE/dy jumps from negative to positive) is returned at the
-    breakpoint. ``out`` receives the depths. A section with one minimum gives one.
-    """
-    if ch.kind != SURVEYED:
-        y, status = critical_depth_single(ch, fl, q, alpha)
-        out[0] = y
-        return 1, status
+def _scan_top(ch, fl, q, alpha):
+    """Upper end of the scan of :func:`critical_depths`: a subcritical depth, at least twice the highest
+    breakpoint (infinite where the flow is nowhere subcritical)."""
     top = _subcritical_depth(ch, fl, q, alpha)
     if not top < math.inf:
-        return 0, NO_ROOT
+        return math.inf
     bps = breakpoint_depths(ch.kind, ch.par)
-    top = max(top, 2.0 * bps[-1]) if bps.size > 0 else top
-    # grid: geometric below the first breakpoint, then every breakpoint with a hair either side and
-    # 16 points between neighbours
+    return max(top, 2.0 * bps[-1]) if bps.size > 0 else top
+
+
+@kernel
+def _scan_grid(ch, top):
+    """The depths at which :func:`critical_depths` evaluates dE/dy: geometric below the first breakpoint, then
+    every breakpoint with a hair either side and 16 points between neighbours, up to ``top``."""
+    bps = breakpoint_depths(ch.kind, ch.par)
     grid = np.empty(64 + 19 * (bps.size + 1))
     k = 0
     first = bps[0] if bps.size > 0 else top
@@ -202,12 +204,28 @@ def critical_depths(ch, fl, q, alpha, out):
             k += 2
         prev = nxt
     grid[k] = top
-    k += 1
+    return grid[:k + 1]
+
+
+@kernel
+def _scan_froude(ch, fl, q, alpha, grid):
+    """The squared Froude number (1 - dE/dy) at every depth of the scan grid."""
+    fr2 = np.empty(grid.size)
+    for i in range(grid.size):
+        fr2[i] = froude_squared(ch, fl, q, grid[i], alpha)
+    return fr2
+
+
+@kernel
+def _scan_minima(ch, fl, q, alpha, grid, fr2, scale, out):
+    """Polish every change of sign of dE/dy = 1 - scale fr2 from negative to positive on the grid; (count,
+    status) as :func:`critical_depths`. ``scale`` carries a scan made at another discharge (module notes of
+    :func:`critical_depth_batch`); 1 for the scan at q itself."""
     count = 0
     status = SOLVED
-    f_prev = _dedy(ch, fl, q, grid[0], alpha)
-    for i in range(1, k):
-        f_i = _dedy(ch, fl, q, grid[i], alpha)
+    f_prev = 1.0 - fr2[0] * scale
+    for i in range(1, grid.size):
+        f_i = 1.0 - fr2[i] * scale
         if f_prev < 0.0 and f_i >= 0.0:
             y, st = _polish(ch, fl, q, alpha, grid[i - 1], grid[i])
             if st != SOLVED:
@@ -219,6 +237,27 @@ def critical_depths(ch, fl, q, alpha, out):
     if count == 0:
         return 0, NOT_CONVERGED
     return count, status
+
+
+@kernel
+def critical_depths(ch, fl, q, alpha, out):
+    """Every depth where the specific energy has a local minimum, ascending; returns (count, status).
+
+    Scans dE/dy on a grid that contains every breakpoint elevation and a hair on
+    either side of it (dE/dy jumps where the top width jumps), brackets each change
+    of sign from negative to positive and polishes it; a minimum at a kink (a
+    breakpoint where dE/dy jumps from negative to positive) is returned at the
+    breakpoint. ``out`` receives the depths. A section with one minimum gives one.
+    """
+    if ch.kind != SURVEYED:
+        y, status = critical_depth_single(ch, fl, q, alpha)
+        out[0] = y
+        return 1, status
+    top = _scan_top(ch, fl, q, alpha)
+    if not top < math.inf:
+        return 0, NO_ROOT
+    grid = _scan_grid(ch, top)
+    return _scan_minima(ch, fl, q, alpha, grid, _scan_froude(ch, fl, q, alpha, grid), 1.0, out)
 
 
 @kernel
@@ -313,6 +352,21 @@ def normal_depth(ch, fl, q, s0):
 
 
 @kernel
+def _least_energy(ch, fl, q, alpha, buf, n, status):
+    """(depth, status, count) of the critical depth of least specific energy among buf[:n]."""
+    if n == 0:
+        return math.nan, status, 0
+    best = 0
+    e_best = specific_energy(ch, fl, q, buf[0], alpha)
+    for i in range(1, n):
+        e = specific_energy(ch, fl, q, buf[i], alpha)
+        if e < e_best:
+            best = i
+            e_best = e
+    return buf[best], status, n
+
+
+@kernel
 def critical_depth(ch, fl, q, alpha):
     """The critical depth of least specific energy: (depth, status, how many critical depths there are).
 
@@ -324,13 +378,50 @@ def critical_depth(ch, fl, q, alpha):
         return y, status, 1
     buf = np.empty(64)
     n, status = critical_depths(ch, fl, q, alpha, buf)
-    if n == 0:
-        return math.nan, status, 0
-    best = 0
-    e_best = specific_energy(ch, fl, q, buf[0], alpha)
-    for i in range(1, n):
-        e = specific_energy(ch, fl, q, buf[i], alpha)
-        if e < e_best:
-            best = i
-            e_best = e
-    return buf[best], status, n
+    return _least_energy(ch, fl, q, alpha, buf, n, status)
+
+
+@kernel
+def _proportional(r, ref):
+    """Whether roughness row ``r`` is ``ref`` times one factor, to 2e-15 relative in every zone."""
+    f = r[0] / ref[0]
+    for z in range(1, r.shape[0]):
+        if abs(r[z] - f * ref[z]) > 2e-15 * r[z]:
+            return False
+    return True
+
+
+@kernel
+def critical_depth_batch(cb, fl, q, alpha, yc, status, count):
+    """:func:`critical_depth` of every scenario s of a channel batch (discharge q[s], roughness row s).
+
+    The squared Froude number of a section of several zones, 1 - dE/dy, is Q² times a function of depth
+    and of the ratios of the zone conveyances (module notes of :mod:`gvflow._core.resistance`), and each
+    zone's conveyance is proportional to 1/n (Manning) or C (Chezy): scenarios whose zone roughness rows
+    are proportional (a discharge sweep, a roughness factor) share the scan of :func:`critical_depths`,
+    taken once at a reference discharge q0 and scaled by (q/q0)², whenever their scan spans the same
+    depths. The brackets found are then polished with each scenario's own discharge and roughness, so
+    each depth is the one found alone, but for a grid point where dE/dy is zero to round-off.
+    """
+    buf = np.empty(64)
+    grid = np.empty(0)
+    fr2 = np.empty(0)
+    ref = -1
+    top_ref = math.nan
+    for s in range(q.shape[0]):
+        ch = Channel(cb.kind, cb.par, cb.law, cb.rough[s])
+        if ch.kind != SURVEYED:
+            yc[s], status[s], count[s] = critical_depth(ch, fl, q[s], alpha)
+            continue
+        top = _scan_top(ch, fl, q[s], alpha)
+        if not top < math.inf:
+            yc[s], status[s], count[s] = math.nan, NO_ROOT, 0
+            continue
+        if ref < 0 or top != top_ref or not _proportional(cb.rough[s], cb.rough[ref]):
+            ref = s
+            top_ref = top
+            grid = _scan_grid(ch, top)
+            fr2 = _scan_froude(ch, fl, q[s], alpha, grid)
+        scale = 1.0 if s == ref else (q[s] / q[ref]) * (q[s] / q[ref])
+        n, st = _scan_minima(ch, fl, q[s], alpha, grid, fr2, scale, buf)
+        yc[s], status[s], count[s] = _least_energy(ch, fl, q[s], alpha, buf, n, st)

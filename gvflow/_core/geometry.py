@@ -139,8 +139,14 @@ def _wall_in_zone(x, za, zb, lo, hi):
 
 
 @kernel
-def _surveyed_zone(par, y, i):
-    """(A, P, T, M, dT/dy, dP/dy) of zone i of a packed surveyed section at depth y."""
+def surveyed_zone_from(par, y, i, j0):
+    """(A, P, T, M, dT/dy, dP/dy, j1) of zone i of a packed surveyed section at depth y, reading ground pieces
+    from piece j0 on; j1 is where zone i + 1 starts reading.
+
+    Pieces ending left of a zone's lower bound add nothing to it or to any zone right of it, so the zones
+    taken left to right with j0 = j1 of the zone before read the ground once (a piece across a zone edge is
+    read by both zones), and each zone adds the same pieces in the same order as from j0 = 0.
+    """
     n = int(par[0])
     nz = int(par[1])
     xs = 2
@@ -148,18 +154,19 @@ def _surveyed_zone(par, y, i):
     lo = par[2 + 2 * n + i]
     hi = par[3 + 2 * n + i]
     a = p = t = m = dt = dp = 0.0
+    j1 = j0
     if y < par[3 + 2 * n + nz + i]:
-        return a, p, t, m, dt, dp  # ineffective below its activation depth
-    for j in range(n - 1):
+        return a, p, t, m, dt, dp, j1  # ineffective below its activation depth
+    for j in range(j0, n - 1):
         xa = par[xs + j]
         if xa > hi:
-            break  # offsets never decrease: every piece from here on lies right of the zone
+            break  # this piece and every one after it lie right of the zone
         xb = par[xs + j + 1]
-        if xb < lo:
-            continue
+        if xb < hi:
+            j1 = j + 1  # ends inside the zone: no zone to the right reaches it
         za = par[zs + j]
         zb = par[zs + j + 1]
-        if za > y and zb > y:
+        if y < za and y < zb:
             continue  # dry
         if xb == xa:
             if not _wall_in_zone(xa, za, zb, lo, hi):
@@ -185,7 +192,7 @@ def _surveyed_zone(par, y, i):
             a += 0.5 * w * (du + dv)
             m += w * (du * du + du * dv + dv * dv) / 6.0
             t += w
-            p += math.hypot(w, zv - zu)
+            p += math.sqrt(w * w + (zv - zu) * (zv - zu))
         elif zu <= y or zv <= y:
             # one end wet: the water line crosses this piece
             d = y - min(zu, zv)
@@ -193,9 +200,9 @@ def _surveyed_zone(par, y, i):
             a += 0.5 * wx * d
             m += wx * d * d / 6.0
             t += wx
-            p += math.hypot(wx, d)
+            p += math.sqrt(wx * wx + d * d)
             dt += w / abs(zv - zu)
-            dp += math.hypot(w, zv - zu) / abs(zv - zu)
+            dp += math.sqrt(w * w + (zv - zu) * (zv - zu)) / abs(zv - zu)
     # the end points extended upwards as vertical walls
     if i == 0 and y > par[zs]:
         p += y - par[zs]
@@ -203,6 +210,13 @@ def _surveyed_zone(par, y, i):
     if i == nz - 1 and y > par[zs + n - 1]:
         p += y - par[zs + n - 1]
         dp += 1.0
+    return a, p, t, m, dt, dp, j1
+
+
+@kernel
+def _surveyed_zone(par, y, i):
+    """(A, P, T, M, dT/dy, dP/dy) of zone i of a packed surveyed section at depth y."""
+    a, p, t, m, dt, dp, j1 = surveyed_zone_from(par, y, i, 0)
     return a, p, t, m, dt, dp
 
 
@@ -240,8 +254,9 @@ def geometry(kind, par, y):
     if kind == PARABOLA:
         return _parabola(par[0], y)
     a = p = t = m = dt = dp = 0.0
+    j = 0
     for i in range(int(par[1])):
-        ai, pi, ti, mi, dti, dpi = _surveyed_zone(par, y, i)
+        ai, pi, ti, mi, dti, dpi, j = surveyed_zone_from(par, y, i, j)
         a += ai
         p += pi
         t += ti

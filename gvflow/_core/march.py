@@ -19,7 +19,14 @@ import numpy as np
 
 from ._jit import kernel
 from .codes import AVG_END, DARCY, SOLVED, SUB, SUPER  # noqa: F401
-from .flow import critical_depth, critical_depth_single, normal_depth, specific_energy, specific_force, velocity_head
+from .flow import (
+    critical_depth_batch,
+    critical_depth_single,
+    normal_depth,
+    specific_energy,
+    specific_force,
+    velocity_head,
+)
 from .geometry import SURVEYED, geometry
 from .records import Channel
 from .resistance import friction_slope, hydraulics, sf_average, slope_of
@@ -560,9 +567,9 @@ def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, 
     the critical and the normal depth (:mod:`gvflow._core.codes`): a critical depth without a root (a conduit
     flowing full first) stands at the crown, a normal depth without one is NaN, and the caller raises where
     one did not converge."""
+    critical_depth_batch(cb, fl, q, alpha, yc, status, np.empty(q.shape[0], np.int64))
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
-        yc[i], status[i], count = critical_depth(ch, fl, q[i], alpha)
         yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)
         if status_n[i] != SOLVED:
             yn[i] = math.nan
@@ -598,9 +605,10 @@ def step_many(cb, fl, rows, q, s0, y1, x1, x2, yc, branch, alpha, ce, avg, ymax,
 
 @kernel
 def force_or_energy(cb, fl, q, y, alpha, energy, out):
-    """Specific force (energy=False) or specific energy (energy=True) for y[s, j] at discharge q[s]."""
-    ch = scenario(cb, 0)
+    """Specific force (energy=False) or specific energy (energy=True) for y[s, j] at discharge q[s] (scenario s's
+    roughness: a surveyed section's alpha and beta depend on its zone roughness)."""
     for s in range(y.shape[0]):
+        ch = scenario(cb, s)
         qs = q[s]
         for j in range(y.shape[1]):
             yj = y[s, j]

@@ -27,7 +27,7 @@ import math
 
 from ._jit import inline_kernel, kernel
 from .codes import AVERAGES, AVG_ARITHMETIC, AVG_END, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
-from .geometry import SURVEYED, geometry, zone_count, zone_geometry
+from .geometry import SURVEYED, geometry, surveyed_zone_from, zone_count
 
 LAMINAR_LIMIT = 2000.0
 
@@ -100,8 +100,9 @@ def hydraulics(ch, fl, q, y, alpha):
         return a, t, m, kk, ea * t / a - eb * dp / p, alpha, 1.0, alpha * (q / a) * (q / a) * t / (fl.g * a)
     a_tot = t_tot = m_tot = 0.0
     kk = dk = s2 = s3 = sig1 = 0.0
+    j = 0  # the zones left to right read the ground pieces once
     for i in range(zone_count(ch.kind, ch.par)):
-        a, p, t, m, dt, dp = zone_geometry(ch.kind, ch.par, y, i)
+        a, p, t, m, dt, dp, j = surveyed_zone_from(ch.par, y, i, j)
         a_tot += a
         t_tot += t
         m_tot += m

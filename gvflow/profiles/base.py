@@ -154,8 +154,14 @@ class SegmentBatch:
         added = float(segment.lateral_inflow * length)
         head = cls._checked(segment.section, segment.slope, segment.roughness, q, u, alpha, coef, critical_tolerance,
                             strict, params=(kind, par_up))[0]
+        coef_dn = coef
+        if coef is not None and segment.roughness is None:
+            # roughness given per scenario (a sweep): it is the head's; the downstream end keeps its own zones'
+            # ratios to the head's (a scale factor scales both ends alike)
+            ratio = np.asarray(down.core_roughness()[1], float) / np.asarray(segment.section.core_roughness()[1], float)
+            coef_dn = coef * ratio
         tail, sf_c, code = cls._checked(down, segment.slope, segment.roughness, q + added, u, alpha,
-                                        coef, critical_tolerance, strict, params=(kind, par_dn))
+                                        coef_dn, critical_tolerance, strict, params=(kind, par_dn))
         if head.cb.rough.shape != tail.cb.rough.shape or head.law != tail.law:
             raise InvalidInputError("section_downstream: both ends of a changing segment need the same resistance "
                                     "law and the same number of zones")

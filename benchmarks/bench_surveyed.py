@@ -1,0 +1,128 @@
+"""Benchmarks: a reach of 50 surveyed compound sections against a prismatic reach with the same stations.
+
+Run the timed benchmarks with::
+
+    python -m pytest benchmarks/bench_surveyed.py --benchmark-enable -q
+
+or print the comparison (single solve time ratio, 10,000-scenario roughness sweep throughput ratio)::
+
+    python benchmarks/bench_surveyed.py
+
+The targets: the surveyed reach solves in at most 5x the time of the prismatic one, and its
+roughness sweep keeps at least a third of the prismatic sweep's station-solutions per second.
+
+The surveyed reach: 50 segments of 40 m at S0 = 0.001, each with its own surveyed section
+(8 ground points, 3 zones: floodplains n = 0.06 either side of a main channel n = 0.035, the
+widths varying from section to section), 40 m³/s, tailwater 3.0 m above the lowest point. The
+prismatic reach: 50 trapezoids (b = 9 to 11 m, z = 2, n = 0.035) with the same stations. Each
+segment keeps one section along its length: a reach whose section changes within a segment
+(``Reach.from_sections``, ``Segment(section_downstream=...)``) is not built yet, so it is not
+measured here. With timing off (the normal test run) the sweeps are small; no test asserts a
+timing, the accuracy checks do assert.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+
+import numpy as np
+import pytest
+
+import gvflow as gv
+
+SEGMENTS = 50
+LENGTH = 40.0
+SLOPE = 1e-3
+STEPS = 10  # per segment: 50 x 11 = 550 stations
+Q = 40.0
+TAILWATER = 3.0
+SCENARIOS = 10_000
+
+
+def surveyed_section(i: int) -> gv.Surveyed:
+    """A compound section: floodplains either side of a main channel about 8 m wide and 2 m deep."""
+    w = 8 + 2 * np.sin(i / 5)
+    d = 1.8 + 0.2 * np.cos(i / 7)
+    fl = 60 + 10 * np.sin(i / 3)
+    off = [0, 10, fl, fl + 1.5, fl + 1.5 + w, fl + 3 + w, fl + 3 + w + fl, fl + 13 + w + fl]
+    el = [4, 3.2, 2.0 + d * 0.1, 0, 0, 2.0, 2.2, 4]
+    return gv.Surveyed(offset=off, elevation=el, roughness=[0.06, 0.035, 0.06], zone_edges=[fl, fl + 3 + w])
+
+
+def surveyed_reach() -> gv.Reach:
+    return gv.Reach(segments=[gv.Segment(length=LENGTH, slope=SLOPE, section=surveyed_section(i))
+                              for i in range(SEGMENTS)], discharge=Q, downstream=gv.FixedDepth(TAILWATER))
+
+
+def prismatic_reach() -> gv.Reach:
+    return gv.Reach(segments=[gv.Segment(length=LENGTH, slope=SLOPE, section=gv.Trapezoidal(
+        bottom_width=10 + np.sin(i), side_slope=2), roughness=0.035) for i in range(SEGMENTS)],
+        discharge=Q, downstream=gv.FixedDepth(TAILWATER))
+
+
+def factors(n: int) -> np.ndarray:
+    return np.linspace(0.8, 1.25, n)
+
+
+def full_size(benchmark) -> bool:
+    return (not benchmark.disabled) or os.environ.get("GVFLOW_BENCH_FULL", "") not in ("", "0")
+
+
+@pytest.fixture(scope="module")
+def reaches():
+    sv, pr = surveyed_reach(), prismatic_reach()
+    sv.solve(n_steps=STEPS)  # the compiled kernels loaded before timing
+    pr.solve(n_steps=STEPS)
+    return {"surveyed": sv, "prismatic": pr}
+
+
+@pytest.mark.parametrize("kind", ["surveyed", "prismatic"])
+def test_single_solve(benchmark, reaches, kind):
+    p = benchmark(reaches[kind].solve, n_steps=STEPS)
+    assert p.x.size == SEGMENTS * (STEPS + 1)
+
+
+@pytest.mark.parametrize("kind", ["surveyed", "prismatic"])
+def test_roughness_sweep(benchmark, reaches, kind):
+    n = SCENARIOS if full_size(benchmark) else 200
+    f = factors(n)
+    res = benchmark.pedantic(reaches[kind].sweep, kwargs=dict(roughness_scale=f, n_steps=STEPS), rounds=1,
+                             iterations=1)
+    assert res.depth.shape == (n, SEGMENTS * (STEPS + 1))
+    # scenarios of the sweep against solving each alone
+    for i in (0, n // 2, n - 1):
+        alone = res.scenario_reach(i).solve(n_steps=STEPS)
+        np.testing.assert_allclose(res[i].depth, alone.depth, rtol=0, atol=1e-12)
+
+
+def _best(fn, repeat: int) -> float:
+    best = np.inf
+    for _ in range(repeat):
+        t = time.perf_counter()
+        fn()
+        best = min(best, time.perf_counter() - t)
+    return best
+
+
+def main(scenarios: int = SCENARIOS) -> None:
+    sv, pr = surveyed_reach(), prismatic_reach()
+    f = factors(scenarios)
+    out = {}
+    for name, reach in (("surveyed", sv), ("prismatic", pr)):
+        reach.solve(n_steps=STEPS)
+        reach.sweep(roughness_scale=f[:20], n_steps=STEPS)  # compiled kernels loaded
+        solve = _best(lambda r=reach: r.solve(n_steps=STEPS), 20)
+        sweep = _best(lambda r=reach: r.sweep(roughness_scale=f, n_steps=STEPS), 2)
+        rate = scenarios * SEGMENTS * (STEPS + 1) / sweep
+        out[name] = (solve, sweep, rate)
+        print(f"{name:9s}  solve {solve * 1e3:7.2f} ms   sweep of {scenarios:,} {sweep:6.2f} s "
+              f"({rate / 1e6:.3f} million station-solutions/s)")
+    s, p = out["surveyed"], out["prismatic"]
+    print(f"single solve: surveyed / prismatic time = {s[0] / p[0]:.2f} (target at most 5)")
+    print(f"roughness sweep: surveyed / prismatic throughput = {s[2] / p[2]:.2f} (target at least 0.33)")
+
+
+if __name__ == "__main__":
+    main(int(sys.argv[1]) if len(sys.argv) > 1 else SCENARIOS)
