@@ -448,8 +448,9 @@ class Profile:
             kind, par_up, par_dn = matched_parameters(sec, seg.section_downstream)
             frac = np.clip((self.x[sel] - xb[k]) / (xb[k + 1] - xb[k]), 0.0, 1.0)
             out = np.empty((6, 1))
+            blend = core("changing", 1).blend
             for j, (yy, f) in enumerate(zip(y, frac, strict=True)):
-                core("arrays", 1).geometry_many(kind, (1.0 - f) * par_up + f * par_dn, np.array([yy]), out)
+                core("arrays", 1).geometry_many(kind, blend(kind, par_up, par_dn, f), np.array([yy]), out)
                 idx = np.flatnonzero(sel)[j]
                 a[idx], p[idx], t[idx] = out[:3, 0]
         return a, p, t

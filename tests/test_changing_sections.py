@@ -232,3 +232,28 @@ def test_roughness_sweep_through_surveyed_sections_scales_both_ends():
         assert alone.segments[1].section_downstream.roughness[1].n == pytest.approx(0.04 * f)
         np.testing.assert_array_equal(res[i].depth, alone.solve(n_steps=20).depth)
     np.testing.assert_array_equal(res[1].depth, reach.solve(n_steps=20).depth)
+
+
+def test_sections_between_two_surveyed_ones_keep_their_point_count():
+    # 13 points after matching: (1 - t) 13 + t 13 is not 13 in floating point for every t; the counts are
+    # copied, so every section between is whole (a regression: a truncated count lost the channel's last
+    # points, and with them its flow area)
+    n_flood, n_channel = 0.055, 0.035
+    lower = gv.Surveyed(offset=[0, 18, 30, 38, 40, 46, 49, 51, 62, 88],
+                        elevation=[94.9, 93.8, 93.3, 93.2, 91.6, 91.4, 91.7, 93.2, 93.5, 94.6],
+                        roughness=[n_flood, n_channel, n_flood], zone_edges=[38, 51])
+    approach = gv.Surveyed(offset=[0, 18, 30, 38, 40, 46, 49, 51, 60, 80],
+                           elevation=[93.9, 92.8, 92.3, 92.2, 90.6, 90.4, 90.7, 92.2, 92.5, 93.6],
+                           roughness=[n_flood, n_channel, n_flood], zone_edges=[38, 51])
+    reach = gv.Reach.from_sections(stations=[0, 500], sections=[lower, approach], discharge=12.0,
+                                   downstream=gv.FixedDepth(1.68))
+    p = reach.solve(n_steps=20)
+    assert list(p.regime) == ["subcritical"] * p.x.size
+    assert np.all(np.diff(p.depth) > 0)  # an M1 profile rising toward the control
+    from gvflow._engine import core
+    from gvflow.sections import matched_parameters
+
+    kind, up, dn = matched_parameters(lower, approach)
+    for t in np.linspace(0.0, 1.0, 101):
+        par = core("changing", 1).blend(kind, up, dn, t)
+        assert par[0] == up[0] and par[1] == up[1]

@@ -31,10 +31,22 @@ import math
 
 from ._jit import kernel
 from .flow import critical_depth, specific_energy, specific_force, velocity_head
-from .geometry import geometry, max_depth
+from .geometry import SURVEYED, geometry, max_depth
 from .march import station_state, station_values, step_from
 from .records import Channel
 from .resistance import friction_slope, hydraulics, sf_average
+
+
+@kernel
+def blend(kind, par_up, par_dn, t):
+    """Parameters ``(1 - t) * par_up + t * par_dn`` of a section between two of one layout; a surveyed
+    section's point and zone counts (its first two entries) are copied, not interpolated, so round-off
+    cannot change them."""
+    par = (1.0 - t) * par_up + t * par_dn
+    if kind == SURVEYED:
+        par[0] = par_up[0]
+        par[1] = par_up[1]
+    return par
 
 
 @kernel
@@ -46,7 +58,7 @@ def channel_at(cb, dn, s, t):
         return Channel(cb.kind, cb.par, cb.law, cb.rough[s])
     if t == 1.0:
         return Channel(cb.kind, dn.par, cb.law, dn.rough[s])
-    return Channel(cb.kind, (1.0 - t) * cb.par + t * dn.par, cb.law, (1.0 - t) * cb.rough[s] + t * dn.rough[s])
+    return Channel(cb.kind, blend(cb.kind, cb.par, dn.par, t), cb.law, (1.0 - t) * cb.rough[s] + t * dn.rough[s])
 
 
 @kernel
