@@ -288,7 +288,7 @@ def _segment_names(ax, reach, slope_classes):
     xb = np.asarray(reach.boundaries)
     for k, seg in enumerate(reach.segments):
         name = seg.name or f"segment {k}"
-        _label(ax, f"{name}\n{slope_classes[k]}, S0 = {seg.slope:g}", (0.5 * (xb[k] + xb[k + 1]), 0.0),
+        _label(ax, f"{name}\n{slope_classes[k]}, S0 = {seg.slope:.4g}", (0.5 * (xb[k] + xb[k + 1]), 0.0),
                xycoords=ax.get_xaxis_transform(), offset=(0.0, 3.0), arrow_colour=None, fontsize=7.5, color="0.25")
 
 
