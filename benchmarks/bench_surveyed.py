@@ -11,14 +11,13 @@ or print the comparison (single solve time ratio, 10,000-scenario roughness swee
 The targets: the surveyed reach solves in at most 5x the time of the prismatic one, and its
 roughness sweep keeps at least a third of the prismatic sweep's station-solutions per second.
 
-The surveyed reach: 50 segments of 40 m at S0 = 0.001, each with its own surveyed section
-(8 ground points, 3 zones: floodplains n = 0.06 either side of a main channel n = 0.035, the
-widths varying from section to section), 40 m³/s, tailwater 3.0 m above the lowest point. The
-prismatic reach: 50 trapezoids (b = 9 to 11 m, z = 2, n = 0.035) with the same stations. Each
-segment keeps one section along its length: a reach whose section changes within a segment
-(``Reach.from_sections``, ``Segment(section_downstream=...)``) is not built yet, so it is not
-measured here. With timing off (the normal test run) the sweeps are small; no test asserts a
-timing, the accuracy checks do assert.
+The surveyed reach: ``Reach.from_sections`` through 50 surveyed sections 40 m apart, beds falling
+at 0.001 (8 ground points, 3 zones: floodplains n = 0.06 either side of a main channel n = 0.035,
+the widths varying from section to section); each of its 49 segments changes from one section to
+the next, with contraction and expansion losses 0.1 and 0.3; 40 m³/s, tailwater 3.0 m above the
+lowest point. The prismatic reach: 49 trapezoids (b = 9 to 11 m, z = 2, n = 0.035) with the same
+stations. With timing off (the normal test run) the sweeps are small; no test asserts a timing,
+the accuracy checks do assert.
 """
 
 from __future__ import annotations
@@ -32,10 +31,11 @@ import pytest
 
 import gvflow as gv
 
-SEGMENTS = 50
+SECTIONS = 50
+SEGMENTS = SECTIONS - 1
 LENGTH = 40.0
 SLOPE = 1e-3
-STEPS = 10  # per segment: 50 x 11 = 550 stations
+STEPS = 10  # per segment: 49 x 11 = 539 stations
 Q = 40.0
 TAILWATER = 3.0
 SCENARIOS = 10_000
@@ -47,13 +47,15 @@ def surveyed_section(i: int) -> gv.Surveyed:
     d = 1.8 + 0.2 * np.cos(i / 7)
     fl = 60 + 10 * np.sin(i / 3)
     off = [0, 10, fl, fl + 1.5, fl + 1.5 + w, fl + 3 + w, fl + 3 + w + fl, fl + 13 + w + fl]
-    el = [4, 3.2, 2.0 + d * 0.1, 0, 0, 2.0, 2.2, 4]
+    z0 = (SECTIONS - 1 - i) * LENGTH * SLOPE  # the bed falls at SLOPE from section to section
+    el = [z0 + z for z in (4, 3.2, 2.0 + d * 0.1, 0, 0, 2.0, 2.2, 4)]
     return gv.Surveyed(offset=off, elevation=el, roughness=[0.06, 0.035, 0.06], zone_edges=[fl, fl + 3 + w])
 
 
 def surveyed_reach() -> gv.Reach:
-    return gv.Reach(segments=[gv.Segment(length=LENGTH, slope=SLOPE, section=surveyed_section(i))
-                              for i in range(SEGMENTS)], discharge=Q, downstream=gv.FixedDepth(TAILWATER))
+    return gv.Reach.from_sections(stations=np.arange(SECTIONS) * LENGTH,
+                                  sections=[surveyed_section(i) for i in range(SECTIONS)], discharge=Q,
+                                  downstream=gv.FixedDepth(TAILWATER))
 
 
 def prismatic_reach() -> gv.Reach:
@@ -81,7 +83,7 @@ def reaches():
 @pytest.mark.parametrize("kind", ["surveyed", "prismatic"])
 def test_single_solve(benchmark, reaches, kind):
     p = benchmark(reaches[kind].solve, n_steps=STEPS)
-    assert p.x.size == SEGMENTS * (STEPS + 1)
+    assert p.x[-1] == pytest.approx(SEGMENTS * LENGTH) and p.x.size >= SEGMENTS * STEPS + 1
 
 
 @pytest.mark.parametrize("kind", ["surveyed", "prismatic"])

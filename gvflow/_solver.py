@@ -508,8 +508,9 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
     xb = reach.boundaries
+    memo = {}  # critical depths of a section met twice (the end of one changing segment, the head of the next)
     built = [SegmentBatch._changing(s, q_seg[:, k].copy(), units, reach.alpha, cols[k], critical_tolerance, xb[k],
-                                    xb[k + 1] - xb[k], strict=False)
+                                    xb[k + 1] - xb[k], strict=False, memo=memo)
              if s.changes else
              SegmentBatch._checked(s.section, s.slope, s.roughness, q_seg[:, k].copy(), units, reach.alpha,
                                    cols[k], critical_tolerance, strict=False)

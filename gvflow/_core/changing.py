@@ -34,7 +34,7 @@ from .flow import critical_depth, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
 from .march import station_state, station_values, step_from
 from .records import Channel
-from .resistance import friction_slope, hydraulics, sf_average
+from .resistance import friction_slope, froude_squared, hydraulics, sf_average
 
 
 @kernel
@@ -62,24 +62,27 @@ def channel_at(cb, dn, s, t):
 
 
 @kernel
-def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, cc, ce, avg, ymax, tol, guess):
+def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, cc, ce, avg, ymax, tol, guess,
+                    contraction_first):
     """Depth at station 2 (channel ``ch2``, signed distance d from station 1 whose state e1, sf1, hv1 in its
-    own channel ``ch1`` is known), with the transition loss of the module notes. (depth, code) as
-    :func:`~gvflow._core.march.step`."""
-    y2, code = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, cc, avg, ymax, tol, guess)
+    own channel ``ch1`` is known), with the transition loss of the module notes: (depth, code, whether it
+    was a contraction), code as :func:`~gvflow._core.march.step`. The coefficient of
+    ``contraction_first`` is tried first (the previous interval's, usually right)."""
+    c1, c2 = (cc, ce) if contraction_first else (ce, cc)
+    y2, code = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c1, avg, ymax, tol, guess)
     if code != 0 or cc == ce:
-        return y2, code
+        return y2, code, contraction_first
     hv2 = station_state(ch2, fl, q, alpha, y2)[2]
-    if (hv2 - hv1) * d > 0.0:
-        return y2, code  # the velocity head grows downstream: a contraction, as assumed
-    y3, code3 = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, ce, avg, ymax, tol, y2)
+    if ((hv2 - hv1) * d > 0.0) == contraction_first:
+        return y2, code, contraction_first  # the velocity head changes the way assumed
+    y3, code3 = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c2, avg, ymax, tol, y2)
     if code3 != 0:
-        return y3, code3
+        return y3, code3, not contraction_first
     hv3 = station_state(ch2, fl, q, alpha, y3)[2]
-    if (hv3 - hv1) * d <= 0.0:
-        return y3, 0  # an expansion, as assumed the second time
+    if ((hv3 - hv1) * d > 0.0) != contraction_first:
+        return y3, 0, not contraction_first  # the other way, as assumed the second time
     # neither assumption holds: the velocity head hardly changes, and so neither does the loss
-    return (y2, 0) if abs(hv2 - hv1) <= abs(hv3 - hv1) else (y3, 0)
+    return (y2, 0, contraction_first) if abs(hv2 - hv1) <= abs(hv3 - hv1) else (y3, 0, not contraction_first)
 
 
 @kernel
@@ -144,38 +147,115 @@ def momentum_step(ch, fl, q1, q2, s0, y1, d, yc2, branch, alpha, avg, tol):
 
 
 @kernel
-def _interval(cb, dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub):
+def critical_near(ch, fl, q, alpha, hint, rtol):
+    """The critical depth nearest ``hint`` (Fc² = 1 where specific energy has a minimum), to ``rtol``: a bracket
+    grown about the hint, then regula falsi (Illinois) on Fc² - 1, which falls through zero with depth there.
+    A geometric section's one critical depth comes from :func:`~gvflow._core.flow.critical_depth`; so does
+    a surveyed one's where no bracket is found. Between sections a little apart the critical depth moves
+    little, so this costs a few evaluations where a scan of the whole section costs over a hundred, and it
+    keeps to the branch the profile is on where a compound section has several critical depths."""
+    if ch.kind != SURVEYED or not (hint > 0.0):
+        return critical_depth(ch, fl, q, alpha)[0]
+    lo = hint * 0.98
+    hi = hint * 1.02
+    flo = froude_squared(ch, fl, q, lo, alpha) - 1.0
+    fhi = froude_squared(ch, fl, q, hi, alpha) - 1.0
+    for _ in range(40):
+        if flo > 0.0:
+            break
+        hi, fhi = lo, flo
+        lo *= 0.8
+        flo = froude_squared(ch, fl, q, lo, alpha) - 1.0
+    for _ in range(40):
+        if fhi < 0.0:
+            break
+        lo, flo = hi, fhi
+        hi *= 1.25
+        fhi = froude_squared(ch, fl, q, hi, alpha) - 1.0
+    if not (flo > 0.0 and fhi < 0.0):
+        return critical_depth(ch, fl, q, alpha)[0]
+    side = 0
+    y = 0.5 * (lo + hi)
+    for _ in range(100):
+        y = (lo * fhi - hi * flo) / (fhi - flo)
+        if not (lo < y < hi):
+            y = 0.5 * (lo + hi)
+        f = froude_squared(ch, fl, q, y, alpha) - 1.0
+        if f == 0.0 or hi - lo <= rtol * y:
+            return y
+        if f > 0.0:
+            lo, flo = y, f
+            if side == 1:
+                fhi *= 0.5
+            side = 1
+        else:
+            hi, fhi = y, f
+            if side == -1:
+                flo *= 0.5
+            side = -1
+    return y
+
+
+#: within this fraction of critical depth a step takes the critical depth to full precision; farther away a
+#: rough one (to :data:`ROUGH_CRITICAL`) bounds the branch, and a step that fails with it is taken again
+NEAR_CRITICAL = 0.1
+ROUGH_CRITICAL = 1e-3
+
+
+@kernel
+def _interval(cb, dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub, yc_hint,
+              contraction_first):
     """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d):
-    (depth, code, stations done)."""
+    (depth, code, stations done, critical depth at the end, whether the last step was a contraction).
+    ``yc_hint`` is the critical depth at t1; away from critical depth it is carried along by one scaling
+    step per station, yc ~ hint Fc²(hint)^(1/3) (exact for a rectangle), which keeps it close enough to
+    bound the branch, and taken precisely (:func:`critical_near`) near critical depth or after a failed
+    step."""
     y = y1
     ch1 = channel_at(cb, dn, s, t1)
     ta = t1
+    yc2 = yc_hint
+    code = 0
+    y2 = y
     for k in range(nsub):
         tb = t1 + (t2 - t1) * (k + 1) / nsub
         ch2 = channel_at(cb, dn, s, tb)
         q1 = q + dn.added * ta
         q2 = q + dn.added * tb
-        yc2 = critical_depth(ch2, fl, q2, alpha)[0]
-        if dn.added != 0.0:
-            y2, code = momentum_step(ch2, fl, q1, q2, s0, y, d / nsub, yc2, branch, alpha, avg, tol)
+        near = abs(y - yc2) <= NEAR_CRITICAL * yc2
+        if near:
+            yc2 = critical_near(ch2, fl, q2, alpha, yc2, tol)
         else:
-            e1, sf1, hv1, _ = station_state(ch1, fl, q1, alpha, y)
-            y2, code = transition_step(ch1, ch2, fl, q2, s0, y, e1, sf1, hv1, d / nsub, yc2, branch, alpha, cc, ce,
-                                       avg, max_depth(ch2.kind, ch2.par), tol, guess if nsub == 1 else y)
+            f2 = froude_squared(ch2, fl, q2, yc2, alpha)
+            if f2 > 0.0 and math.isfinite(f2):
+                yc2 *= f2 ** (1.0 / 3.0)
+        for _ in range(2):
+            if dn.added != 0.0:
+                y2, code = momentum_step(ch2, fl, q1, q2, s0, y, d / nsub, yc2, branch, alpha, avg, tol)
+            else:
+                e1, sf1, hv1, _ = station_state(ch1, fl, q1, alpha, y)
+                y2, code, contraction_first = transition_step(
+                    ch1, ch2, fl, q2, s0, y, e1, sf1, hv1, d / nsub, yc2, branch, alpha, cc, ce, avg,
+                    max_depth(ch2.kind, ch2.par), tol, guess if nsub == 1 else y, contraction_first)
+            if near or (code == 0 and abs(y2 - yc2) > NEAR_CRITICAL * yc2):
+                break
+            near = True  # close to critical depth, or failed with the carried one: again with the precise one
+            yc2 = critical_near(ch2, fl, q2, alpha, yc2, tol)
         if code != 0:
-            return y2, code, k
+            return y2, code, k, yc2, contraction_first
         y = y2
         ch1 = ch2
         ta = tb
-    return y, 0, nsub
+    return y, 0, nsub, yc2, contraction_first
 
 
 @kernel
-def march(cb, dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg, tol, until_force, force_tol,
+def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, until_force, force_tol,
           out_y, out_n, out_xc, out_code):
     """Standard-step march of every scenario over the stations ``x`` (in marching order) of a changing
     segment; ``t[j]`` is the fraction of the segment's length at station j. Arguments and outputs as
-    :func:`gvflow._core.march.march`. An interval whose step finds no root on the branch is taken again
+    :func:`gvflow._core.march.march`; ``yc0[s]`` is the critical depth at the first station where the caller
+    knows it (NaN: found here). An interval whose step finds no root on the branch is taken again
     as 4, then 16, then 64 sub-steps through the sections between; if they fail too, the profile
     reaches critical depth in it (code 1, ``out_xc`` where the sub-steps stopped)."""
     m = x.shape[0]
@@ -193,14 +273,18 @@ def march(cb, dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg, tol, until_fo
             for jj in range(1, m):
                 out_y[s, jj] = math.nan
             continue
+        yc = yc0[s]
+        if not (yc > 0.0):
+            yc = critical_depth(channel_at(cb, dn, s, t[0]), fl, q[s] + dn.added * t[0], alpha)[0]
+        contraction = True
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code, done = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch, alpha,
-                                       cc, ce, avg, tol, y, 1)
+            y2, code, done, yc2, way = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch, alpha,
+                                                 cc, ce, avg, tol, y, 1, yc, contraction)
             nsub = 4
             while code == 1 and nsub <= 64:
-                y2, code, done = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch,
-                                           alpha, cc, ce, avg, tol, y, nsub)
+                y2, code, done, yc2, way = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch,
+                                                     alpha, cc, ce, avg, tol, y, nsub, yc, contraction)
                 if code == 1 and nsub == 64:
                     out_xc[s] = x[j - 1] + d * done / nsub
                 nsub *= 4
@@ -212,6 +296,8 @@ def march(cb, dn, fl, q, s0, x, t, y0, branch, alpha, cc, ce, avg, tol, until_fo
                 break
             out_y[s, j] = y2
             y = y2
+            yc = yc2
+            contraction = way
             if watch and specific_force(channel_at(cb, dn, s, t[j]), fl, q[s] + dn.added * t[j], y, alpha) < \
                     until_force[s, j] * (1.0 - force_tol):
                 out_n[s] = j + 1

@@ -559,15 +559,17 @@ def properties(cb, fl, rows, q, y, out):
 
 
 @kernel
-def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, status_n):
+def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, status_n, known_yc):
     """Per scenario (roughness row i, discharge q[i]): critical depth, normal depth (NaN where none), the
     friction slope at critical depth, and the slope class code (0 mild, 1 steep, 2 critical, 3 horizontal,
     4 adverse) by the rule of :func:`gvflow.profiles.classify_slope` with band ``tol`` (a closed conduit
     that cannot carry q in uniform flow counts as mild). ``status[i]`` and ``status_n[i]`` are the status of
     the critical and the normal depth (:mod:`gvflow._core.codes`): a critical depth without a root (a conduit
     flowing full first) stands at the crown, a normal depth without one is NaN, and the caller raises where
-    one did not converge."""
-    critical_depth_batch(cb, fl, q, alpha, yc, status, np.empty(q.shape[0], np.int64))
+    one did not converge. With ``known_yc`` the critical depths and their status come in ``yc`` and ``status``
+    (the same section and discharges met before, e.g. at the junction of two changing segments)."""
+    if not known_yc:
+        critical_depth_batch(cb, fl, q, alpha, yc, status, np.empty(q.shape[0], np.int64))
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
         yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)

@@ -21,7 +21,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from .._core.codes import NOT_CONVERGED, SUB, SUPER
+from .._core.codes import NOT_CONVERGED, SUB, SUPER, SURVEYED
 from .._core.records import Along, ChannelBatch, Fluid, channel_batch, fluid
 from .._engine import core
 from .._roots import bracketed_root
@@ -114,10 +114,11 @@ class SegmentBatch:
 
     @classmethod
     def _checked(cls, section, slope, roughness, q, u, alpha, coef, critical_tolerance=CRITICAL_SLOPE_TOLERANCE,
-                 strict=True, params=None):
+                 strict=True, params=None, memo=None):
         """:meth:`build` from checked inputs: ``q`` a 1-D float array it may keep, ``u`` a Units, ``coef`` None
         or a float array with one row per scenario it may keep; ``params`` replaces the section's core
-        parameters (the same section in another layout, :func:`gvflow.sections.matched_parameters`). Returns
+        parameters (the same section in another layout, :func:`gvflow.sections.matched_parameters`); ``memo`` (a
+        dict) keeps the critical depths of a section, roughness and discharges met before in one solve. Returns
         (batch, friction slope at critical depth, slope class code: an index into SLOPE_CLASSES, critical within
         ``critical_tolerance``) per scenario."""
         rough = section_roughness(section, roughness)
@@ -132,9 +133,18 @@ class SegmentBatch:
         fl = fluid(u)
         yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
         code, status, status_n = (np.empty(q.shape, np.int64) for _ in range(3))
+        # (the section's own parameters and its roughness to 13 decimals: one section met at the end of one
+        # changing segment and the head of the next, whose roughness rows may differ by round-off)
+        key = None if memo is None else (section.core_params()[1].tobytes(), law, np.round(c, 13).tobytes(),
+                                         q.tobytes(), float(alpha))
+        known = key is not None and key in memo
+        if known:
+            yc[:], status[:] = memo[key]
         core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha),
                                                       float(critical_tolerance), yc, yn, sf_c, code, status,
-                                                      status_n)
+                                                      status_n, known)
+        if key is not None and not known:
+            memo[key] = (yc.copy(), status.copy())
         failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
         yc[status == NOT_CONVERGED] = np.nan
         batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed)
@@ -143,7 +153,8 @@ class SegmentBatch:
         return batch, sf_c, code
 
     @classmethod
-    def _changing(cls, segment, q, u, alpha, coef, critical_tolerance, x0: float, length: float, strict=True):
+    def _changing(cls, segment, q, u, alpha, coef, critical_tolerance, x0: float, length: float, strict=True,
+                  memo=None):
         """A batch for a segment whose section changes from ``segment.section`` (its head) to
         ``segment.section_downstream`` (its downstream end, :attr:`tail`); returns what :meth:`_checked`
         returns, the friction slope at critical depth and the slope class taken at the downstream end."""
@@ -153,7 +164,7 @@ class SegmentBatch:
         kind, par_up, par_dn = matched_parameters(segment.section, down)
         added = float(segment.lateral_inflow * length)
         head = cls._checked(segment.section, segment.slope, segment.roughness, q, u, alpha, coef, critical_tolerance,
-                            strict, params=(kind, par_up))[0]
+                            strict, params=(kind, par_up), memo=memo)[0]
         coef_dn = coef
         if coef is not None and segment.roughness is None:
             # roughness given per scenario (a sweep): it is the head's; the downstream end keeps its own zones'
@@ -161,7 +172,7 @@ class SegmentBatch:
             ratio = np.asarray(down.core_roughness()[1], float) / np.asarray(segment.section.core_roughness()[1], float)
             coef_dn = coef * ratio
         tail, sf_c, code = cls._checked(down, segment.slope, segment.roughness, q + added, u, alpha,
-                                        coef_dn, critical_tolerance, strict, params=(kind, par_dn))
+                                        coef_dn, critical_tolerance, strict, params=(kind, par_dn), memo=memo)
         if head.cb.rough.shape != tail.cb.rough.shape or head.law != tail.law:
             raise InvalidInputError("section_downstream: both ends of a changing segment need the same resistance "
                                     "law and the same number of zones")
@@ -180,8 +191,16 @@ class SegmentBatch:
                                    "units and of plausible size", iterations=200)
 
     def same_section(self, other: SegmentBatch) -> bool:
-        """Whether ``other`` has the same cross-section (kind and parameters; roughness aside)."""
-        return self.cb.kind == other.cb.kind and np.array_equal(self.cb.par, other.cb.par)
+        """Whether ``other`` has the same cross-section: kind and parameters, or the same section in another
+        parameter layout (the end of one changing segment and the head of the next); roughness aside, except
+        that a surveyed section's zone roughness, which sets its alpha, must match too."""
+        if self.cb.kind != other.cb.kind:
+            return False
+        same = np.array_equal(self.cb.par, other.cb.par) or self.section is other.section or (
+            self.cb.par.size != other.cb.par.size and self.section == other.section)
+        if same and self.cb.kind == SURVEYED:
+            return np.array_equal(self.cb.rough, other.cb.rough)
+        return same
 
     @property
     def n(self) -> int:
@@ -215,6 +234,16 @@ class SegmentBatch:
         t = np.asarray(t, dtype=float)
         added = 0.0 if self.change is None else self.change.along.added
         return self.discharge[:, None] + added * t[None, :]
+
+    def end_critical_depth(self, x) -> np.ndarray:
+        """Critical depth of each scenario at distance ``x`` along the reach where it is one of the segment's
+        ends (known from the segment's constants), else NaN."""
+        t = float(self.fractions([x])[0]) if self.change is not None else 0.0
+        if t == 0.0:
+            return np.ascontiguousarray(self.yc, dtype=float)
+        if t == 1.0:
+            return np.ascontiguousarray(self.change.tail.yc, dtype=float)
+        return np.full(self.n, np.nan)
 
     def critical_depths_at(self, t) -> np.ndarray:
         """Critical depth of each scenario at fractions ``t`` (m,) of a changing segment: shape (n, m)."""

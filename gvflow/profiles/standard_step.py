@@ -119,7 +119,8 @@ class StandardStep(Marcher):
         out_y, out_n = np.empty((n, m)), np.empty(n, np.int64)
         out_xc, out_code = np.empty(n), np.empty(n, np.int64)
         core("changing", 40 * n * m).march(seg.cb, c.along, seg.fl, seg.discharge, seg.slope, x,
-                                           seg.fractions(x), _per_scenario(y0, n), int(branch), seg.alpha,
+                                           seg.fractions(x), _per_scenario(y0, n), seg.end_critical_depth(x[0]),
+                                           int(branch), seg.alpha,
                                            c.contraction, c.expansion, AVERAGES[self.friction_average], self.tol,
                                            force, float(rtol), out_y, out_n, out_xc, out_code)
         return MarchResult(out_y, out_n, out_xc, out_code)
