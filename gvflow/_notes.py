@@ -94,6 +94,15 @@ def _sections_far_apart(x, u, *, x_up, x_down, ratio, limit) -> str:
             "trusted; survey or interpolate a section between them (common practice)")
 
 
+def _several_critical(x, u, *, k, depths, x_end) -> str:
+    shown = ", ".join(f"{d:.3f}" for d in depths)
+    return (f"in segment {k} the section has {len(depths)} critical depths ({shown} {u.length}): between them "
+            f"specific energy has a local maximum, and from x = {x:.2f} to {x_end:.2f} {u.length} the water stands "
+            "in that band, where a profile can belong to either regime; gvflow does not yet follow the branch "
+            "through it, so treat the profile there as uncertain and check it (a finer spacing, method='ivp', or "
+            "a section drawn so that the band is not reached)")
+
+
 def _choke(x, u, *, k, depth, yn) -> str:
     return (f"the section of segment {k + 1} passes the flow only through critical depth, which holds the water "
             f"upstream at {depth:.3f} {u.length}, above segment {k}'s normal depth {yn:.3f} {u.length}")
@@ -146,6 +155,7 @@ FORMATTERS = {
     "jump on a sloping floor": _sloping_jump,
     "inflow": _inflow,
     "sections far apart": _sections_far_apart,
+    "several critical depths": _several_critical,
     "choke": _choke,
     "near-critical flow": _near_critical,
     "gate": _gate,

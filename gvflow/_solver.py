@@ -26,6 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ._core.codes import REGIME_CRITICAL, REGIME_SUB, REGIME_SUPER, SUB, SUPER  # noqa: F401
+from ._core.records import Channel
 from ._engine import core
 from ._near_critical import near_critical_notes
 from ._notes import note
@@ -753,6 +754,7 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
     _inflow_notes(notes, st.segments, segs, st.bounds, x, regime)
     _conveyance_ratio_notes(notes, st.segments, segs, st.bounds, x, depth)
     _choke_notes(notes, segs, classes, st.bounds, x, depth, regime)
+    _several_critical_notes(notes, segs, st.bounds, x, depth)
     near_critical_notes(notes, segs, st.bounds, x, depth)
     for k, jet in sub.gate_jet.items():
         i0 = st.bounds[k][0]
@@ -820,6 +822,29 @@ def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
         for s in np.flatnonzero(far):
             notes[s].append(note(float(x[i0]), "sections far apart", x_up=float(x[i0]), x_down=float(x[i0 + m - 1]),
                                  ratio=float(max(ratio[s], 1.0 / ratio[s])), limit=CONVEYANCE_RATIO_LIMIT))
+
+
+def _several_critical_notes(notes, segs, bounds, x, depth):
+    """Note each stretch where the water stands between two critical depths of a compound section (where
+    specific energy has a local maximum between two minima): there the regime is decided by the compound
+    Froude number, and the profile may belong to either branch; the solver follows the least-energy
+    critical depth (a march between unlike sections, the one nearest the profile) and does not yet track
+    the branch through that band."""
+    kernel = core("arrays", 100)
+    buf = np.empty(64)
+    for k, seg in enumerate(segs):
+        if seg.n_critical is None or not (seg.n_critical > 1).any():
+            continue
+        i0, m = bounds[k]
+        for s in np.flatnonzero(seg.n_critical > 1):
+            ch = Channel(seg.cb.kind, seg.cb.par, seg.cb.law, np.ascontiguousarray(seg.cb.rough[s]))
+            count, _ = kernel.all_critical_depths(ch, seg.fl, float(seg.discharge[s]), seg.alpha, buf)
+            lo, hi = float(buf[:count].min()), float(buf[:count].max())
+            inside = np.flatnonzero((depth[s, i0:i0 + m] > lo) & (depth[s, i0:i0 + m] < hi))
+            if inside.size:
+                notes[s].append(note(float(x[i0 + inside[0]]), "several critical depths", k=k,
+                                     depths=tuple(float(v) for v in buf[:count]),
+                                     x_end=float(x[i0 + inside[-1]])))
 
 
 def _inflow_notes(notes, segments, segs, bounds, x, regime):

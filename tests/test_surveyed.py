@@ -281,3 +281,20 @@ def test_discharge_sweep_of_a_surveyed_reach_gives_each_scenario_as_alone():
         np.testing.assert_array_equal(res[i].depth, alone.depth)
     # (scenario, segment, zone): each surveyed section's zone roughness, a geometric segment's in zone 0
     np.testing.assert_array_equal(res.roughness[1], [[0.05, 0.03, 0.05], [0.05, 0.032, 0.05], [0.03, np.nan, np.nan]])
+
+
+def test_a_profile_between_two_critical_depths_is_flagged():
+    # At 60 m³/s this compound section has two critical depths (specific energy has two minima, found
+    # by gv.critical_depths and checked against the compound Froude number above). A profile standing
+    # between them is noted as uncertain; one above both is not.
+    q = 60.0
+    lo, hi = gv.critical_depths(COMPOUND, q)
+    for slope, flagged in ((0.002, False), (0.004, True)):
+        reach = gv.Reach(segments=[gv.Segment(length=2000.0, slope=slope, section=COMPOUND)], discharge=q,
+                         downstream=gv.FixedDepth(2.6))
+        p = reach.solve(n_steps=100)
+        notes = [c for c in p.controls if c.kind == "several critical depths"]
+        between = (p.depth > lo) & (p.depth < hi)
+        assert bool(notes) == flagged == bool(between.any())
+        if flagged:
+            assert f"{lo:.3f}" in notes[0].text and f"{hi:.3f}" in notes[0].text

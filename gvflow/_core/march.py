@@ -559,7 +559,7 @@ def properties(cb, fl, rows, q, y, out):
 
 
 @kernel
-def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, status_n, known_yc):
+def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, status_n, count, known_yc):
     """Per scenario (roughness row i, discharge q[i]): critical depth, normal depth (NaN where none), the
     friction slope at critical depth, and the slope class code (0 mild, 1 steep, 2 critical, 3 horizontal,
     4 adverse) by the rule of :func:`gvflow.profiles.classify_slope` with band ``tol`` (a closed conduit
@@ -567,9 +567,11 @@ def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, 
     the critical and the normal depth (:mod:`gvflow._core.codes`): a critical depth without a root (a conduit
     flowing full first) stands at the crown, a normal depth without one is NaN, and the caller raises where
     one did not converge. With ``known_yc`` the critical depths and their status come in ``yc`` and ``status``
-    (the same section and discharges met before, e.g. at the junction of two changing segments)."""
+    (the same section and discharges met before, e.g. at the junction of two changing segments), and
+    ``count`` the number of critical depths each has. ``count[i]`` receives how many critical depths
+    scenario i's section has (more than one: a compound section near bankfull)."""
     if not known_yc:
-        critical_depth_batch(cb, fl, q, alpha, yc, status, np.empty(q.shape[0], np.int64))
+        critical_depth_batch(cb, fl, q, alpha, yc, status, count)
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
         yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)

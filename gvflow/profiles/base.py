@@ -103,6 +103,7 @@ class SegmentBatch:
     fl: Fluid = field(repr=False)
     unconverged: np.ndarray | None = field(default=None, repr=False)
     change: Change | None = field(default=None, repr=False)
+    n_critical: np.ndarray | None = field(default=None, repr=False)  # critical depths of each scenario's section
 
     @classmethod
     def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
@@ -132,22 +133,23 @@ class SegmentBatch:
         cb = channel_batch(kind, par, law, c)
         fl = fluid(u)
         yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
-        code, status, status_n = (np.empty(q.shape, np.int64) for _ in range(3))
+        code, status, status_n, count = (np.empty(q.shape, np.int64) for _ in range(4))
         # (the section's own parameters and its roughness to 13 decimals: one section met at the end of one
         # changing segment and the head of the next, whose roughness rows may differ by round-off)
         key = None if memo is None else (section.core_params()[1].tobytes(), law, np.round(c, 13).tobytes(),
                                          q.tobytes(), float(alpha))
         known = key is not None and key in memo
         if known:
-            yc[:], status[:] = memo[key]
+            yc[:], status[:], count[:] = memo[key]
         core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha),
                                                       float(critical_tolerance), yc, yn, sf_c, code, status,
-                                                      status_n, known)
+                                                      status_n, count, known)
         if key is not None and not known:
-            memo[key] = (yc.copy(), status.copy())
+            memo[key] = (yc.copy(), status.copy(), count.copy())
         failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
         yc[status == NOT_CONVERGED] = np.nan
-        batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed)
+        batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed,
+                    n_critical=count)
         if strict:
             batch.require_converged()
         return batch, sf_c, code
@@ -214,7 +216,8 @@ class SegmentBatch:
                             self.units, self.alpha, self.yc[idx], self.yn[idx],
                             ChannelBatch(cb.kind, cb.par, cb.law, np.ascontiguousarray(cb.rough[idx])), self.fl,
                             None if self.unconverged is None else self.unconverged[idx],
-                            None if self.change is None else self.change.take(idx))
+                            None if self.change is None else self.change.take(idx),
+                            None if self.n_critical is None else self.n_critical[idx])
 
     # -- a section that changes along the segment (``change``): values at fractions t of its length ----------
     @property
