@@ -333,16 +333,22 @@ def depth_with_force(seg: SegmentBatch, force):
         target = force[idx]
 
         def fun(z):
-            return target - sub.specific_force(z)  # rises through zero from a shallow depth to yc
+            return sub.specific_force(z) - target
 
-        lo = sub.yc * 1e-3
-        for _ in range(60):
-            need = fun(lo) > 0
-            if not np.any(need):
-                break
-            lo = np.where(need, lo * 0.5, lo)
-        out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="supercritical depth below an inflow")
+        out[idx] = _shallow_root(fun, sub.yc, "supercritical depth below an inflow")
     return out, ~ok
+
+
+def _shallow_root(fun, yc, what):
+    """The depth below ``yc`` where ``fun`` (positive in shallow water, negative at ``yc``: specific energy or
+    force less a target, on the supercritical branch) vanishes, for each element."""
+    lo = yc * 1e-3
+    for _ in range(60):
+        need = fun(lo) < 0
+        if not np.any(need):
+            break
+        lo = np.where(need, lo * 0.5, lo)
+    return bracketed_root(fun, lo, yc, rtol=1e-13, what=what)
 
 
 def depth_with_energy(seg: SegmentBatch, e, branch):
@@ -370,13 +376,7 @@ def depth_with_energy(seg: SegmentBatch, e, branch):
                         "the conduit flows full there; pressure flow is outside gvflow's free-surface model")
             out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
         else:
-            lo = sub.yc * 1e-3
-            for _ in range(60):
-                need = fun(lo) < 0
-                if not np.any(need):
-                    break
-                lo = np.where(need, lo * 0.5, lo)
-            out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what="depth across a junction")
+            out[idx] = _shallow_root(fun, sub.yc, "depth across a junction")
     return out, ~ok
 
 
