@@ -23,12 +23,13 @@ To write a figure without a display, pass an Axes of a
 from __future__ import annotations
 
 import textwrap
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
 
 from ._labels import LABEL_GID, _label, place_labels
-from .errors import InvalidInputError
+from .errors import GVFlowError, GVFlowWarning, InvalidInputError
 
 __all__ = ["plot_profile", "plot_envelope", "place_labels", "uncertain_inputs", "LABEL_GID"]
 
@@ -284,6 +285,27 @@ def _frame(ax, reach, x, bed, shapes, top, *, labels=True):
     return floor, span
 
 
+def _end_depths(profile, k):
+    """Normal and critical depth of segment k at its two ends (two values each): one value at both ends of
+    a prismatic segment; a segment whose section or discharge changes along it has its own at each end,
+    drawn straight between them (an approximation of how they vary)."""
+    seg = profile.reach.segments[k]
+    yn_end, yc_end = float(profile.normal_depths[k]), float(profile.critical_depths[k])
+    if not seg.changes:
+        return np.array([yn_end, yn_end]), np.array([yc_end, yc_end])
+    from .uniform import critical_depth, normal_depth
+
+    q_head = float(profile.discharge[np.flatnonzero(profile.segment == k)[0]])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GVFlowWarning)  # (several critical depths: the least-energy one)
+        yc_head = float(critical_depth(seg.section, q_head, units=profile.units))
+        try:
+            yn_head = float(normal_depth(seg.section, q_head, seg.slope, seg.roughness, units=profile.units))
+        except GVFlowError:
+            yn_head = np.nan  # no uniform flow (a level or adverse bed)
+    return np.array([yn_head, yn_end]), np.array([yc_head, yc_end])
+
+
 def _segment_names(ax, reach, slope_classes):
     xb = np.asarray(reach.boundaries)
     for k, seg in enumerate(reach.segments):
@@ -385,13 +407,13 @@ def plot_profile(profile, ax=None, *, show_energy: bool = True, show_normal: boo
 
     first_n = first_c = True
     for k in range(nseg):
-        yn = float(profile.normal_depths[k])
-        if show_normal and np.isfinite(yn):
+        yn, yc = _end_depths(profile, k)
+        if show_normal and np.all(np.isfinite(yn)):
             ax.plot(xs[k], zb[k] + yn, color=_COLOURS["normal"], linestyle=(0, (6, 3)), linewidth=1.0,
                     label="normal depth" if first_n else None, zorder=3)
             first_n = False
         if show_critical:
-            ax.plot(xs[k], zb[k] + float(profile.critical_depths[k]), color=_COLOURS["critical"],
+            ax.plot(xs[k], zb[k] + yc, color=_COLOURS["critical"],
                     linestyle=(0, (2, 2)), linewidth=1.0, label="critical depth" if first_c else None, zorder=3)
             first_c = False
 

@@ -215,7 +215,8 @@ class Profile:
     of kind ``"coefficient"`` for each empirical coefficient the result rests
     on), ``coefficients`` (those coefficients as records with their sources,
     see :mod:`gvflow.coefficients`),
-    ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment.
+    ``normal_depths``, ``critical_depths`` and ``slope_classes`` per segment (for a segment whose
+    section or discharge changes along it, at its downstream end).
 
     Closed conduits that run full (surcharged): where a conduit cannot carry
     the flow with a free surface, ``depth`` is the pressure head above the
@@ -349,8 +350,8 @@ class Profile:
         x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
             sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows], sol.jump_x[rows],
             sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows])
-        yn = np.array([s.yn[i] for s in sol.segs])
-        yc = np.array([s.yc[i] for s in sol.segs])
+        yn = np.array([s.tail.yn[i] for s in sol.segs])  # (a changing segment: at its downstream end, where
+        yc = np.array([s.tail.yc[i] for s in sol.segs])  # its slope class is taken)
         classes = [str(c) for c in sol.slope_class[i]]
         pieces = functools.partial(scenario_pieces, sol, i, x, y, reg, seg, yn, yc)  # made when first read
         # a junction station appears twice; keep one where nothing changes across it
