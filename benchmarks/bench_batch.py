@@ -348,4 +348,4 @@ def test_solve_many_1000_reaches(benchmark, workers):
             out = benchmark.pedantic(gv.solve_many, args=(reaches, ex), rounds=5 if full else 1, iterations=1)
     benchmark.extra_info.update(reaches=len(reaches), workers=workers)
     assert len(out) == len(reaches) and all(isinstance(p, gv.Profile) for p in out)
-    assert [p.discharge for p in out] == [r.discharge for r in reaches]
+    assert [p.reach.discharge for p in out] == [r.discharge for r in reaches]

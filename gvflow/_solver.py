@@ -906,10 +906,13 @@ def _jump_into_full(jump, marcher, seg, x, sub_y, runs):
     def sub_depth(xq):
         if xq >= t:
             return h_b + (h_t - h_b) * (b - xq) / (b - t) if b > t else h_b
-        return marcher.step_to(seg, s, top, t, xq, SUB)
+        y = marcher.step_to(seg, s, top, t, xq, SUB)
+        # (no free surface below the crown there on the subcritical branch: the stations' depths, straight)
+        return y if np.isfinite(y) else h_a + (h_b - h_a) * (xq - a) / (b - a)
 
     def sup_depth(xq):
-        return marcher.step_to(seg, s, float(y_sup0), a, xq, SUPER)
+        y = marcher.step_to(seg, s, float(y_sup0), a, xq, SUPER)
+        return y if np.isfinite(y) else float(y_sup0)  # (the supercritical branch ends: its last depth)
 
     def balance(xq):
         m = one.specific_force(np.array([[sup_depth(xq), sub_depth(xq)]]))[0]
@@ -939,6 +942,11 @@ def _refine(jumps, marcher, seg, x, sub_y, k, notes, runs=None):
         into_full = [j for j in rows if sub_y[jumps[j][0], jumps[j][5] + 1] > top]
         for j in into_full:
             jumps[j] = _jump_into_full(jumps[j], marcher, seg, x, sub_y, runs)
+            s, xj, y1, y2 = jumps[j][:4]
+            m1, m2 = _subset(seg, np.array([s])).specific_force(np.array([[y1, y2]]))[0]
+            off = abs(m1 - m2) / m2
+            if off > JUMP_BALANCE_TOLERANCE:  # (the two sides' forces do not cross between the stations)
+                notes[s].append(note(xj, "unbalanced jump", off=off))
         rows = [j for j in rows if j not in into_full]
     if not rows:
         return

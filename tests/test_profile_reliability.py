@@ -328,6 +328,9 @@ def check_profile(reach, p):
         if jump.where != "in segment":
             continue
         sec = reach.segments[jump.segment].section
+        if jump.downstream_depth > sec.max_depth:
+            continue  # a jump into a conduit running full: its balance includes the pressure on the full area
+            # (tests/test_surcharge.py), and an unbalanced one is noted like any other
         m1 = gv.specific_force(sec, reach.discharge, jump.upstream_depth)
         m2 = gv.specific_force(sec, reach.discharge, jump.downstream_depth)
         assert abs(m1 - m2) <= 1e-6 * m2 or round(jump.x, 6) in unbalanced, (jump, m1, m2)
@@ -351,6 +354,7 @@ def run_generated(n_examples, derandomize=False):
         except gv.GVFlowError:
             return  # an explained refusal
         stats["solved"] += 1
+        assert np.all(np.isfinite(p.depth)) and np.all(p.depth > 0), "a solved profile has a depth at every station"
         check_profile(reach, p)
         if case["ivp"] == 0:  # one in four also by ivp
             try:
@@ -362,6 +366,9 @@ def run_generated(n_examples, derandomize=False):
                 return
             if np.any(p.regime == "critical"):
                 return  # a choke or a brink: where the branch ends is a matter of the spacing
+            if any(c.kind == "near-critical flow" for c in p.controls):
+                return  # near critical depth a small change moves the depth a lot: the methods' spacing shows
+            assert np.all(np.isfinite(p.depth)) and np.all(np.isfinite(q.depth))
             stats["compared"] += 1
             np.testing.assert_allclose(p.depth, q.depth, rtol=0.01)
 
