@@ -16,13 +16,13 @@ then constant, which makes the depth upstream of a critical outlet sqrt(3) times
 rectangle (energy would give 1.5).
 
 Between two stations the energy equation of the standard step (Chow 1959, *Open-Channel Hydraulics*,
-§10-3; the same :func:`~gvflow._core.march.step_from` as a prismatic segment) balances the energy at
+ch. 10, from memory; the same :func:`~gvflow._core.march.step_from` as a prismatic segment) balances the energy at
 station 1, in its own section, against the energy at station 2 in the other, with the friction loss
 over the interval and a transition loss C |Δ(alpha V²/2g)| where C is the contraction coefficient
 when the velocity head grows downstream and the expansion coefficient when it falls (US Army Corps of
 Engineers, EM 1110-2-1416, 1993, from memory). Which one applies depends on the answer: the step is
-solved with the contraction coefficient and taken again with the expansion coefficient when the
-velocity head turns out to fall downstream.
+solved with the coefficient of the previous interval's case (at first the contraction's) and taken
+again with the other when the velocity head turns out to change the other way.
 """
 
 from __future__ import annotations
