@@ -171,12 +171,25 @@ def piece_stations(p, piece):
                           & want)
 
 
+def _above_peak_conveyance(p, piece, ys):
+    """Whether a piece in a closed conduit rises above the depth of the conduit's largest conveyance, where a
+    discharge between the full-flow and the peak capacity has a second normal depth (Chow 1959, ch. 6, from
+    memory): the textbook zones, which assume one, do not describe the profile there."""
+    seg = p.reach.segments[piece.segment]
+    if not seg.section.closed:
+        return False
+    cap = gv.conduit_capacity(seg.section, seg.slope, seg.roughness, units=p.units) if seg.slope > 0 else None
+    return cap is not None and bool(np.any(ys > cap.peak_depth))
+
+
 def check_pieces(p, tol=1e-9):
     """Every station of every labelled piece lies in its zone; the depth moves with the sign theory gives
     for the label; a piece tending to normal depth approaches it without crossing it."""
     for piece in p.pieces:
         idx = piece_stations(p, piece)
         assert idx.size >= 2, piece
+        if _above_peak_conveyance(p, piece, p.depth[idx]):
+            continue
         yn, yc = p.normal_depths[piece.segment], p.critical_depths[piece.segment]
         shape = PROFILE_SHAPES[piece.label]
         ys = p.depth[idx]
@@ -368,6 +381,8 @@ def run_generated(n_examples, derandomize=False):
                 return  # a choke or a brink: where the branch ends is a matter of the spacing
             if any(c.kind == "near-critical flow" for c in p.controls):
                 return  # near critical depth a small change moves the depth a lot: the methods' spacing shows
+            if np.any(np.abs(np.diff(p.depth)) > 0.2 * p.depth[1:]):
+                return  # the stations do not resolve the profile (a depth changing by more than 20 % between two)
             assert np.all(np.isfinite(p.depth)) and np.all(np.isfinite(q.depth))
             stats["compared"] += 1
             np.testing.assert_allclose(p.depth, q.depth, rtol=0.01)

@@ -302,8 +302,24 @@ class SluiceGate(Control):
             the gate would stand below its lip, so the gate does not control.
         """
         jet = np.full(state.seg.n, self.jet_depth)
+        seg = state.seg
+        if seg.section.closed:
+            # in a conduit the pool a free jet needs may stand above the crown: the conduit runs full behind the
+            # gate (pressure flow, outside the reach); the gate still releases its jet, and the depth behind it
+            # is reported as infinite (above the crown)
+            full = seg.specific_energy(jet) > seg.specific_energy(np.full(seg.n, seg.section.max_depth))
+            if np.any(full):
+                out = np.full(seg.n, np.inf)
+                idx = np.flatnonzero(~full)
+                if idx.size:
+                    out[idx] = self._pool(seg.take(idx), jet[idx], None if tailwater is None else
+                                          np.asarray(tailwater, dtype=float)[idx])
+                return out
+        return self._pool(seg, jet, tailwater)
+
+    def _pool(self, seg, jet, tailwater):
         try:
-            y1, _ = gate_pool_depth(state.seg, state.seg, jet, tailwater, opening=self.opening)
+            y1, _ = gate_pool_depth(seg, seg, jet, tailwater, opening=self.opening)
         except NoSolutionError as exc:
             raise ControlError(
                 f"SluiceGate(opening={self.opening:g}): the opening is above the depth the discharge needs behind "
@@ -319,15 +335,18 @@ class SluiceGate(Control):
         drowned = depth > self.jet_depth * (1 + 1e-9)
         y_free = self.upstream_depth(state)
         y1 = self.upstream_depth(state, tailwater=np.where(drowned, depth, np.nan))
+        def behind(y):
+            return f"{y:.3f} {L}" if np.isfinite(y) else "above the conduit's crown (full, pressure flow)"
+
         out = []
         for s in range(state.seg.n):
             sequent = (f"the jet's sequent depth {limit[s]:.3f} {L}" if np.isfinite(limit[s])
                        else "the jet's sequent depth (above the crown)")
             if drowned[s]:
                 out.append([f"submerged flow: the water at the gate, {depth[s]:.3f} {L}, stands above {sequent}; "
-                            f"depth behind the gate {y1[s]:.3f} {L} (free flow would need {y_free[s]:.3f} {L})"])
+                            f"depth behind the gate {behind(y1[s])} (free flow would need {behind(y_free[s])})"])
             else:
-                out.append([f"free flow: depth behind the gate {y1[s]:.3f} {L}; the jump below stays clear of the "
+                out.append([f"free flow: depth behind the gate {behind(y1[s])}; the jump below stays clear of the "
                             f"gate while the tailwater there is under {sequent}"])
         return out
 
