@@ -229,3 +229,23 @@ def test_open_channels_report_no_surcharge():
                                       roughness=0.015)], discharge=5.0, downstream=gv.FixedDepth(2.0)).solve()
     assert not p.surcharged.any() and np.isnan(p.head_above_crown).all()
     assert p.max_head_above_crown == 0.0 and p.surcharged_lengths.tolist() == [0.0]
+
+
+def test_upstream_gate_in_a_conduit_whose_pool_stands_above_the_crown():
+    # The pool a free jet needs behind the gate: specific energy of the jet (energy equation, Henderson
+    # 1966 §6.5, from memory) above the conduit's energy running just full: the gate still releases its
+    # jet into the reach, and the note says the water behind it stands above the crown.
+    pipe = gv.Circular(diameter=3.0)
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=0.001, section=pipe, roughness=0.015)],
+                     discharge=12.0, upstream=gv.SluiceGate(opening=0.3), downstream=gv.FixedDepth(1.5))
+    jet = gv.SluiceGate(opening=0.3).jet_depth
+    assert gv.specific_energy(pipe, 12.0, jet) > gv.specific_energy(pipe, 12.0, 3.0)
+    p = reach.solve(n_steps=40)
+    assert p.depth[0] == pytest.approx(jet, rel=1e-12)
+    detail = [c.text for c in p.controls if c.kind == "control detail"]
+    assert any("above the conduit's crown" in t for t in detail)
+    # a pool below the crown is computed as before
+    low = reach.model_copy(update={"discharge": 2.0, "upstream": gv.SluiceGate(opening=0.6)})
+    q = low.solve(n_steps=40)
+    text = next(c.text for c in q.controls if c.kind == "control detail" and "behind the gate" in c.text)
+    assert "above the conduit's crown" not in text
