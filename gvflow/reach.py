@@ -1,4 +1,4 @@
-"""The reach model: chained prismatic segments between two boundary controls.
+"""The reach model: chained segments (prismatic, or changing along their length) between two boundary controls.
 
 >>> import gvflow as gv
 >>> reach = gv.Reach(
@@ -71,7 +71,7 @@ AnyControl = Annotated[
 
 
 class Segment(FrozenModel):
-    """One prismatic piece of a reach.
+    """One piece of a reach: a length, a slope and a section (prismatic unless ``section_downstream`` is given).
 
     Parameters
     ----------
@@ -80,7 +80,8 @@ class Segment(FrozenModel):
     slope : float
         Bed slope S0 [-]: positive falling downstream, 0 horizontal, negative adverse.
     section : Section
-        Cross-section (the same all along the segment).
+        Cross-section (at the segment's head when ``section_downstream`` is
+        given; else the same all along the segment).
     roughness : float, Manning, Chezy or DarcyWeisbach
         Boundary resistance; a float is Manning's n. Leave it out for a
         :class:`~gvflow.Surveyed` section, which carries its own roughness per zone.
