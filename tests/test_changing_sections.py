@@ -58,7 +58,7 @@ def test_standard_step_through_a_transition_matches_the_hand_energy_balance(b_up
     widths = b_up + (b_dn - b_up) * p.x / 200.0
     ref = hand_standard_step(widths, p.x, 1.5, 0.1, 0.3)
     np.testing.assert_allclose(p.depth, ref, rtol=1e-10, atol=0)
-    assert np.max(np.abs(p.depth - ref)) < 1e-3  # the 1 mm, with room to spare
+    assert np.max(np.abs(p.depth - ref)) < 1e-3  # within 1 mm of the hand balance, with room to spare
     # the sections are exact at both ends and linear between
     np.testing.assert_allclose(p.top_width, widths, rtol=1e-12)
     assert p.top_width[0] == b_up and p.top_width[-1] == b_dn
