@@ -62,10 +62,10 @@ from .result import ControlNote, Profile, ProfilePiece
 from .section_plot import plot_section
 from .sections import (
     Circular,
-    IneffectiveArea,
     Parabolic,
     Rectangular,
     Section,
+    StillWater,
     Surveyed,
     Trapezoidal,
     Triangular,
@@ -120,7 +120,7 @@ __all__ = [
     "ReachFileError", "GVFlowWarning",
     # sections
     "Section", "Rectangular", "Trapezoidal", "Triangular", "Circular", "Parabolic", "WideRectangular", "Surveyed",
-    "IneffectiveArea",
+    "StillWater",
     # friction
     "Manning", "Chezy", "DarcyWeisbach", "conveyance", "friction_slope", "colebrook_friction_factor",
     "composite_manning", "COMPOSITE_ROUGHNESS_METHODS",

@@ -353,7 +353,7 @@ class _Packed:
     __hash__ = None
 
 
-class IneffectiveArea(BaseModel):
+class StillWater(BaseModel):
     """Part of a surveyed section that holds water but conveys none until the water rises above a level.
 
     Water standing beside a culvert or bridge opening, or behind a levee until it is
@@ -392,9 +392,9 @@ class Surveyed(Section):
     zone_edges : sequence of float, optional
         Offsets of the vertical lines dividing the zones, increasing and strictly inside the
         section; ``len(roughness) == len(zone_edges) + 1``. Omit for one zone.
-    ineffective : sequence of IneffectiveArea, optional
+    still_water : sequence of StillWater, optional
         Areas that hold water but convey none until the water rises above their elevation
-        (see :class:`IneffectiveArea`). Their bounds divide the zones further, like zone edges.
+        (see :class:`StillWater`). Their bounds divide the zones further, like zone edges.
 
     Notes
     -----
@@ -423,7 +423,7 @@ class Surveyed(Section):
     elevation: list[Annotated[float, Field(allow_inf_nan=False)]]
     roughness: list[Manning | Chezy]
     zone_edges: list[Annotated[float, Field(allow_inf_nan=False)]] = Field(default_factory=list)
-    ineffective: list[IneffectiveArea] = Field(default_factory=list)
+    still_water: list[StillWater] = Field(default_factory=list)
 
     _packed: _Packed = PrivateAttr()
     _zone_roughness: tuple = PrivateAttr()
@@ -471,19 +471,19 @@ class Surveyed(Section):
         if len({type(r) for r in self.roughness}) > 1:
             raise InvalidInputError("Surveyed: every zone's roughness must use the same law (all Manning's n or "
                                     "all Chezy's C)")
-        for i, area in enumerate(self.ineffective):
+        for i, area in enumerate(self.still_water):
             if not (x[0] <= area.left < area.right <= x[-1]):
-                raise InvalidInputError(f"Surveyed: ineffective[{i}] must have offsets with left < right inside the "
+                raise InvalidInputError(f"Surveyed: still_water[{i}] must have offsets with left < right inside the "
                                         f"section ({x[0]:g} to {x[-1]:g}); got {area.left:g} to {area.right:g}")
-        # core zones: the roughness zones, divided further at the bounds of ineffective areas
-        cuts = sorted({*edges, *(v for a in self.ineffective for v in (a.left, a.right) if x[0] < v < x[-1])})
+        # core zones: the roughness zones, divided further at the bounds of still-water areas
+        cuts = sorted({*edges, *(v for a in self.still_water for v in (a.left, a.right) if x[0] < v < x[-1])})
         bounds = [x[0], *cuts, x[-1]]
         rough, active, zone_of = [], [], []
         for lo, hi in zip(bounds[:-1], bounds[1:], strict=True):
             mid = 0.5 * (lo + hi)
             zone_of.append(int(np.searchsorted(edges, mid)))
             rough.append(self.roughness[zone_of[-1]])
-            levels = [a.elevation - min(z) for a in self.ineffective if a.left <= mid <= a.right]
+            levels = [a.elevation - min(z) for a in self.still_water if a.left <= mid <= a.right]
             active.append(max([0.0, *levels]))
         self._zone_roughness = tuple(rough)
         self._zone_of = tuple(zone_of)
@@ -502,7 +502,7 @@ class Surveyed(Section):
     @property
     def zone_count(self) -> int:
         """Number of zones the section is divided into: the roughness zones, divided further at the bounds of
-        ineffective areas."""
+        still-water areas."""
         return len(self._zone_roughness)
 
     def core_roughness(self) -> tuple[int, list[float]]:
@@ -512,7 +512,7 @@ class Surveyed(Section):
     def core_zone_rows(self, rows) -> np.ndarray:
         """Roughness rows per roughness zone, shape (n, len(roughness)), as rows per core zone (n, zone_count).
 
-        The core divides the roughness zones further at the bounds of ineffective areas; each of those
+        The core divides the roughness zones further at the bounds of still-water areas; each of those
         zones takes the coefficient of the roughness zone it lies in.
         """
         return np.ascontiguousarray(np.asarray(rows, dtype=float)[:, list(self._zone_of)])
@@ -605,13 +605,13 @@ def matched_parameters(upstream: Section, downstream: Section):
 
     Geometric sections must be of one kind (a rectangle, a trapezoid and a triangle are one kind: bed
     width and two bank slopes); their parameters are interpolated as they are (bed width, bank slopes,
-    diameter). Two surveyed sections must have the same number of zones (after the cuts at ineffective
+    diameter). Two surveyed sections must have the same number of zones (after the cuts at still-water
     areas). Each is split at its lowest point and both sides are described by the ground length from
     that point outwards, as a fraction of the side's length; both sections are resampled at the union
     of their points' fractions (points added on straight ground change nothing), with offsets taken
     from the lowest point. So the lowest points, the ends and the zones of the two sections correspond,
     and every section between has its lowest point at depth 0. Zone edges (as offsets from the lowest
-    point) and the depths below which zones are ineffective are interpolated the same way.
+    point) and the depths below which zones convey nothing are interpolated the same way.
     """
     kind, par_up = upstream.core_params()
     kind_dn, par_dn = downstream.core_params()

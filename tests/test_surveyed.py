@@ -172,12 +172,12 @@ def test_section_plot_draws_levels_and_zone_velocities():
     assert ax.get_xlabel() == "Offset [ft]"
 
 
-def test_ineffective_area_conveys_nothing_until_the_water_rises_above_it():
-    # a rectangular opening 10 wide with ponded areas either side, ineffective below elevation 3.5
+def test_still_water_area_conveys_nothing_until_the_water_rises_above_it():
+    # a rectangular opening 10 wide with ponded areas either side, still water below elevation 3.5
     ground = dict(offset=[-50, -50, 0, 0, 10, 10, 60, 60], elevation=[6, 2, 2, 0, 0, 2, 2, 6], roughness=0.03)
     plain = gv.Surveyed(**ground)
-    ponded = gv.Surveyed(**ground, ineffective=[gv.IneffectiveArea(left=-50, right=0, elevation=3.5),
-                                                 gv.IneffectiveArea(left=10, right=60, elevation=3.5)])
+    ponded = gv.Surveyed(**ground, still_water=[gv.StillWater(left=-50, right=0, elevation=3.5),
+                                                 gv.StillWater(left=10, right=60, elevation=3.5)])
     # below 3.5 only the opening's own area, width and conveyance count: a 10-wide channel whose walls
     # are wetted up to the ponds' floor at 2 (above it the zone edges are division lines, not perimeter)
     for y in (2.5, 3.0, 3.49):
@@ -189,8 +189,8 @@ def test_ineffective_area_conveys_nothing_until_the_water_rises_above_it():
     # from 3.5 up it conveys like the rest of its zone (counts in full)
     assert ponded.area(3.6) == pytest.approx(plain.area(3.6))
     assert ponded.zone_count == 3
-    with pytest.raises(gv.InvalidInputError, match="ineffective"):
-        gv.Surveyed(**ground, ineffective=[gv.IneffectiveArea(left=5, right=-5, elevation=3.0)])
+    with pytest.raises(gv.InvalidInputError, match="still_water"):
+        gv.Surveyed(**ground, still_water=[gv.StillWater(left=5, right=-5, elevation=3.0)])
 
 
 def _reach(section, roughness):

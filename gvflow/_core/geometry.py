@@ -16,7 +16,7 @@ Kinds and parameter arrays
                ``[n, nz, x_0..x_{n-1}, z_0..z_{n-1}, e_0..e_nz, h_0..h_{nz-1}]`` with
                offsets x non-decreasing, ground z measured above the lowest point, zone
                bounds e (e_0 = x_0, e_nz = x_{n-1}, the interior ones the zone edges), and
-               per zone the depth h below which it is ineffective (0: always effective).
+               per zone the depth h below which it conveys nothing (0: always conveys).
 
 Geometry of every kind is exact (Chow, *Open-Channel Hydraulics*, 1959,
 table 2-1 for the geometric shapes; for a polyline the wetted area is the
@@ -32,7 +32,7 @@ Conventions of the surveyed kind
   foot (the deeper side).
 - Above an end point the section is closed by a vertical wall (the end point
   extended upwards), counted as wetted perimeter of the end zone.
-- A zone that is ineffective below a depth h (water standing beside a culvert opening or
+- A zone that conveys nothing below a depth h (water standing beside a culvert opening or
   behind a levee, holding water without conveying it) is left out of the flow area, top
   width, wetted perimeter and conveyance while y < h, and counts in full from y = h.
 - At a breakpoint elevation, where the top width jumps (a flat floodplain at the
@@ -156,7 +156,7 @@ def surveyed_zone_from(par, y, i, j0):
     a = p = t = m = dt = dp = 0.0
     j1 = j0
     if y < par[3 + 2 * n + nz + i]:
-        return a, p, t, m, dt, dp, j1  # ineffective below its activation depth
+        return a, p, t, m, dt, dp, j1  # still water below its activation depth
     for j in range(j0, n - 1):
         xa = par[xs + j]
         if xa > hi:
