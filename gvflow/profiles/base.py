@@ -324,45 +324,29 @@ def subset(seg: SegmentBatch, idx: np.ndarray) -> SegmentBatch:
 def depth_with_force(seg: SegmentBatch, force):
     """Supercritical depth whose specific force in ``seg`` is ``force``; critical depth (flagged) where the
     force is below the section's least specific force (at critical depth)."""
-    yc = seg.yc
-    ok = force > seg.specific_force(yc)
-    out = yc.copy()
-    if np.any(ok):
-        idx = np.flatnonzero(ok)
-        sub = subset(seg, idx)
-        target = force[idx]
-
-        def fun(z):
-            return sub.specific_force(z) - target
-
-        out[idx] = _shallow_root(fun, sub.yc, "supercritical depth below an inflow")
-    return out, ~ok
-
-
-def _shallow_root(fun, yc, what):
-    """The depth below ``yc`` where ``fun`` (positive in shallow water, negative at ``yc``: specific energy or
-    force less a target, on the supercritical branch) vanishes, for each element."""
-    lo = yc * 1e-3
-    for _ in range(60):
-        need = fun(lo) < 0
-        if not np.any(need):
-            break
-        lo = np.where(need, lo * 0.5, lo)
-    return bracketed_root(fun, lo, yc, rtol=1e-13, what=what)
+    return _depth_matching(seg, force, False, SUPER, "supercritical depth below an inflow")
 
 
 def depth_with_energy(seg: SegmentBatch, e, branch):
     """Depth on ``branch`` whose specific energy in ``seg`` is ``e``; critical depth (flagged) where none is."""
+    return _depth_matching(seg, e, True, branch, "depth across a junction")
+
+
+def _depth_matching(seg: SegmentBatch, value, energy: bool, branch, what):
+    """Depth on ``branch`` where the specific energy (``energy``) or force, least at critical depth, equals
+    ``value``; critical depth, flagged, where ``value`` is at or below that least value (the subcritical
+    branch is asked of the energy only)."""
     yc = seg.yc
-    ok = e > seg.specific_energy(yc)
+    ok = value > (seg.specific_energy(yc) if energy else seg.specific_force(yc))
     out = yc.copy()
     if np.any(ok):
         idx = np.flatnonzero(ok)
         sub = subset(seg, idx)
-        target = e[idx]
+        target = value[idx]
+        at = sub.specific_energy if energy else sub.specific_force
 
         def fun(z):
-            return sub.specific_energy(z) - target
+            return at(z) - target
 
         if branch == SUB:
             lo = sub.yc
@@ -374,9 +358,16 @@ def depth_with_energy(seg: SegmentBatch, e, branch):
                     raise NoSolutionError(
                         f"the water entering {seg.section!r} from the segment below would stand above its crown: "
                         "the conduit flows full there; pressure flow is outside gvflow's free-surface model")
-            out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what="depth across a junction")
+            out[idx] = bracketed_root(fun, lo, hi, rtol=1e-13, what=what)
         else:
-            out[idx] = _shallow_root(fun, sub.yc, "depth across a junction")
+            # supercritical: fun is positive in shallow water and negative at critical depth
+            lo = sub.yc * 1e-3
+            for _ in range(60):
+                need = fun(lo) < 0
+                if not np.any(need):
+                    break
+                lo = np.where(need, lo * 0.5, lo)
+            out[idx] = bracketed_root(fun, lo, sub.yc, rtol=1e-13, what=what)
     return out, ~ok
 
 
