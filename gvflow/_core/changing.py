@@ -32,7 +32,7 @@ import math
 from ._jit import kernel
 from .flow import critical_depth, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
-from .march import station_state, station_values, step_from
+from .march import evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
 from .records import Channel
 from .resistance import friction_slope, froude_squared, hydraulics, sf_average
 
@@ -66,23 +66,25 @@ def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha
                     contraction_first):
     """Depth at station 2 (channel ``ch2``, signed distance d from station 1 whose state e1, sf1, hv1 in its
     own channel ``ch1`` is known), with the transition loss of the module notes: (depth, code, whether it
-    was a contraction), code as :func:`~gvflow._core.march.step`. The coefficient of
-    ``contraction_first`` is tried first (the previous interval's, usually right)."""
+    was a contraction, and the state e, sf, hv at that depth, which starts the next step), code as
+    :func:`~gvflow._core.march.step`. The coefficient of ``contraction_first`` is tried first (the previous
+    interval's, usually right)."""
     c1, c2 = (cc, ce) if contraction_first else (ce, cc)
     y2, code = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c1, avg, ymax, tol, guess)
-    if code != 0 or cc == ce:
-        return y2, code, contraction_first
-    hv2 = station_state(ch2, fl, q, alpha, y2)[2]
-    if ((hv2 - hv1) * d > 0.0) == contraction_first:
-        return y2, code, contraction_first  # the velocity head changes the way assumed
+    if code != 0:
+        return y2, code, contraction_first, math.nan, math.nan, math.nan
+    e2, sf2, hv2, _ = station_state(ch2, fl, q, alpha, y2)
+    if cc == ce or ((hv2 - hv1) * d > 0.0) == contraction_first:
+        return y2, code, contraction_first, e2, sf2, hv2  # the velocity head changes the way assumed
     y3, code3 = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c2, avg, ymax, tol, y2)
     if code3 != 0:
-        return y3, code3, not contraction_first
-    hv3 = station_state(ch2, fl, q, alpha, y3)[2]
-    if ((hv3 - hv1) * d > 0.0) != contraction_first:
-        return y3, 0, not contraction_first  # the other way, as assumed the second time
-    # neither assumption holds: the velocity head hardly changes, and so neither does the loss
-    return (y2, 0, contraction_first) if abs(hv2 - hv1) <= abs(hv3 - hv1) else (y3, 0, not contraction_first)
+        return y3, code3, not contraction_first, math.nan, math.nan, math.nan
+    e3, sf3, hv3, _ = station_state(ch2, fl, q, alpha, y3)
+    if ((hv3 - hv1) * d > 0.0) != contraction_first or abs(hv3 - hv1) < abs(hv2 - hv1):
+        # the other way, as assumed the second time; or neither assumption holds (the velocity head hardly
+        # changes, and so neither does the loss) and this one changes it less
+        return y3, 0, not contraction_first, e3, sf3, hv3
+    return y2, 0, contraction_first, e2, sf2, hv2
 
 
 @kernel
@@ -203,20 +205,22 @@ ROUGH_CRITICAL = 1e-3
 
 
 @kernel
-def _interval(cb, dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub, yc_hint,
-              contraction_first):
-    """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d):
-    (depth, code, stations done, critical depth at the end, whether the last step was a contraction).
-    ``yc_hint`` is the critical depth at t1; away from critical depth it is carried along by one scaling
-    step per station, yc ~ hint Fc²(hint)^(1/3) (exact for a rectangle), which keeps it close enough to
-    bound the branch, and taken precisely (:func:`critical_near`) near critical depth or after a failed
-    step."""
+def _interval(cb, dn, fl, s, q, s0, y1, e1, sf1, hv1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub,
+              yc_hint, contraction_first):
+    """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d), from depth
+    y1 whose state e1, sf1, hv1 is known (:func:`~gvflow._core.march.station_state`; unused with lateral
+    inflow): (depth, code, stations done, critical depth at the end, whether the last step was a
+    contraction, the state at the end). ``yc_hint`` is the critical depth at t1; away from critical depth it
+    is carried along by one scaling step per station, yc ~ hint Fc²(hint)^(1/3) (exact for a rectangle),
+    which keeps it close enough to bound the branch, and taken precisely (:func:`critical_near`) near
+    critical depth or after a failed step."""
     y = y1
     ch1 = channel_at(cb, dn, s, t1)
     ta = t1
     yc2 = yc_hint
     code = 0
     y2 = y
+    e2, sf2, hv2 = e1, sf1, hv1
     for k in range(nsub):
         tb = t1 + (t2 - t1) * (k + 1) / nsub
         ch2 = channel_at(cb, dn, s, tb)
@@ -233,8 +237,7 @@ def _interval(cb, dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, t
             if dn.added != 0.0:
                 y2, code = momentum_step(ch2, fl, q1, q2, s0, y, d / nsub, yc2, branch, alpha, avg, tol)
             else:
-                e1, sf1, hv1, _ = station_state(ch1, fl, q1, alpha, y)
-                y2, code, contraction_first = transition_step(
+                y2, code, contraction_first, e2, sf2, hv2 = transition_step(
                     ch1, ch2, fl, q2, s0, y, e1, sf1, hv1, d / nsub, yc2, branch, alpha, cc, ce, avg,
                     max_depth(ch2.kind, ch2.par), tol, guess if nsub == 1 else y, contraction_first)
             if near or (code == 0 and abs(y2 - yc2) > NEAR_CRITICAL * yc2):
@@ -242,11 +245,12 @@ def _interval(cb, dn, fl, s, q, s0, y1, t1, t2, d, branch, alpha, cc, ce, avg, t
             near = True  # close to critical depth, or failed with the carried one: again with the precise one
             yc2 = critical_near(ch2, fl, q2, alpha, yc2, tol)
         if code != 0:
-            return y2, code, k, yc2, contraction_first
+            return y2, code, k, yc2, contraction_first, e2, sf2, hv2
         y = y2
+        e1, sf1, hv1 = e2, sf2, hv2
         ch1 = ch2
         ta = tb
-    return y, 0, nsub, yc2, contraction_first
+    return y, 0, nsub, yc2, contraction_first, e1, sf1, hv1
 
 
 @kernel
@@ -260,50 +264,46 @@ def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, unt
     reaches critical depth in it (code 1, ``out_xc`` where the sub-steps stopped)."""
     m = x.shape[0]
     watch = until_force.shape[0] > 0
+    even = evenly_spaced(x)
     for s in range(q.shape[0]):
         y = y0[s]
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
         out_code[s] = 0
-        if watch and specific_force(channel_at(cb, dn, s, t[0]), fl, q[s] + dn.added * t[0], y, alpha) < \
-                until_force[s, 0] * (1.0 - force_tol):
-            out_n[s] = 1
-            out_code[s] = 4
-            for jj in range(1, m):
-                out_y[s, jj] = math.nan
+        ch0 = channel_at(cb, dn, s, t[0])
+        if watch and specific_force(ch0, fl, q[s] + dn.added * t[0], y, alpha) < until_force[s, 0] * (1.0 - force_tol):
+            stop_march(out_y, out_n, out_code, s, 1, 4)
             continue
         yc = yc0[s]
         if not (yc > 0.0):
-            yc = critical_depth(channel_at(cb, dn, s, t[0]), fl, q[s] + dn.added * t[0], alpha)[0]
+            yc = critical_depth(ch0, fl, q[s] + dn.added * t[0], alpha)[0]
+        e, sf, hv, _ = station_state(ch0, fl, q[s] + dn.added * t[0], alpha, y)
         contraction = True
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            y2, code, done, yc2, way = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch, alpha,
-                                                 cc, ce, avg, tol, y, 1, yc, contraction)
+            guess = extrapolate(x, out_y[s], j, even)
+            y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],
+                                                               t[j], d, branch, alpha, cc, ce, avg, tol, guess, 1,
+                                                               yc, contraction)
             nsub = 4
             while code == 1 and nsub <= 64:
-                y2, code, done, yc2, way = _interval(cb, dn, fl, s, q[s], s0, y, t[j - 1], t[j], d, branch,
-                                                     alpha, cc, ce, avg, tol, y, nsub, yc, contraction)
+                y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],
+                                                                   t[j], d, branch, alpha, cc, ce, avg, tol, y,
+                                                                   nsub, yc, contraction)
                 if code == 1 and nsub == 64:
                     out_xc[s] = x[j - 1] + d * done / nsub
                 nsub *= 4
             if code != 0:
-                out_n[s] = j
-                out_code[s] = code
-                for jj in range(j, m):
-                    out_y[s, jj] = math.nan
+                stop_march(out_y, out_n, out_code, s, j, code)
                 break
             out_y[s, j] = y2
-            y = y2
+            y, e, sf, hv = y2, e2, sf2, hv2
             yc = yc2
             contraction = way
             if watch and specific_force(channel_at(cb, dn, s, t[j]), fl, q[s] + dn.added * t[j], y, alpha) < \
                     until_force[s, j] * (1.0 - force_tol):
-                out_n[s] = j + 1
-                out_code[s] = 4
-                for jj in range(j + 1, m):
-                    out_y[s, jj] = math.nan
+                stop_march(out_y, out_n, out_code, s, j + 1, 4)
                 break
 
 

@@ -492,32 +492,32 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
         out_xc[s] = math.nan
         out_code[s] = 0
         if watch and specific_force(ch, fl, q[s], y, alpha) < until_force[s, 0] * (1.0 - force_tol):
-            out_n[s] = 1
-            out_code[s] = 4
-            for jj in range(1, m):
-                out_y[s, jj] = math.nan
+            stop_march(out_y, out_n, out_code, s, 1, 4)
             continue
         for j in range(1, m):
             d = x[j] - x[j - 1]
             y2, code, dist, state = advance(ch, fl, q[s], s0, y, d, yc[s], branch, alpha, ce, avg, ymax, tol,
                                             extrapolate(x, out_y[s], j, even), state)
             if code != 0:
-                out_n[s] = j
-                out_code[s] = code
+                stop_march(out_y, out_n, out_code, s, j, code)
                 if code == 1:
                     frac = min(max(dist / abs(d), 0.0), 1.0) if d != 0.0 else 0.0
                     out_xc[s] = x[j - 1] + frac * d
-                for jj in range(j, m):
-                    out_y[s, jj] = math.nan
                 break
             out_y[s, j] = y2
             y = y2
             if watch and specific_force(ch, fl, q[s], y, alpha) < until_force[s, j] * (1.0 - force_tol):
-                out_n[s] = j + 1
-                out_code[s] = 4
-                for jj in range(j + 1, m):
-                    out_y[s, jj] = math.nan
+                stop_march(out_y, out_n, out_code, s, j + 1, 4)
                 break
+
+
+@kernel
+def stop_march(out_y, out_n, out_code, s, n_valid, code):
+    """Scenario s of a march stops after ``n_valid`` stations, for the reason ``code``: the rest are NaN."""
+    out_n[s] = n_valid
+    out_code[s] = code
+    for jj in range(n_valid, out_y.shape[1]):
+        out_y[s, jj] = math.nan
 
 
 @kernel
