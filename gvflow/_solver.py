@@ -37,6 +37,7 @@ from .errors import ControlError, ConvergenceError, InvalidInputError, NoSolutio
 from .profiles.base import SegmentBatch
 from .profiles.base import depth_with_energy as _depth_with_energy
 from .profiles.base import depth_with_force as _depth_with_force
+from .profiles.base import pressure_head_with_energy as _pressure_head_with_energy
 from .profiles.base import subset as _subset
 from .profiles.classify import SLOPE_CLASSES
 from .structures.gates import gate_pool_depth
@@ -152,20 +153,6 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch, gain: flo
     if branch == SUB and seg_to.section.closed:
         return _pressure_head_with_energy(seg_to, e)
     return _depth_with_energy(seg_to, e, branch)
-
-
-def _pressure_head_with_energy(seg: SegmentBatch, e):
-    """Subcritical depth in a closed ``seg`` with specific energy ``e``, or its pressure head where ``e``
-    exceeds the energy of the conduit just full (surcharged: head = D + e - E(D)); (depth, critical flag)."""
-    top = seg.section.max_depth
-    e_full = seg.specific_energy(np.full(seg.n, top))
-    over = e > e_full
-    out, flag = np.empty(e.shape), np.zeros(e.shape, bool)
-    out[over] = top + (e - e_full)[over]
-    if not over.all():
-        idx = np.flatnonzero(~over)
-        out[idx], flag[idx] = _depth_with_energy(_subset(seg, idx), e[idx], SUB)
-    return out, flag
 
 
 def _through_gate(gate, seg_up: SegmentBatch, seg_dn: SegmentBatch, jet, tail):

@@ -232,20 +232,22 @@ def test_open_channels_report_no_surcharge():
 
 
 def test_upstream_gate_in_a_conduit_whose_pool_stands_above_the_crown():
-    # The pool a free jet needs behind the gate: specific energy of the jet (energy equation, Henderson
-    # 1966 §6.5, from memory) above the conduit's energy running just full: the gate still releases its
-    # jet into the reach, and the note says the water behind it stands above the crown.
+    # The pool a free jet needs behind the gate: the jet's specific energy (energy from the pool to the
+    # vena contracta, Henderson 1966 §6.5, from memory). Above the energy of the conduit running just full
+    # the pool is a pressure head: with the velocity Q/A_full fixed, head = D + E_jet - E(D), the hand
+    # energy balance; the gate still releases its jet into the reach.
     pipe = gv.Circular(diameter=3.0)
     reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=0.001, section=pipe, roughness=0.015)],
                      discharge=12.0, upstream=gv.SluiceGate(opening=0.3), downstream=gv.FixedDepth(1.5))
     jet = gv.SluiceGate(opening=0.3).jet_depth
-    assert gv.specific_energy(pipe, 12.0, jet) > gv.specific_energy(pipe, 12.0, 3.0)
+    e_jet, e_full = gv.specific_energy(pipe, 12.0, jet), gv.specific_energy(pipe, 12.0, 3.0)
+    assert e_jet > e_full
     p = reach.solve(n_steps=40)
     assert p.depth[0] == pytest.approx(jet, rel=1e-12)
-    detail = [c.text for c in p.controls if c.kind == "control detail"]
-    assert any("above the conduit's crown" in t for t in detail)
-    # a pool below the crown is computed as before
+    detail = next(c.text for c in p.controls if c.kind == "control detail" and "behind the gate" in c.text)
+    assert f"{3.0 + e_jet - e_full:.3f} m (a pressure head" in detail
+    # a pool below the crown is a free surface, as before
     low = reach.model_copy(update={"discharge": 2.0, "upstream": gv.SluiceGate(opening=0.6)})
-    q = low.solve(n_steps=40)
-    text = next(c.text for c in q.controls if c.kind == "control detail" and "behind the gate" in c.text)
-    assert "above the conduit's crown" not in text
+    text = next(c.text for c in low.solve(n_steps=40).controls
+                if c.kind == "control detail" and "behind the gate" in c.text)
+    assert "pressure head" not in text

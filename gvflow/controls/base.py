@@ -302,24 +302,8 @@ class SluiceGate(Control):
             the gate would stand below its lip, so the gate does not control.
         """
         jet = np.full(state.seg.n, self.jet_depth)
-        seg = state.seg
-        if seg.section.closed:
-            # in a conduit the pool a free jet needs may stand above the crown: the conduit runs full behind the
-            # gate (pressure flow, outside the reach); the gate still releases its jet, and the depth behind it
-            # is reported as infinite (above the crown)
-            full = seg.specific_energy(jet) > seg.specific_energy(np.full(seg.n, seg.section.max_depth))
-            if np.any(full):
-                out = np.full(seg.n, np.inf)
-                idx = np.flatnonzero(~full)
-                if idx.size:
-                    out[idx] = self._pool(seg.take(idx), jet[idx], None if tailwater is None else
-                                          np.asarray(tailwater, dtype=float)[idx])
-                return out
-        return self._pool(seg, jet, tailwater)
-
-    def _pool(self, seg, jet, tailwater):
         try:
-            y1, _ = gate_pool_depth(seg, seg, jet, tailwater, opening=self.opening)
+            y1, _ = gate_pool_depth(state.seg, state.seg, jet, tailwater, opening=self.opening)
         except NoSolutionError as exc:
             raise ControlError(
                 f"SluiceGate(opening={self.opening:g}): the opening is above the depth the discharge needs behind "
@@ -335,8 +319,10 @@ class SluiceGate(Control):
         drowned = depth > self.jet_depth * (1 + 1e-9)
         y_free = self.upstream_depth(state)
         y1 = self.upstream_depth(state, tailwater=np.where(drowned, depth, np.nan))
+        top = state.seg.section.max_depth
+
         def behind(y):
-            return f"{y:.3f} {L}" if np.isfinite(y) else "above the conduit's crown (full, pressure flow)"
+            return f"{y:.3f} {L}" + (" (a pressure head: the conduit runs full behind the gate)" if y > top else "")
 
         out = []
         for s in range(state.seg.n):

@@ -332,6 +332,20 @@ def depth_with_energy(seg: SegmentBatch, e, branch):
     return _depth_matching(seg, e, True, branch, "depth across a junction")
 
 
+def pressure_head_with_energy(seg: SegmentBatch, e):
+    """Subcritical depth in a closed ``seg`` with specific energy ``e``, or its pressure head where ``e``
+    exceeds the energy of the conduit just full (surcharged: head = D + e - E(D)); (depth, critical flag)."""
+    top = seg.section.max_depth
+    e_full = seg.specific_energy(np.full(seg.n, top))
+    over = e > e_full
+    out, flag = np.empty(e.shape), np.zeros(e.shape, bool)
+    out[over] = top + (e - e_full)[over]
+    if not over.all():
+        idx = np.flatnonzero(~over)
+        out[idx], flag[idx] = depth_with_energy(subset(seg, idx), e[idx], SUB)
+    return out, flag
+
+
 def _depth_matching(seg: SegmentBatch, value, energy: bool, branch, what):
     """Depth on ``branch`` where the specific energy (``energy``) or force, least at critical depth, equals
     ``value``; critical depth, flagged, where ``value`` is at or below that least value (the subcritical

@@ -52,7 +52,7 @@ from .._core.codes import SUB
 from .._roots import bracketed_root
 from .._validate import positive_array, scalar_or_array
 from ..errors import InvalidInputError, NoSolutionError
-from ..profiles.base import depth_with_energy, subset
+from ..profiles.base import depth_with_energy, pressure_head_with_energy, subset
 from ..units import UnitsLike, resolve_units
 
 __all__ = [
@@ -425,7 +425,8 @@ def gate_pool_depth(seg_up, seg_dn, jet, tail=None, *, opening):
 
         y_v[idx] = bracketed_root(fun, jet[idx], tail[idx], rtol=1e-13, what="water level at a submerged gate")
     e = y_v + seg_dn.alpha * q * q / (2.0 * g * a_j * a_j)
-    y_up, none = depth_with_energy(seg_up, e, SUB)
+    # (in a conduit the pool may stand above the crown: the conduit runs full behind the gate, at a pressure head)
+    y_up, none = pressure_head_with_energy(seg_up, e) if seg_up.section.closed else depth_with_energy(seg_up, e, SUB)
     if np.any(none):
         i = int(np.flatnonzero(none)[0])
         raise NoSolutionError(f"the gate does not hold the water back at discharge {q[i]:g}: the jet carries less "
