@@ -100,14 +100,17 @@ def test_standard_step_energy_balance_closes(case, average, eddy):
     # not over the whole interval. Those intervals are found with the single-step kernel.
     ch = channel(*sec.core_params(), 0, n)
     fl = fluid(gv.SI)
-    single = np.array([M.step(ch, fl, q, s0, y[j], d[j], float(seg.yc[0]), branch, 1.0, eddy,
-                              AVERAGES[average], sec.max_depth, 1e-12, y[j])[1] == 0 for j in range(k - 1)])
+    one = [M.step(ch, fl, q, s0, y[j], d[j], float(seg.yc[0]), branch, 1.0, eddy, AVERAGES[average],
+                  sec.max_depth, 1e-12, y[j]) for j in range(k - 1)]
+    single = np.array([code == 0 for _, code in one])
     # By design the march also splits an interval near critical depth (x(y) form) and one long against
-    # the relaxation length (sub-steps); the balance then holds per sub-step. Those are found here from
-    # the marcher's documented rule.
+    # the relaxation length (sub-steps), judged at both ends of the interval and at the far end of the
+    # single step it first tries; the balance then holds per sub-step. Those are found here from the
+    # marcher's documented rule.
     yc = float(seg.yc[0])
     rate = np.array([M.relaxation_rate(ch, fl, q, 1.0, y[j]) for j in range(k)])
-    rate = np.maximum(rate[:-1], rate[1:])  # at either end of the interval
+    tried = np.array([M.relaxation_rate(ch, fl, q, 1.0, y2) if code == 0 else 0.0 for y2, code in one])
+    rate = np.maximum(np.maximum(rate[:-1], rate[1:]), tried)
     whole = (np.abs(y[:-1] - yc) > M.CRITICAL_BAND * yc) & (rate * np.abs(d) <= 0.5)
     # the solver stops when its Newton update is below tol*y; the residual is that small too
     chk = single & whole
