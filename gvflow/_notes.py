@@ -68,6 +68,13 @@ def _unbalanced_jump(x, u, *, off) -> str:
             "it with more steps (n_steps)")
 
 
+def _jump_gains_energy(x, u, *, gain) -> str:
+    return (f"the jump at x = {x:.2f} balances momentum but gains {gain:.3f} {u.length} of specific energy, which "
+            "no real jump does: in a section with several critical depths the energy and momentum coefficients "
+            "differ and one-dimensional theory is least certain; read its position as a sign of where the regime "
+            "changes, not as a located jump")
+
+
 def _jump_swept_out(x, u, *, control) -> str:
     return (f"the downstream control ({control.describe(u)}) is too low to hold a jump: the supercritical flow "
             "leaves the reach and the jump forms downstream of it")
@@ -94,13 +101,19 @@ def _sections_far_apart(x, u, *, x_up, x_down, ratio, limit) -> str:
             "trusted; survey or interpolate a section between them (common practice)")
 
 
-def _several_critical(x, u, *, k, depths, x_end) -> str:
+def _several_critical(x, u, *, k, depths, x_end, used=None) -> str:
     shown = ", ".join(f"{d:.3f}" for d in depths)
-    return (f"in segment {k} the section has {len(depths)} critical depths ({shown} {u.length}): between them "
+    head = (f"in segment {k} the section has {len(depths)} critical depths ({shown} {u.length}): between them "
             f"specific energy has a local maximum, and from x = {x:.2f} to {x_end:.2f} {u.length} the water stands "
-            "in that band, where a profile can belong to either regime; gvflow does not yet follow the branch "
-            "through it, so treat the profile there as uncertain and check it (a finer spacing, method='ivp', or "
-            "a section drawn so that the band is not reached)")
+            "in that band, ")
+    if used is None:  # a section changing along the segment: its march takes the nearest critical depth
+        return head + ("where a profile can belong to either regime; between unlike sections gvflow does not "
+                       "yet follow the branch through it, so treat the profile there as uncertain and check it "
+                       "(a finer spacing, method='ivp', or a section drawn so that the band is not reached)")
+    return head + (f"where the compound Froude number decides the regime; each profile keeps to its branch, and "
+                   f"the segment's critical depth is {used:.3f} {u.length}, the one on the branch of its normal "
+                   "depth. One-dimensional theory is least certain in this band (the floodplain flow is shallow "
+                   "and the exchange with the main channel is left out): check the result with a finer spacing")
 
 
 def _choke(x, u, *, k, depth, yn) -> str:
@@ -151,6 +164,7 @@ FORMATTERS = {
     "critical control": _critical_control,
     "drowned jump": _drowned_jump,
     "unbalanced jump": _unbalanced_jump,
+    "jump gains energy": _jump_gains_energy,
     "jump swept out": _jump_swept_out,
     "jump on a sloping floor": _sloping_jump,
     "inflow": _inflow,

@@ -21,7 +21,7 @@ one march per segment and pass serves them all.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -201,18 +201,20 @@ def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
     return y, crit
 
 
-def _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub):
-    """Place each new jump of a changing segment k between its two stations, where the difference of the
-    two profiles' specific forces (linear between the stations) vanishes."""
+def _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub, only=None):
+    """Place each new jump of a changing segment k (of the scenarios ``only``, where given) between its two
+    stations, where the difference of the two profiles' specific forces (linear between the stations)
+    vanishes. A prismatic segment whose section has several critical depths places its jumps so too: a
+    search by marching between the stations could leave a profile's branch."""
     for j, (s, xj, _, _, kk, after, junc) in enumerate(jumps):
-        if kk != k or not math.isnan(xj):
+        if kk != k or not math.isnan(xj) or (only is not None and s not in only):
             continue
         r = int(np.flatnonzero(act == s)[0])
         i = after - i0  # local index of the last station where the supercritical profile governs
         d0 = msup[r, i] - msub[r, i]
         d1 = msup[r, i + 1] - msub[r, i + 1]
-        f = d0 / (d0 - d1) if np.isfinite(d1) and d0 != d1 else 1.0
-        f = min(max(f, 0.0), 1.0)
+        f = d0 / (d0 - d1) if np.isfinite(d0) and np.isfinite(d1) and d0 != d1 else 1.0
+        f = min(max(f, 0.0), 1.0) if np.isfinite(f) else 1.0
         ya = ysup[r, i] if not np.isfinite(ysup[r, i + 1]) else ysup[r, i] + f * (ysup[r, i + 1] - ysup[r, i])
         yb = sub_y[s, after] + f * (sub_y[s, after + 1] - sub_y[s, after])
         jumps[j] = (s, float(x[after] + f * (x[after + 1] - x[after])), float(ya), float(yb), kk, after, junc)
@@ -220,6 +222,12 @@ def _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub):
 
 def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, rival=None, full_at=None):
     """March a branch; where it fails fill critical depth, restarting where the slope allows.
+
+    A scenario whose section has several critical depths marches on the branch its start stands on:
+    between that branch's critical depth and the other limit of the branch, a maximum of specific energy
+    (:meth:`SegmentBatch.branch_limits`), which the profile cannot pass either; from the first station
+    beyond that limit on, the depth is the limit, flagged critical (the compound Froude number is 1
+    there).
 
     ``rival`` (n, m): specific force of the competing profile at each station; a
     scenario whose branch falls below it there may stop (depths NaN beyond).
@@ -229,6 +237,24 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
     """
     if seg.change is not None:
         return _march_changing(marcher, seg, x_order, y0, crit0, branch, rival)
+    several = seg.several_critical()
+    if not several.any():
+        return _march_prismatic(marcher, seg, x_order, y0, crit0, branch, can_restart, rival, full_at)
+    near, far = seg.branch_limits(y0, branch)
+    y, crit = _march_prismatic(marcher, replace(seg, yc=near), x_order, y0, crit0, branch, can_restart, rival,
+                               full_at)
+    with np.errstate(invalid="ignore"):
+        beyond = (y > far[:, None]) if branch == SUB else (y < far[:, None])
+    beyond &= several[:, None]
+    for r in np.flatnonzero(beyond.any(axis=1)):
+        j = int(np.flatnonzero(beyond[r])[0])
+        y[r, j:] = far[r]
+        crit[r, j:] = True
+    return y, crit
+
+
+def _march_prismatic(marcher, seg, x_order, y0, crit0, branch, can_restart, rival, full_at):
+    """:func:`_march_with_fallback` in a prismatic segment, on the branch bounded by ``seg.yc``."""
     n, m = seg.n, x_order.shape[0]
     crit = np.zeros((n, m), bool)
     crit[:, 0] = crit0
@@ -505,17 +531,44 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
     sf_c = [b[1] for b in built]  # friction slope at critical depth
+    code = np.stack([b[2] for b in built], axis=1)
+    for k, seg in enumerate(segs):
+        if seg.several_critical().any():
+            segs[k], sf_c[k], code[:, k] = _uniform_flow_branch(seg, sf_c[k], code[:, k], critical_tolerance)
     check_segments(reach, segs, sf_c, coef)  # depths and critical slopes no channel holds; warnings
     for seg in segs:
         seg.require_converged()
     x, seg_ix, bed, bounds = station_layout(reach, n_steps, max_step)
-    code = np.stack([b[2] for b in built], axis=1)
     return _Setup(reach=reach, marcher=marcher, controls=controls, q=q, segs=segs,
                   classes=_SLOPE_CLASS_NAMES[code], class_code=code,
                   can_sub_restart=[sf_c[k] > segs[k].slope for k in range(nseg)],
                   can_sup_start=[sf_c[k] < segs[k].slope for k in range(nseg)],
                   x=x, seg_ix=seg_ix, bed=bed, bounds=bounds, notes=[[] for _ in range(n)],
                   pressure_runs=[[] for _ in range(n)])
+
+
+def _uniform_flow_branch(seg, sf_c, code, tol):
+    """A section with several critical depths at a scenario's discharge: its critical depth is the one on
+    the branch of the uniform flow, where the flow passes critical at a brink (a subcritical normal depth) or
+    from a pool (a supercritical one), and its slope class follows the compound Froude number at normal
+    depth, not the comparison with the least-energy critical depth (:meth:`SegmentBatch.branch_limits`).
+    Returns the segment with those critical depths, the friction slopes there and the slope classes."""
+    rows = np.flatnonzero(seg.several_critical() & np.isfinite(seg.yn) & (seg.slope > 0))
+    if not rows.size:
+        return seg, sf_c, code
+    yn = seg.yn
+    near_sub, far_sub = seg.branch_limits(yn, SUB)
+    near_sup, _ = seg.branch_limits(yn, SUPER)
+    critical = np.abs(yn - near_sub) <= tol * near_sub
+    sub = ~critical & (yn > near_sub) & (yn <= far_sub)
+    yc = seg.yc.copy()
+    yc[rows] = np.where(sub | critical, near_sub, near_sup)[rows]
+    seg = replace(seg, yc=yc)
+    sf_c = np.asarray(sf_c, dtype=float).copy()
+    sf_c[rows] = seg.friction_slope(yc)[rows]
+    code = code.copy()
+    code[rows] = np.where(critical, _CRITICAL, np.where(sub, _MILD, _STEEP))[rows]
+    return seg, sf_c, code
 
 
 def _downstream_start(st: _Setup) -> _Downstream:
@@ -533,7 +586,7 @@ def _downstream_start(st: _Setup) -> _Downstream:
         ctrl.check_end("downstream")
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
-        governs_down = y_down >= last.yc * (1 - 1e-12)
+        governs_down = last.subcritical_at(y_down)
         must_be_sub = (code != _STEEP) & (code != _CRITICAL) & ~governs_down
         if must_be_sub.any():
             i = int(np.flatnonzero(must_be_sub)[0])
@@ -600,6 +653,10 @@ def _upstream_start(st: _Setup, sub: _SubPass) -> _Upstream:
         y_up = np.asarray(up.depth_at(up_state), dtype=float)
         _check_inside(first, y_up, up, "upstream")
         ok = (y_up < first.yc * (1 - 1e-9)) | (np.isclose(y_up, first.yc, rtol=1e-9) & st.can_sup_start[0])
+        several = first.several_critical()
+        if several.any():  # supercritical where the compound Froude number exceeds 1
+            ok = np.where(several, ~first.subcritical_at(y_up) | (np.isclose(y_up, first.yc, rtol=1e-9)
+                                                                  & st.can_sup_start[0]), ok)
         sup_state = np.where(ok, y_up, np.nan)
         sup_from_control = ok.copy()
         for s in np.flatnonzero(~ok):
@@ -643,6 +700,11 @@ def _govern_segment(st: _Setup, k, sub: _SubPass, up: _Upstream, gov: _Governed,
     seg_act = _subset(seg, act)
     t = seg.fractions(xs) if seg.change is not None else None  # a changing segment: its section at each station
     msub = seg_act.specific_force(sub.y[act, i0:i0 + m], t)
+    several = seg_act.several_critical()
+    if several.any():
+        # where the subcritical branch gave out, its critical depth only holds the place: with several
+        # critical depths the specific force need not be least there, so it must not overtake a profile
+        msub = np.where(sub.c[act, i0:i0 + m] & several[:, None], -np.inf, msub)
     # (the supercritical march may stop where the subcritical profile overtakes it: NaN beyond)
     ysup, csup = _march_with_fallback(st.marcher, seg_act, xs, y0, from_critical, SUPER, st.can_sup_start[k][act],
                                       rival=msub)
@@ -677,6 +739,8 @@ def _govern_segment(st: _Setup, k, sub: _SubPass, up: _Upstream, gov: _Governed,
     if seg.change is not None:
         _place_changing_jumps(jumps, k, act, i0, st.x, ysup, sub.y, msup, msub)
     else:
+        if several.any():
+            _place_changing_jumps(jumps, k, act, i0, st.x, ysup, sub.y, msup, msub, only=set(act[several].tolist()))
         _refine(jumps, st.marcher, seg, st.x, sub.y, k, notes, st.pressure_runs)
     return first_loss == m, ysup[:, -1]
 
@@ -742,6 +806,7 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
     _conveyance_ratio_notes(notes, st.segments, segs, st.bounds, x, depth)
     _choke_notes(notes, segs, classes, st.bounds, x, depth, regime)
     _several_critical_notes(notes, segs, st.bounds, x, depth)
+    _jump_energy_notes(notes, segs, gov.jumps)
     near_critical_notes(notes, segs, st.bounds, x, depth)
     for k, jet in sub.gate_jet.items():
         i0 = st.bounds[k][0]
@@ -814,9 +879,9 @@ def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
 def _several_critical_notes(notes, segs, bounds, x, depth):
     """Note each stretch where the water stands between two critical depths of a compound section (where
     specific energy has a local maximum between two minima): there the regime is decided by the compound
-    Froude number, and the profile may belong to either branch; the solver follows the least-energy
-    critical depth (a march between unlike sections, the one nearest the profile) and does not yet track
-    the branch through that band."""
+    Froude number. In a prismatic segment each profile keeps to its branch (:func:`_march_with_fallback`)
+    and the note names the segment's critical depth; a march between unlike sections takes the critical
+    depth nearest the profile and does not yet track the branch through that band."""
     kernel = core("arrays", 100)
     buf = np.empty(64)
     for k, seg in enumerate(segs):
@@ -831,7 +896,21 @@ def _several_critical_notes(notes, segs, bounds, x, depth):
             if inside.size:
                 notes[s].append(note(float(x[i0 + inside[0]]), "several critical depths", k=k,
                                      depths=tuple(float(v) for v in buf[:count]),
-                                     x_end=float(x[i0 + inside[-1]])))
+                                     x_end=float(x[i0 + inside[-1]]),
+                                     used=None if seg.change is not None else float(seg.yc[s])))
+
+
+def _jump_energy_notes(notes, segs, jumps):
+    """Note a jump in a section with several critical depths whose momentum balance gains specific energy
+    (with one critical depth a balanced jump always loses energy, and an unbalanced one ends at critical
+    depth, the least energy)."""
+    for s, xj, y1, y2, k, _, _ in jumps:
+        seg = segs[k]
+        if math.isnan(xj) or seg.change is not None or not seg.several_critical()[s]:
+            continue
+        e1, e2 = _subset(seg, np.array([s])).specific_energy(np.array([[y1, y2]]))[0]
+        if e2 > e1 * (1 + 1e-9):
+            notes[s].append(note(float(xj), "jump gains energy", gain=float(e2 - e1)))
 
 
 def _inflow_notes(notes, segments, segs, bounds, x, regime):

@@ -27,7 +27,7 @@ import math
 import numpy as np
 
 from ._jit import kernel
-from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED
+from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED, SUB
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
 from .records import Channel
 from .resistance import conveyance, dlnsf_dy, froude_squared, hydraulics, velocity_coefficients
@@ -144,15 +144,22 @@ def _dedy(ch, fl, q, y, alpha):
 @kernel
 def _polish(ch, fl, q, alpha, lo, hi):
     """Root of dE/dy (negative at lo, positive at hi) by the Illinois method; (depth, status)."""
-    flo = _dedy(ch, fl, q, lo, alpha)
-    fhi = _dedy(ch, fl, q, hi, alpha)
+    return _polish_signed(ch, fl, q, alpha, lo, hi, 1.0)
+
+
+@kernel
+def _polish_signed(ch, fl, q, alpha, lo, hi, sign):
+    """Root of sign dE/dy (negative at lo, positive at hi): sign 1 a minimum of specific energy, -1 a
+    maximum (:func:`_polish`)."""
+    flo = sign * _dedy(ch, fl, q, lo, alpha)
+    fhi = sign * _dedy(ch, fl, q, hi, alpha)
     side = 0
     y = hi
     for _ in range(200):
         y = (lo * fhi - hi * flo) / (fhi - flo)
         if not (lo < y < hi):
             y = 0.5 * (lo + hi)
-        fy = _dedy(ch, fl, q, y, alpha)
+        fy = sign * _dedy(ch, fl, q, y, alpha)
         if fy == 0.0 or hi - lo <= 4e-16 * hi:
             return y, SOLVED
         if fy < 0.0:
@@ -258,6 +265,89 @@ def critical_depths(ch, fl, q, alpha, out):
         return 0, NO_ROOT
     grid = _scan_grid(ch, top)
     return _scan_minima(ch, fl, q, alpha, grid, _scan_froude(ch, fl, q, alpha, grid), 1.0, out)
+
+
+@kernel
+def branch_limits(ch, fl, q, alpha, y, branch):
+    """The depths that bound the branch of depth y: (near, far, status).
+
+    Specific energy of a compound section can have several minima m1 < m2 < ... with a maximum
+    M1 < M2 < ... between each two (Blalock and Sturm, "Minimum specific energy in compound open
+    channel", J. Hydraulics Division ASCE 107(6), 1981, from memory): depths in (m_i, M_i) are
+    subcritical (dE/dy > 0, compound Froude number below 1), depths in (M_i-1, m_i) supercritical, with
+    M_0 = 0 and the last M infinite. A profile stays on one such branch; it cannot pass a maximum any
+    more than a minimum. ``branch`` :data:`SUB` gives the subcritical interval holding y (the one just
+    above, where y is supercritical): near = its m_i, far = its M_i; :data:`SUPER` the supercritical
+    interval holding y (the one just below, where y is subcritical): near = its m_i, far = M_i-1. A
+    section with one minimum gives (critical depth, infinite or 0). A maximum at a breakpoint (where
+    dE/dy jumps from positive to negative) is returned at the breakpoint.
+    """
+    far_none = math.inf if branch == SUB else 0.0
+    if ch.kind != SURVEYED:
+        yc, status = critical_depth_single(ch, fl, q, alpha)
+        return yc, far_none, status
+    top = _scan_top(ch, fl, q, alpha)
+    if not top < math.inf:
+        return math.nan, far_none, NO_ROOT
+    grid = _scan_grid(ch, top)
+    fr2 = _scan_froude(ch, fl, q, alpha, grid)
+    status = SOLVED
+    # walk the grid upward: the last turn at or below y and the first above it
+    below, below_min = 0.0, False
+    f_prev = 1.0 - fr2[0]
+    for i in range(1, grid.size):
+        f_i = 1.0 - fr2[i]
+        turn = (f_prev < 0.0) != (f_i < 0.0)
+        f_prev = f_i
+        if not turn:
+            continue
+        is_min = f_i >= 0.0
+        t, st = _polish_signed(ch, fl, q, alpha, grid[i - 1], grid[i], 1.0 if is_min else -1.0)
+        if st != SOLVED:
+            status = st
+        if t <= y:
+            below, below_min = t, is_min
+            continue
+        # t is the first turn above y: y lies between ``below`` and t
+        if branch == SUB:
+            if below_min:
+                return below, t, status  # y subcritical, in (m_i, M_i)
+            # y supercritical (or below every minimum): the subcritical interval above begins at t
+            return _next_turn(ch, fl, q, alpha, grid, fr2, i, t, status)
+        if is_min:
+            return t, below, status  # y supercritical, in (M_i-1, m_i)
+        return below, _previous_max(ch, fl, q, alpha, grid, fr2, i, below), status
+    # no turn above y: y stands on the last, subcritical interval (m_k, infinity)
+    if branch == SUB:
+        return below, math.inf, status
+    return below, _previous_max(ch, fl, q, alpha, grid, fr2, grid.size, below), status
+
+
+@kernel
+def _next_turn(ch, fl, q, alpha, grid, fr2, i, m, status):
+    """(m, the maximum above m or infinity, status): the subcritical interval starting at the minimum m
+    found between grid[i - 1] and grid[i] (:func:`branch_limits`)."""
+    f_prev = 1.0 - fr2[i]
+    for j in range(i + 1, grid.size):
+        f_j = 1.0 - fr2[j]
+        if f_prev >= 0.0 and f_j < 0.0:
+            t, st = _polish_signed(ch, fl, q, alpha, grid[j - 1], grid[j], -1.0)
+            return m, t, st if st != SOLVED else status
+        f_prev = f_j
+    return m, math.inf, status
+
+
+@kernel
+def _previous_max(ch, fl, q, alpha, grid, fr2, i, m):
+    """The maximum below the minimum m, searched on the grid below index i (0 where there is none)."""
+    f_next = 1.0 - fr2[i - 1]
+    for j in range(i - 1, 0, -1):
+        f_j = 1.0 - fr2[j - 1]
+        if f_j >= 0.0 and f_next < 0.0 and grid[j] <= m:
+            t, st = _polish_signed(ch, fl, q, alpha, grid[j - 1], grid[j], -1.0)
+            return t
+        f_next = f_j
+    return 0.0
 
 
 @kernel

@@ -20,6 +20,7 @@ import numpy as np
 from ._jit import kernel
 from .codes import AVG_END, DARCY, SOLVED, SUB, SUPER  # noqa: F401
 from .flow import (
+    branch_limits,
     critical_depth_batch,
     critical_depth_single,
     normal_depth,
@@ -736,3 +737,11 @@ def station_quantities(kinds, pars, offsets, laws, roughs, seg, fl, qs, y, alpha
             s = seg[i]
             ch = Channel(kinds[s], pars[offsets[s]:offsets[s + 1]], laws[s], roughs[s])
         station_values(ch, fl, qs[s], y[i], alpha, out, i)
+
+
+@kernel
+def branch_limits_batch(cb, fl, q, alpha, y, branch, rows, near, far):
+    """:func:`~gvflow._core.flow.branch_limits` of depth y[i] for scenario rows[i] of a channel batch; the
+    status is not returned: the limits are minima and maxima already found once by the same scan."""
+    for i in range(rows.size):
+        near[i], far[i], _ = branch_limits(scenario(cb, rows[i]), fl, q[rows[i]], alpha, y[i], branch)

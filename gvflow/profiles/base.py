@@ -219,6 +219,41 @@ class SegmentBatch:
                             None if self.change is None else self.change.take(idx),
                             None if self.n_critical is None else self.n_critical[idx])
 
+    def several_critical(self) -> np.ndarray:
+        """Scenarios whose section has several critical depths at their discharge (a compound section)."""
+        if self.n_critical is None or self.change is not None:
+            return np.zeros(self.n, bool)
+        return self.n_critical > 1
+
+    def branch_limits(self, y, branch) -> tuple[np.ndarray, np.ndarray]:
+        """(near, far) per scenario: the critical depth and the other limit of the ``branch`` (SUB or SUPER)
+        that depth ``y`` (n,) stands on, or stands next to (:func:`gvflow._core.flow.branch_limits`). A
+        scenario with one critical depth gives (yc, infinity) for SUB and (yc, 0) for SUPER."""
+        near = self.yc.astype(float)
+        far = np.full(self.n, np.inf if branch == SUB else 0.0)
+        rows = np.flatnonzero(self.several_critical())
+        if rows.size:
+            nr, fr = np.empty(rows.size), np.empty(rows.size)
+            y = np.broadcast_to(np.asarray(y, dtype=float), (self.n,))
+            core("march", 200 * rows.size).branch_limits_batch(
+                self.cb, self.fl, np.ascontiguousarray(self.discharge), self.alpha,
+                np.ascontiguousarray(y[rows]), branch, rows.astype(np.int64), nr, fr)
+            near[rows], far[rows] = nr, fr
+        return near, far
+
+    def subcritical_at(self, y) -> np.ndarray:
+        """Whether depth ``y`` (n,) is subcritical or critical: at or above critical depth, or for a section
+        with several critical depths, where the compound Froude number is at most 1 (on a subcritical
+        branch)."""
+        y = np.asarray(y, dtype=float)
+        out = y >= self.yc * (1 - 1e-12)
+        rows = np.flatnonzero(self.several_critical())
+        if rows.size:
+            near, far = self.branch_limits(y, SUB)
+            yr = np.broadcast_to(y, (self.n,))[rows]
+            out[rows] = (yr >= near[rows] * (1 - 1e-12)) & (yr <= far[rows])
+        return out
+
     # -- a section that changes along the segment (``change``): values at fractions t of its length ----------
     @property
     def tail(self) -> SegmentBatch:

@@ -1,0 +1,167 @@
+"""Profiles in a compound section with two critical depths: each profile keeps to its branch.
+
+References, all computed here by hand from the section's geometry (not by gvflow's core):
+- the section: a rectangular main channel 10 m wide and 2 m deep (n 0.03) between two
+  floodplains 100 m wide (n 0.05) with vertical outer walls; areas, wetted perimeters and zone
+  conveyances K_i = A_i^(5/3) / (n_i P_i^(2/3)) are exact for these rectangles, with the
+  division lines above the banks not wetted;
+- the energy coefficient of a subdivided section, alpha = sum(K_i³/A_i²) / (K³/A²) (Chow 1959,
+  §2-7/§2-8, from memory), and specific energy E = y + alpha Q²/(2 g A²);
+- the regime of a depth from the sign of dE/dy, taken here by central differences of that E, so
+  independently of the analytic compound Froude number in gvflow (Blalock and Sturm 1981 define
+  critical flow in a compound section as dE/dy = 0, from memory);
+- the profile by direct numerical integration of the energy equation, dE/dx = S0 - Sf with
+  Sf = (Q/K)², i.e. dy/dx = (S0 - Sf)/(dE/dy) (Chow 1959, ch. 9, with alpha varying with depth),
+  with scipy's solve_ivp and quad.
+"""
+
+import numpy as np
+import pytest
+from scipy.integrate import quad, solve_ivp
+
+import gvflow as gv
+from gvflow._core.codes import SUB, SUPER
+from gvflow.profiles.base import SegmentBatch
+
+COMPOUND = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
+                       roughness=[0.05, 0.03, 0.05], zone_edges=[0, 10])
+Q = 60.0
+G = gv.SI.g
+
+
+def _zones(y):
+    """(A_i, K_i) of the main channel and the two floodplains at depth y (exact for these rectangles)."""
+    h = max(y - 2.0, 0.0)
+    a_m, p_m = 10.0 * y, 10.0 + 2.0 * min(y, 2.0)
+    zones = [(a_m, a_m ** (5 / 3) / (0.03 * p_m ** (2 / 3)))]
+    if h > 0:
+        a_f, p_f = 100.0 * h, 100.0 + h
+        zones += [(a_f, a_f ** (5 / 3) / (0.05 * p_f ** (2 / 3)))] * 2
+    return zones
+
+
+def energy(y):
+    z = _zones(y)
+    a, k = sum(v[0] for v in z), sum(v[1] for v in z)
+    alpha = sum(ki ** 3 / ai ** 2 for ai, ki in z) / (k ** 3 / a ** 2)
+    return y + alpha * Q ** 2 / (2 * G * a ** 2)
+
+
+def dedy(y, h=1e-7):
+    return (energy(y + h) - energy(y - h)) / (2 * h)
+
+
+def friction(y):
+    return (Q / sum(v[1] for v in _zones(y))) ** 2
+
+
+def test_the_hand_section_is_the_surveyed_one():
+    # transcription check of the two descriptions above against each other (not a reference)
+    y = np.array([0.5, 1.9, 2.3, 3.5])
+    np.testing.assert_allclose(COMPOUND.area(y), [sum(v[0] for v in _zones(v)) for v in y], rtol=1e-12)
+    np.testing.assert_allclose(gv.specific_energy(COMPOUND, Q, y), [energy(v) for v in y], rtol=1e-12)
+
+
+def test_branch_limits_are_where_specific_energy_turns():
+    seg = SegmentBatch.build(COMPOUND, 0.004, None, Q)
+    m1, m2 = gv.critical_depths(COMPOUND, Q)
+    (near, far) = (v[0] for v in seg.branch_limits(np.array([1.8]), SUB))
+    assert near == m1
+    big_m = far  # the maximum of specific energy between the two minima
+    assert m1 < big_m < m2
+    for turn, below, above in ((m1, -1, 1), (big_m, 1, -1), (m2, -1, 1)):
+        assert np.sign(dedy(turn - 1e-4)) == below and np.sign(dedy(turn + 1e-4)) == above
+        assert abs(dedy(turn)) < 1e-5
+    cases = {(1.0, SUB): (m1, big_m), (2.1, SUB): (m2, np.inf), (3.0, SUB): (m2, np.inf), (1.8, SUB): (m1, big_m),
+             (2.1, SUPER): (m2, big_m), (1.8, SUPER): (m1, 0.0), (1.0, SUPER): (m1, 0.0), (3.0, SUPER): (m2, big_m)}
+    for (y, branch), want in cases.items():
+        got = tuple(v[0] for v in seg.branch_limits(np.array([y]), branch))
+        np.testing.assert_allclose(got, want, rtol=1e-12, err_msg=f"y = {y}, branch {branch}")
+
+
+@pytest.mark.parametrize("slope", [0.0005, 0.001, 0.002, 0.004, 0.006, 0.01, 0.02])
+def test_every_station_keeps_the_regime_of_its_depth(slope):
+    # The regime the solver reports at each station agrees with the sign of dE/dy there, and a
+    # subcritical (or supercritical) stretch never spans two branches of the section.
+    m1, m2 = gv.critical_depths(COMPOUND, Q)
+    solved = 0
+    for tail in (1.0, 1.8, 2.05, 2.3, 2.6, 3.0):
+        reach = gv.Reach(segments=[gv.Segment(length=1500.0, slope=slope, section=COMPOUND)], discharge=Q,
+                         downstream=gv.FixedDepth(tail))
+        try:
+            p = reach.solve(n_steps=150)
+        except gv.ControlError:
+            continue  # a tailwater below critical depth on a mild bed: refused with its remedy
+        solved += 1
+        slope_of_e = np.array([dedy(y) for y in p.depth])
+        sub, sup = p.regime == "subcritical", p.regime == "supercritical"
+        assert (slope_of_e[sub] > -1e-6).all(), p.depth[sub][slope_of_e[sub] <= -1e-6]
+        assert (slope_of_e[sup] < 1e-6).all(), p.depth[sup][slope_of_e[sup] >= 1e-6]
+        for mask in (sub, sup):
+            edges = np.flatnonzero(np.diff(np.concatenate([[0], mask.astype(int), [0]])))
+            for a, b in zip(edges[::2], edges[1::2], strict=True):
+                run = p.depth[a:b]
+                # one branch: all below the band's top m2, or all at or above it
+                assert (run < m2 * (1 - 1e-9)).all() or (run >= m2 * (1 - 1e-9)).all(), run
+        # a jump that gains energy (by hand) is said to be one
+        gains = [c.x for c in p.controls if c.kind == "jump gains energy"]
+        for jump in p.jumps:
+            gain = energy(jump.downstream_depth) - energy(jump.upstream_depth)
+            assert (jump.x in gains) == (gain > 1e-9 * energy(jump.upstream_depth)), (jump, gain)
+    assert solved >= 4
+
+
+def test_steep_band_profile_against_direct_integration():
+    # S0 = 0.004: normal depth 2.073 m lies between the maximum of E and the upper critical depth, so
+    # uniform flow there is supercritical. From critical depth at the head (the upper one, the depth
+    # the flow passes leaving a pool) an S2 profile falls to normal depth; the tailwater 2.6 m backs
+    # an S1 profile up to the upper critical depth, where it ends and the jump stands.
+    slope, tail, length, steps = 0.004, 2.6, 1000.0, 400
+    m1, m2 = gv.critical_depths(COMPOUND, Q)
+    yn = gv.normal_depth(COMPOUND, Q, slope)
+    assert m1 < yn < m2 and dedy(yn) < 0  # supercritical uniform flow (by hand)
+    reach = gv.Reach(segments=[gv.Segment(length=length, slope=slope, section=COMPOUND)], discharge=Q,
+                     downstream=gv.FixedDepth(tail))
+    p = reach.solve(n_steps=steps)
+    assert p.slope_classes[0] == "steep"
+    assert p.critical_depths[0] == pytest.approx(m2, rel=1e-12)
+    # the S1 profile, upstream from the tailwater until it reaches m2
+    reach_m2 = lambda x, y: y[0] - m2 * (1 + 1e-6)  # noqa: E731
+    reach_m2.terminal = True
+    ref = solve_ivp(lambda x, y: [(slope - friction(y[0])) / dedy(y[0])], (length, 0.0), [tail], rtol=1e-11,
+                    atol=1e-12, dense_output=True, events=reach_m2)
+    x_end = float(ref.t_events[0][0])
+    sub = (p.regime == "subcritical") & (p.x > x_end)
+    assert sub.sum() > 20
+    np.testing.assert_allclose(p.depth[sub], ref.sol(p.x[sub])[0], atol=2e-4)
+    # the S2 profile from m2 at x = 0 down toward normal depth: x(y) by quadrature of dx/dy
+    sup = (p.regime == "supercritical") & (p.depth > yn * (1 + 1e-3)) & (p.depth < m2 * (1 - 1e-3))
+    assert sup.sum() > 5
+    x_ref = [-quad(lambda y: dedy(y) / (slope - friction(y)), y, m2, limit=200)[0] for y in p.depth[sup]]
+    np.testing.assert_allclose(p.x[sup], x_ref, atol=0.05)
+    # the jump: where the S1 profile ends (it cannot reach the supercritical flow's sequent depth first)
+    (jump,) = p.jumps
+    assert abs(jump.x - x_end) <= length / steps
+    assert jump.upstream_depth == pytest.approx(yn, rel=1e-3)
+    notes = [c.text for c in p.controls if c.kind == "several critical depths"]
+    assert notes and f"critical depth is {m2:.3f}" in notes[0]
+    # the ivp method keeps to the same branches
+    q = reach.solve(method="ivp", n_steps=steps)
+    assert q.x.shape == p.x.shape and q.jumps[0].x == pytest.approx(jump.x, abs=length / steps)
+    away = np.abs(p.x - jump.x) > 2 * length / steps
+    np.testing.assert_allclose(q.depth[away], p.depth[away], atol=1e-4)
+
+
+def test_mild_in_bank_flow_against_direct_integration():
+    # S0 = 0.001: normal depth above both critical depths; an M2 drawdown to a brink at the upper
+    # critical depth (the one on the uniform flow's branch), against direct integration.
+    slope, length = 0.001, 1500.0
+    m1, m2 = gv.critical_depths(COMPOUND, Q)
+    reach = gv.Reach(segments=[gv.Segment(length=length, slope=slope, section=COMPOUND)], discharge=Q,
+                     downstream=gv.CriticalFlow())
+    p = reach.solve(n_steps=300)
+    assert p.depth[-1] == pytest.approx(m2, rel=1e-9)
+    away = p.depth > m2 * 1.02
+    x_ref = [length + quad(lambda y: dedy(y) / (slope - friction(y)), m2, y, limit=200)[0] for y in p.depth[away]]
+    np.testing.assert_allclose(p.x[away], x_ref, atol=0.05)
+    assert (p.regime[:-1] == "subcritical").all()
