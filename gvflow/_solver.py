@@ -241,10 +241,13 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
     if not several.any():
         return _march_prismatic(marcher, seg, x_order, y0, crit0, branch, can_restart, rival, full_at)
     near, far = seg.branch_limits(y0, branch)
-    y, crit = _march_prismatic(marcher, replace(seg, yc=near), x_order, y0, crit0, branch, can_restart, rival,
-                               full_at)
+    y, crit = _march_prismatic(marcher, replace(seg, yc=near, far=far), x_order, y0, crit0, branch, can_restart,
+                               rival, full_at)
     with np.errstate(invalid="ignore"):
         beyond = (y > far[:, None]) if branch == SUB else (y < far[:, None])
+        # a march that stopped heading for the far limit (closer to it than to critical depth) ended there
+        stopped = crit[:, 1:] & ~crit[:, :-1] & (np.abs(y[:, :-1] - far[:, None]) < np.abs(y[:, :-1] - near[:, None]))
+    beyond[:, 1:] |= stopped & ((far > 0) & (far < np.inf))[:, None]
     beyond &= several[:, None]
     for r in np.flatnonzero(beyond.any(axis=1)):
         j = int(np.flatnonzero(beyond[r])[0])
@@ -590,6 +593,14 @@ def _downstream_start(st: _Setup) -> _Downstream:
         must_be_sub = (code != _STEEP) & (code != _CRITICAL) & ~governs_down
         if must_be_sub.any():
             i = int(np.flatnonzero(must_be_sub)[0])
+            if last.several_critical()[i]:
+                near, far = (v[i] for v in last.branch_limits(y_down, SUPER))
+                raise ControlError(
+                    f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, where the flow in this "
+                    f"compound section is supercritical (discharge {st.q[i]:g}: between {far:.4g}, a maximum of "
+                    f"specific energy, and critical depth {near:.4g} the compound Froude number exceeds 1); the "
+                    f"flow leaving a {classes[i, -1]} segment is subcritical, so its downstream control must give "
+                    "a subcritical depth. For a free overfall or a drop use gv.CriticalFlow()")
             raise ControlError(
                 f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, below critical depth "
                 f"{last.yc[i]:.4g} (discharge {st.q[i]:g}); the flow leaving a {classes[i, -1]} segment is "

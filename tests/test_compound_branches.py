@@ -165,3 +165,32 @@ def test_mild_in_bank_flow_against_direct_integration():
     x_ref = [length + quad(lambda y: dedy(y) / (slope - friction(y)), m2, y, limit=200)[0] for y in p.depth[away]]
     np.testing.assert_allclose(p.x[away], x_ref, atol=0.05)
     assert (p.regime[:-1] == "subcritical").all()
+
+
+@pytest.mark.parametrize("slope, tail", [(0.004, 1.8), (0.02, 2.6), (0.006, 2.6), (0.002, 1.8)])
+def test_ivp_keeps_to_the_same_branches(slope, tail):
+    # Two independent integrations of the same equations (the standard step, and scipy's solve_ivp with
+    # an event at the maximum of specific energy) give the same profile and regimes, including where a
+    # profile runs into that maximum (slope 0.004, tailwater 1.8 m: in-bank subcritical flow rising
+    # upstream toward bankfull).
+    reach = gv.Reach(segments=[gv.Segment(length=1000.0, slope=slope, section=COMPOUND)], discharge=Q,
+                     downstream=gv.FixedDepth(tail))
+    a, b = reach.solve(n_steps=200), reach.solve(method="ivp", n_steps=200)
+    assert a.x.shape == b.x.shape
+    assert [round(j.x, 6) for j in a.jumps] == [round(j.x, 6) for j in b.jumps]
+    away = np.ones(a.x.size, bool)
+    for j in a.jumps:
+        away &= np.abs(a.x - j.x) > 10.0
+    np.testing.assert_allclose(b.depth[away], a.depth[away], atol=5e-4)
+    assert (a.regime == b.regime).all()
+
+
+def test_a_supercritical_tailwater_on_a_mild_bed_is_refused_with_the_band():
+    # slope 0.01: in-bank normal depth 1.589 m is subcritical; 2.05 m stands in the supercritical band
+    # just above bankfull, so it cannot be the downstream control of subcritical flow
+    reach = gv.Reach(segments=[gv.Segment(length=1000.0, slope=0.01, section=COMPOUND)], discharge=Q,
+                     downstream=gv.FixedDepth(2.05))
+    with pytest.raises(gv.ControlError, match="compound Froude number exceeds 1") as err:
+        reach.solve()
+    m2 = gv.critical_depths(COMPOUND, Q)[1]
+    assert f"critical depth {m2:.4g}" in str(err.value)

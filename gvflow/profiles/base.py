@@ -104,6 +104,9 @@ class SegmentBatch:
     unconverged: np.ndarray | None = field(default=None, repr=False)
     change: Change | None = field(default=None, repr=False)
     n_critical: np.ndarray | None = field(default=None, repr=False)  # critical depths of each scenario's section
+    # the far limit of the branch a march keeps to (a maximum of specific energy, see branch_limits), where
+    # the solver sets one for a section with several critical depths; None: the branch is bounded by yc only
+    far: np.ndarray | None = field(default=None, repr=False)
 
     @classmethod
     def build(cls, section, slope, roughness, discharge, units="SI", alpha: float = 1.0, coef=None):
@@ -217,7 +220,8 @@ class SegmentBatch:
                             ChannelBatch(cb.kind, cb.par, cb.law, np.ascontiguousarray(cb.rough[idx])), self.fl,
                             None if self.unconverged is None else self.unconverged[idx],
                             None if self.change is None else self.change.take(idx),
-                            None if self.n_critical is None else self.n_critical[idx])
+                            None if self.n_critical is None else self.n_critical[idx],
+                            None if self.far is None else self.far[idx])
 
     def several_critical(self) -> np.ndarray:
         """Scenarios whose section has several critical depths at their discharge (a compound section)."""

@@ -47,6 +47,10 @@ MAX_EVALUATIONS = 200_000
 _NEAR = 1e-7  # relative distance from critical depth below which a critical slope's equation takes its limit
 
 
+#: relative distance short of a branch's far limit (a maximum of specific energy) at which a march stops
+_FAR_MARGIN = 1e-4
+
+
 class _TooMuchWork(Exception):
     """Raised inside solve_ivp's right-hand side when the evaluation budget is spent (private)."""
 
@@ -58,6 +62,9 @@ class _Problem:
         self.core = core("march", 2000)
         self.args = (self.core.scenario(seg.cb, index), seg.fl, float(seg.discharge[index]), seg.slope, seg.alpha)
         self.yc = float(seg.yc[index])
+        # the branch's other limit where the section has several critical depths (NaN: none)
+        far = math.nan if seg.far is None else float(seg.far[index])
+        self.far = far if 0.0 < far < math.inf else math.nan
         self.yn = float(seg.yn[index])
         self.critical_slope = abs(self.yn - self.yc) <= 1e-9 * self.yc
         self.ymax = float(seg.section.max_depth)
@@ -218,6 +225,14 @@ class IVPMarcher(Marcher):
                 full.terminal = True
                 full.direction = 1.0
                 events.append(full)
+            if prob.far == prob.far:
+                # the maximum of specific energy that bounds the branch: the profile ends there, a hair
+                # short of it, as at critical depth (dy/dx is infinite at it)
+                def leave(xx, yy, _far=prob.far * (1.0 - branch * _FAR_MARGIN)):
+                    return yy[0] - _far
+                leave.terminal = True
+                leave.direction = float(branch)
+                events.append(leave)
             sol = integrate.solve_ivp(prob.dydx, (x, x_end), [y], method=self._method_for(prob, y, abs(x_end - x)),
                                       rtol=self.rtol, atol=self.atol, dense_output=True, events=events,
                                       max_step=self.max_step or span / 10.0)
@@ -231,6 +246,8 @@ class IVPMarcher(Marcher):
                 x, y = xe, edge
                 in_band = True
                 continue
+            if prob.far == prob.far and len(sol.t_events[-1]):
+                return pieces, 1, xe, xe
             return pieces, 2, math.nan, xe
         return pieces, 3, math.nan, x  # pragma: no cover - more switches than a monotone profile allows
 
