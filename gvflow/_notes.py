@@ -101,19 +101,14 @@ def _sections_far_apart(x, u, *, x_up, x_down, ratio, limit) -> str:
             "trusted; survey or interpolate a section between them (common practice)")
 
 
-def _several_critical(x, u, *, k, depths, x_end, used=None) -> str:
+def _several_critical(x, u, *, k, depths, x_end, used) -> str:
     shown = ", ".join(f"{d:.3f}" for d in depths)
-    head = (f"in segment {k} the section has {len(depths)} critical depths ({shown} {u.length}): between them "
+    return (f"in segment {k} the section has {len(depths)} critical depths ({shown} {u.length}): between them "
             f"specific energy has a local maximum, and from x = {x:.2f} to {x_end:.2f} {u.length} the water stands "
-            "in that band, ")
-    if used is None:  # a section changing along the segment: its march takes the nearest critical depth
-        return head + ("where a profile can belong to either regime; between unlike sections gvflow does not "
-                       "yet follow the branch through it, so treat the profile there as uncertain and check it "
-                       "(a finer spacing, method='ivp', or a section drawn so that the band is not reached)")
-    return head + (f"where the compound Froude number decides the regime; each profile keeps to its branch, and "
-                   f"the segment's critical depth is {used:.3f} {u.length}, the one on the branch of its normal "
-                   "depth. One-dimensional theory is least certain in this band (the floodplain flow is shallow "
-                   "and the exchange with the main channel is left out): check the result with a finer spacing")
+            "in that band, where the compound Froude number decides the regime; each profile keeps to its "
+            f"branch, and the segment's critical depth is {used:.3f} {u.length}, the one on the branch of its "
+            "normal depth. One-dimensional theory is least certain in this band (the floodplain flow is shallow "
+            "and the exchange with the main channel is left out): check the result with a finer spacing")
 
 
 def _choke(x, u, *, k, depth, yn) -> str:

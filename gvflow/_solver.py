@@ -196,9 +196,38 @@ def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
     failed = (np.arange(m)[None, :] >= res.n_valid[:, None]) & (res.code == 1)[:, None]
     y = res.depth
     if np.any(failed):
-        y = np.where(failed, seg.critical_depths_at(seg.fractions(x_order)), y)
+        t = seg.fractions(x_order)
+        fill = seg.critical_depths_at(t)
+        rows = np.flatnonzero(seg.several_critical() & failed.any(axis=1))
+        if rows.size:  # the critical depth of the branch the march was on, carried from its start
+            sub = seg.take(rows)
+            fill[rows] = sub.critical_depths_along(t, sub.start_critical_depth(x_order[0], np.asarray(
+                y0, dtype=float)[rows] if np.ndim(y0) else y0, branch))
+        y = np.where(failed, fill, y)
         crit |= failed
+    rows = np.flatnonzero(seg.several_critical())
+    if rows.size:
+        _keep_to_branch(seg, rows, x_order, y, crit, res.n_valid, y0, branch)
     return y, crit
+
+
+def _keep_to_branch(seg, rows, x_order, y, crit, n_valid, y0, branch):
+    """Scenarios ``rows`` of a changing segment with several critical depths: from the first station where
+    the march left the branch it started on (past a maximum of specific energy, which bounds the branch as
+    critical depth does) the depth is that limit, flagged critical, as in a prismatic segment."""
+    sub = seg.take(rows)
+    t = seg.fractions(x_order)
+    carried = sub.critical_depths_along(t, sub.start_critical_depth(
+        x_order[0], np.asarray(y0, dtype=float)[rows] if np.ndim(y0) else y0, branch))
+    out_j, out_far = np.empty(rows.size, np.int64), np.empty(rows.size)
+    core("changing", 200 * y.shape[1] * rows.size).left_branch(
+        sub.cb, sub.change.along, sub.fl, np.ascontiguousarray(sub.discharge), t, sub.alpha,
+        np.ascontiguousarray(y[rows]), np.ascontiguousarray(np.minimum(n_valid[rows], y.shape[1])), int(branch),
+        carried, out_j, out_far)
+    for r, j, far in zip(rows.tolist(), out_j.tolist(), out_far.tolist(), strict=True):
+        if j < y.shape[1]:
+            y[r, j:] = far if far == far and 0.0 < far < np.inf else y[r, j - 1]
+            crit[r, j:] = True
 
 
 def _place_changing_jumps(jumps, k, act, i0, x, ysup, sub_y, msup, msub, only=None):
@@ -536,8 +565,15 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
     sf_c = [b[1] for b in built]  # friction slope at critical depth
     code = np.stack([b[2] for b in built], axis=1)
     for k, seg in enumerate(segs):
-        if seg.several_critical().any():
+        if not seg.several_critical().any():
+            continue
+        if seg.change is None:
             segs[k], sf_c[k], code[:, k] = _uniform_flow_branch(seg, sf_c[k], code[:, k], critical_tolerance)
+            continue
+        # a changing segment: its slope class is its downstream end's; either end gets its branch's yc
+        tail, sf_c[k], code[:, k] = _uniform_flow_branch(seg.tail, sf_c[k], code[:, k], critical_tolerance)
+        head = _uniform_flow_branch(replace(seg, change=None), sf_c[k], code[:, k], critical_tolerance)[0]
+        segs[k] = replace(head, change=replace(seg.change, tail=tail))
     check_segments(reach, segs, sf_c, coef)  # depths and critical slopes no channel holds; warnings
     for seg in segs:
         seg.require_converged()
@@ -890,9 +926,8 @@ def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
 def _several_critical_notes(notes, segs, bounds, x, depth):
     """Note each stretch where the water stands between two critical depths of a compound section (where
     specific energy has a local maximum between two minima): there the regime is decided by the compound
-    Froude number. In a prismatic segment each profile keeps to its branch (:func:`_march_with_fallback`)
-    and the note names the segment's critical depth; a march between unlike sections takes the critical
-    depth nearest the profile and does not yet track the branch through that band."""
+    Froude number; each profile keeps to its branch (:func:`_march_with_fallback`, :func:`_keep_to_branch`)
+    and the note names the segment's critical depth."""
     kernel = core("arrays", 100)
     buf = np.empty(64)
     for k, seg in enumerate(segs):
@@ -907,8 +942,7 @@ def _several_critical_notes(notes, segs, bounds, x, depth):
             if inside.size:
                 notes[s].append(note(float(x[i0 + inside[0]]), "several critical depths", k=k,
                                      depths=tuple(float(v) for v in buf[:count]),
-                                     x_end=float(x[i0 + inside[-1]]),
-                                     used=None if seg.change is not None else float(seg.yc[s])))
+                                     x_end=float(x[i0 + inside[-1]]), used=float(seg.yc[s])))
 
 
 def _jump_energy_notes(notes, segs, jumps):

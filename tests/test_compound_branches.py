@@ -29,10 +29,10 @@ Q = 60.0
 G = gv.SI.g
 
 
-def _zones(y):
+def _zones(y, width=10.0):
     """(A_i, K_i) of the main channel and the two floodplains at depth y (exact for these rectangles)."""
     h = max(y - 2.0, 0.0)
-    a_m, p_m = 10.0 * y, 10.0 + 2.0 * min(y, 2.0)
+    a_m, p_m = width * y, width + 2.0 * min(y, 2.0)
     zones = [(a_m, a_m ** (5 / 3) / (0.03 * p_m ** (2 / 3)))]
     if h > 0:
         a_f, p_f = 100.0 * h, 100.0 + h
@@ -40,15 +40,22 @@ def _zones(y):
     return zones
 
 
-def energy(y):
-    z = _zones(y)
+def energy(y, width=10.0):
+    z = _zones(y, width)
     a, k = sum(v[0] for v in z), sum(v[1] for v in z)
     alpha = sum(ki ** 3 / ai ** 2 for ai, ki in z) / (k ** 3 / a ** 2)
     return y + alpha * Q ** 2 / (2 * G * a ** 2)
 
 
-def dedy(y, h=1e-7):
-    return (energy(y + h) - energy(y - h)) / (2 * h)
+def dedy(y, h=1e-7, width=10.0):
+    return (energy(y + h, width) - energy(y - h, width)) / (2 * h)
+
+
+def band(y, width=10.0):
+    """How many times dE/dy changes sign below depth y: which branch y stands on (even: supercritical)."""
+    grid = np.linspace(0.05, y, 600)
+    signs = np.sign([dedy(v, width=width) for v in grid])
+    return int(np.count_nonzero(np.diff(signs)))
 
 
 def friction(y):
@@ -194,3 +201,30 @@ def test_a_supercritical_tailwater_on_a_mild_bed_is_refused_with_the_band():
         reach.solve()
     m2 = gv.critical_depths(COMPOUND, Q)[1]
     assert f"critical depth {m2:.4g}" in str(err.value)
+
+
+@pytest.mark.parametrize("slope, tail", [(0.004, 2.6), (0.004, 2.3), (0.001, 2.6)])
+def test_a_reach_through_changing_compound_sections_keeps_each_profile_on_its_branch(slope, tail):
+    # Five sections like COMPOUND whose main channel widens from 10 to 10.6 m and narrows again, 250 m
+    # apart: the main channel's width is linear between two sections (the points are matched one to one),
+    # so each station's section is known by hand. At every station the regime agrees with the sign of
+    # dE/dy there, and each subcritical or supercritical stretch stays on one branch.
+    stations = np.array([0.0, 250.0, 500.0, 750.0, 1000.0])
+    widths = np.array([10.0, 10.3, 10.6, 10.3, 10.0])
+    sections = [gv.Surveyed(offset=[-100, -100, 0, 0, w, w, w + 100, w + 100],
+                            elevation=np.array([5, 2, 2, 0, 0, 2, 2, 5]) + slope * (1000.0 - x),
+                            roughness=[0.05, 0.03, 0.05], zone_edges=[0, w])
+                for w, x in zip(widths, stations, strict=True)]
+    reach = gv.Reach.from_sections(stations=stations, sections=sections, discharge=Q,
+                                   downstream=gv.FixedDepth(tail))
+    p = reach.solve(n_steps=20)
+    width = np.interp(p.x, stations, widths)
+    slope_of_e = np.array([dedy(y, width=w) for y, w in zip(p.depth, width, strict=True)])
+    sub, sup = p.regime == "subcritical", p.regime == "supercritical"
+    assert (slope_of_e[sub] > -1e-6).all() and (slope_of_e[sup] < 1e-6).all()
+    branch = np.array([band(y, w) for y, w in zip(p.depth, width, strict=True)])
+    assert (branch[sub] % 2 == 1).all() and (branch[sup] % 2 == 0).all()
+    for mask in (sub, sup):
+        edges = np.flatnonzero(np.diff(np.concatenate([[0], mask.astype(int), [0]])))
+        for a, b in zip(edges[::2], edges[1::2], strict=True):
+            assert np.unique(branch[a:b]).size == 1, (p.x[a:b], p.depth[a:b], branch[a:b])

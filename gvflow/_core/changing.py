@@ -30,7 +30,7 @@ from __future__ import annotations
 import math
 
 from ._jit import kernel
-from .flow import critical_depth, specific_energy, specific_force, velocity_head
+from .flow import branch_limits, critical_depth, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
 from .march import evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
 from .records import Channel
@@ -388,3 +388,36 @@ def slope_at(cb, dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
     if -fr2 * dydx + b <= 0.0:
         return dydx, fr2
     return (b / fr2 if fr2 > 0.0 else 0.0), fr2
+
+
+@kernel
+def critical_along(cb, dn, fl, q, t, alpha, hint, out):
+    """out[s, j]: the critical depth of scenario s at fraction t[j] nearest the one at t[j - 1], from
+    ``hint[s]`` at t[0] (:func:`critical_near` carried along the segment: where a compound section has
+    several critical depths, those of one branch)."""
+    for s in range(q.shape[0]):
+        h = hint[s]
+        for j in range(t.shape[0]):
+            h = critical_near(channel_at(cb, dn, s, t[j]), fl, q[s] + dn.added * t[j], alpha, h, 1e-12)
+            out[s, j] = h
+
+
+@kernel
+def left_branch(cb, dn, fl, q, t, alpha, y, n_valid, branch, carried, out_j, out_far):
+    """Where the march of scenario s (depths y[s, :n_valid[s]] at fractions t) left the branch it started on:
+    the first station whose depth's branch (:func:`~gvflow._core.flow.branch_limits`) is bounded by another
+    critical depth than ``carried[s, j]`` (:func:`critical_along`), or m where none did; ``out_far[s]`` the
+    far limit of the branch at the station before."""
+    for s in range(q.shape[0]):
+        out_j[s] = t.shape[0]
+        out_far[s] = math.nan
+        far_prev = math.nan
+        for j in range(n_valid[s]):
+            ch = channel_at(cb, dn, s, t[j])
+            qj = q[s] + dn.added * t[j]
+            near, far, _ = branch_limits(ch, fl, qj, alpha, y[s, j], branch)
+            if abs(near - carried[s, j]) > 1e-6 * carried[s, j]:
+                out_j[s] = j
+                out_far[s] = far_prev
+                break
+            far_prev = far

@@ -224,10 +224,10 @@ class SegmentBatch:
                             None if self.far is None else self.far[idx])
 
     def several_critical(self) -> np.ndarray:
-        """Scenarios whose section has several critical depths at their discharge (a compound section)."""
-        if self.n_critical is None or self.change is not None:
-            return np.zeros(self.n, bool)
-        return self.n_critical > 1
+        """Scenarios whose section has several critical depths at their discharge (a compound section); for a
+        section changing along the segment, at either end."""
+        out = np.zeros(self.n, bool) if self.n_critical is None else self.n_critical > 1
+        return out if self.change is None else out | self.change.tail.several_critical()
 
     def branch_limits(self, y, branch) -> tuple[np.ndarray, np.ndarray]:
         """(near, far) per scenario: the critical depth and the other limit of the ``branch`` (SUB or SUPER)
@@ -286,6 +286,28 @@ class SegmentBatch:
         if t == 1.0:
             return np.ascontiguousarray(self.change.tail.yc, dtype=float)
         return np.full(self.n, np.nan)
+
+    def start_critical_depth(self, x, y0, branch) -> np.ndarray:
+        """:meth:`end_critical_depth` for a march that starts at depth ``y0`` on ``branch`` at that end: where
+        the end section has several critical depths, the critical depth of the branch ``y0`` stands on
+        (:meth:`branch_limits`), which the march between unlike sections then carries along."""
+        yc = self.end_critical_depth(x)
+        t = float(self.fractions([x])[0]) if self.change is not None else 0.0
+        end = self.tail if t == 1.0 else replace(self, change=None) if t == 0.0 else None
+        if end is None or not end.several_critical().any():
+            return yc
+        near, _ = end.branch_limits(np.broadcast_to(np.asarray(y0, dtype=float), (self.n,)), branch)
+        return np.ascontiguousarray(np.where(end.several_critical(), near, yc))
+
+    def critical_depths_along(self, t, hint) -> np.ndarray:
+        """Critical depth of each scenario at fractions ``t`` (m,) of a changing segment, shape (n, m), each
+        the one nearest its neighbour's from ``hint`` (n,) at t[0] on: one branch's where a compound section
+        has several (:func:`gvflow._core.changing.critical_along`)."""
+        t = np.ascontiguousarray(t, dtype=float)
+        out = np.empty((self.n, t.size))
+        core("changing", 100 * out.size).critical_along(self.cb, self.change.along, self.fl, self.discharge, t,
+                                                        self.alpha, np.ascontiguousarray(hint, dtype=float), out)
+        return out
 
     def critical_depths_at(self, t) -> np.ndarray:
         """Critical depth of each scenario at fractions ``t`` (m,) of a changing segment: shape (n, m)."""

@@ -118,9 +118,9 @@ class StandardStep(Marcher):
         force = np.zeros((0, 0)) if force is None else np.ascontiguousarray(force, dtype=float)
         out_y, out_n = np.empty((n, m)), np.empty(n, np.int64)
         out_xc, out_code = np.empty(n), np.empty(n, np.int64)
+        yc0 = seg.start_critical_depth(x[0], y0, branch)
         core("changing", 40 * n * m).march(seg.cb, c.along, seg.fl, seg.discharge, seg.slope, x,
-                                           seg.fractions(x), _per_scenario(y0, n), seg.end_critical_depth(x[0]),
-                                           int(branch), seg.alpha,
+                                           seg.fractions(x), _per_scenario(y0, n), yc0, int(branch), seg.alpha,
                                            c.contraction, c.expansion, AVERAGES[self.friction_average], self.tol,
                                            force, float(rtol), out_y, out_n, out_xc, out_code)
         return MarchResult(out_y, out_n, out_xc, out_code)
