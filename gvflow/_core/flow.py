@@ -191,9 +191,11 @@ def _scan_top(ch, fl, q, alpha):
 @kernel
 def _scan_grid(ch, top):
     """The depths at which :func:`critical_depths` evaluates dE/dy: geometric below the first breakpoint, then
-    every breakpoint with a hair either side and 16 points between neighbours, up to ``top``."""
+    every breakpoint with a hair either side, 8 points closing in on it geometrically from above (from 1/64
+    to 1/8192 of the way to the next: a floodplain just flooded can turn the flow supercritical over a
+    sliver of depth) and 16 points between neighbours, up to ``top``."""
     bps = breakpoint_depths(ch.kind, ch.par)
-    grid = np.empty(64 + 19 * (bps.size + 1))
+    grid = np.empty(64 + 27 * (bps.size + 1))
     k = 0
     first = bps[0] if bps.size > 0 else top
     for i in range(48):
@@ -202,6 +204,9 @@ def _scan_grid(ch, top):
     prev = first
     for j in range(bps.size + 1):
         nxt = bps[j] if j < bps.size else top
+        for i in range(13, 5, -1):
+            grid[k] = prev + (nxt - prev) * 2.0 ** (-i)
+            k += 1
         for i in range(1, 17):
             grid[k] = prev + (nxt - prev) * i / 17.0
             k += 1
