@@ -195,30 +195,28 @@ def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
     crit[:, 0] = crit0
     failed = (np.arange(m)[None, :] >= res.n_valid[:, None]) & (res.code == 1)[:, None]
     y = res.depth
+    t = seg.fractions(x_order)
+    rows = np.flatnonzero(seg.several_critical())
+    if rows.size:  # the critical depth of the branch each march starts on, carried along the segment
+        sub = seg.take(rows)
+        y0r = np.broadcast_to(np.asarray(y0, dtype=float), (n,))[rows]
+        carried = sub.critical_depths_along(t, sub.start_critical_depth(x_order[0], y0r, branch))
     if np.any(failed):
-        t = seg.fractions(x_order)
         fill = seg.critical_depths_at(t)
-        rows = np.flatnonzero(seg.several_critical() & failed.any(axis=1))
-        if rows.size:  # the critical depth of the branch the march was on, carried from its start
-            sub = seg.take(rows)
-            fill[rows] = sub.critical_depths_along(t, sub.start_critical_depth(x_order[0], np.asarray(
-                y0, dtype=float)[rows] if np.ndim(y0) else y0, branch))
+        if rows.size:
+            fill[rows] = carried
         y = np.where(failed, fill, y)
         crit |= failed
-    rows = np.flatnonzero(seg.several_critical())
     if rows.size:
-        _keep_to_branch(seg, rows, x_order, y, crit, res.n_valid, y0, branch)
+        _keep_to_branch(sub, rows, t, y, crit, res.n_valid, branch, carried)
     return y, crit
 
 
-def _keep_to_branch(seg, rows, x_order, y, crit, n_valid, y0, branch):
-    """Scenarios ``rows`` of a changing segment with several critical depths: from the first station where
-    the march left the branch it started on (past a maximum of specific energy, which bounds the branch as
-    critical depth does) the depth is that limit, flagged critical, as in a prismatic segment."""
-    sub = seg.take(rows)
-    t = seg.fractions(x_order)
-    carried = sub.critical_depths_along(t, sub.start_critical_depth(
-        x_order[0], np.asarray(y0, dtype=float)[rows] if np.ndim(y0) else y0, branch))
+def _keep_to_branch(sub, rows, t, y, crit, n_valid, branch, carried):
+    """Scenarios ``rows`` (the batch ``sub``) of a changing segment with several critical depths: from the
+    first station where the march left the branch it started on (whose critical depth along the segment is
+    ``carried``), past a maximum of specific energy, which bounds the branch as critical depth does, the
+    depth is that limit, flagged critical, as in a prismatic segment."""
     out_j, out_far = np.empty(rows.size, np.int64), np.empty(rows.size)
     core("changing", 200 * y.shape[1] * rows.size).left_branch(
         sub.cb, sub.change.along, sub.fl, np.ascontiguousarray(sub.discharge), t, sub.alpha,
@@ -951,9 +949,10 @@ def _jump_energy_notes(notes, segs, jumps):
     depth, the least energy)."""
     for s, xj, y1, y2, k, _, _ in jumps:
         seg = segs[k]
-        if math.isnan(xj) or seg.change is not None or not seg.several_critical()[s]:
+        if math.isnan(xj) or not seg.several_critical()[s]:
             continue
-        e1, e2 = _subset(seg, np.array([s])).specific_energy(np.array([[y1, y2]]))[0]
+        t = None if seg.change is None else np.repeat(seg.fractions([xj]), 2)  # a changing section: at the jump
+        e1, e2 = _subset(seg, np.array([s])).specific_energy(np.array([[y1, y2]]), t)[0]
         if e2 > e1 * (1 + 1e-9):
             notes[s].append(note(float(xj), "jump gains energy", gain=float(e2 - e1)))
 
