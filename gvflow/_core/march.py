@@ -22,7 +22,7 @@ from .codes import AVG_END, DARCY, SOLVED, SUB, SUPER  # noqa: F401
 from .flow import (
     critical_depth_batch,
     critical_depth_single,
-    normal_depth,
+    normal_depth_batch,
     specific_energy,
     specific_force,
     velocity_head,
@@ -572,9 +572,9 @@ def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, 
     scenario i's section has (more than one: a compound section near bankfull)."""
     if not known_yc:
         critical_depth_batch(cb, fl, q, alpha, yc, status, count)
+    normal_depth_batch(cb, fl, q, slope, yn, status_n)
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
-        yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)
         if status_n[i] != SOLVED:
             yn[i] = math.nan
         sf_c[i] = friction_slope(ch, fl, q[i], yc[i])
