@@ -110,11 +110,8 @@ def critical_depth_single(ch, fl, q, alpha):
         # Newton in ln y: d/d(ln y) [3 ln A - ln T] = y (3T/A - T'/T), nearly constant where A and T follow
         # powers of y, so tiny and huge depths converge as fast as ordinary ones
         df = y * (3.0 * t / a - dt / t) if a > 0.0 and t > 0.0 else 0.0
-        newton = 0.0 < df < math.inf and math.isfinite(f)
-        yn = y * math.exp(-f / df) if newton else _split(lo, hi)
-        if newton and abs(yn - y) <= _RTOL * y:
-            pass  # a Newton step within round-off of y, which may sit on the bracket's end: converged
-        elif not (lo < yn < hi):
+        yn = y * math.exp(-f / df) if 0.0 < df < math.inf and math.isfinite(f) else _split(lo, hi)
+        if not (lo < yn < hi):
             yn = _split(lo, hi)
         if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
             # converged on the depth; the residual (a relative error in alpha Q² T/(g A³)) must be small too
