@@ -33,7 +33,7 @@ import numpy as np
 
 from ._jit import kernel
 from .codes import DARCY
-from .flow import _proportional, critical_depth, specific_energy, specific_force, velocity_head
+from .flow import critical_depth, proportional, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
 from .march import evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
 from .records import Channel
@@ -106,7 +106,7 @@ def _alike(cb, dn, q, s, p):
     same Froude number at every depth (module notes of :func:`~gvflow._core.flow.critical_depth_batch`)."""
     if q[s] != q[p] or cb.law == DARCY:
         return False
-    if not (_proportional(cb.rough[s], cb.rough[p]) and _proportional(dn.rough[s], dn.rough[p])):
+    if not (proportional(cb.rough[s], cb.rough[p]) and proportional(dn.rough[s], dn.rough[p])):
         return False
     f_up = cb.rough[s][0] / cb.rough[p][0]
     f_dn = dn.rough[s][0] / dn.rough[p][0]

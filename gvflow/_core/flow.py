@@ -397,7 +397,7 @@ def normal_depth_batch(cb, fl, q, s0, yn, status):
     for s in range(q.shape[0]):
         ch = Channel(cb.kind, cb.par, cb.law, cb.rough[s])
         if s0 > 0.0 and prev >= 0 and cb.law != DARCY and max_depth(ch.kind, ch.par) == math.inf \
-                and _proportional(cb.rough[s], cb.rough[prev]):
+                and proportional(cb.rough[s], cb.rough[prev]):
             f = cb.rough[s][0] / cb.rough[prev][0]
             rho = (q[s] / q[prev]) * (f if cb.law == MANNING else 1.0 / f)
             m = -0.5 * slope_prev  # d ln K/d ln y = -(d ln Sf/d ln y)/2
@@ -443,7 +443,7 @@ def critical_depth(ch, fl, q, alpha):
 
 
 @kernel
-def _proportional(r, ref):
+def proportional(r, ref):
     """Whether roughness row ``r`` is ``ref`` times one factor, to 2e-15 relative in every zone."""
     f = r[0] / ref[0]
     for z in range(1, r.shape[0]):
@@ -477,14 +477,14 @@ def critical_depth_batch(cb, fl, q, alpha, yc, status, count):
         if ch.kind != SURVEYED:
             yc[s], status[s], count[s] = critical_depth(ch, fl, q[s], alpha)
             continue
-        if s > 0 and q[s] == q[s - 1] and cb.law != DARCY and _proportional(cb.rough[s], cb.rough[s - 1]):
+        if s > 0 and q[s] == q[s - 1] and cb.law != DARCY and proportional(cb.rough[s], cb.rough[s - 1]):
             yc[s], status[s], count[s] = yc[s - 1], status[s - 1], count[s - 1]
             continue
         top = _scan_top(ch, fl, q[s], alpha)
         if not top < math.inf:
             yc[s], status[s], count[s] = math.nan, NO_ROOT, 0
             continue
-        if ref < 0 or top != top_ref or not _proportional(cb.rough[s], cb.rough[ref]):
+        if ref < 0 or top != top_ref or not proportional(cb.rough[s], cb.rough[ref]):
             ref = s
             top_ref = top
             grid = _scan_grid(ch, top)
