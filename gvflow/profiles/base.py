@@ -136,10 +136,11 @@ class SegmentBatch:
         code, status, status_n, count = (np.empty(q.shape, np.int64) for _ in range(4))
         # (the section's own parameters and its roughness to 13 decimals: one section met at the end of one
         # changing segment and the head of the next, whose roughness rows may differ by round-off; all of its
-        # constants where the bed slope is the same too)
+        # constants where the bed slope is the same too, to 13 significant digits: the slopes of two segments
+        # laid at one slope may differ by round-off, their elevations' differences divided by their lengths)
         key = None if memo is None else (section.core_params()[1].tobytes(), law, np.round(c, 13).tobytes(),
                                          q.tobytes(), float(alpha))
-        whole = None if key is None else key + (float(slope), float(critical_tolerance))
+        whole = None if key is None else key + (f"{float(slope):.13g}", float(critical_tolerance))
         known = key is not None and key in memo
         if whole is not None and whole in memo:
             for out, kept in zip((yc, yn, sf_c, code, status, status_n, count), memo[whole], strict=True):
