@@ -28,7 +28,7 @@ import numpy as np
 
 from ._jit import kernel
 from .codes import DARCY, MANNING, NO_ROOT, NOT_CONVERGED, SOLVED
-from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
+from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth, single_zone_depth
 from .records import Channel
 from .resistance import conveyance, froude_squared, hydraulics, velocity_coefficients
 
@@ -465,13 +465,17 @@ def critical_depth_batch(cb, fl, q, alpha, yc, status, count):
     each depth is the one found alone, but for a grid point where dE/dy is zero to round-off. A scenario
     whose discharge is the previous one's and whose zone roughness row is proportional to it (a roughness
     factor) has the same Froude number at every depth, so the same critical depths: it takes the previous
-    scenario's (the depth found alone to round-off; a polish of its own would only move it by that).
+    scenario's (the depth found alone to round-off; a polish of its own would only move it by that). A
+    scenario whose zone roughness is not proportional to the scan's (zones drawn independently) keeps the
+    scan's values below :func:`~gvflow._core.geometry.single_zone_depth`, where one zone holds all the
+    water and the Froude number does not depend on the roughness, and scans the depths above again.
     """
     buf = np.empty(64)
     grid = np.empty(0)
     fr2 = np.empty(0)
     ref = -1
     top_ref = math.nan
+    one_zone = single_zone_depth(cb.kind, cb.par) if cb.law != DARCY else 0.0
     for s in range(q.shape[0]):
         ch = Channel(cb.kind, cb.par, cb.law, cb.rough[s])
         if ch.kind != SURVEYED:
@@ -484,7 +488,17 @@ def critical_depth_batch(cb, fl, q, alpha, yc, status, count):
         if not top < math.inf:
             yc[s], status[s], count[s] = math.nan, NO_ROOT, 0
             continue
-        if ref < 0 or top != top_ref or not proportional(cb.rough[s], cb.rough[ref]):
+        if ref >= 0 and top == top_ref and not proportional(cb.rough[s], cb.rough[ref]):
+            # the same grid: where at most one zone holds water the Froude number does not depend on the
+            # roughness at all (Q² T/(g A³) of that zone), so only the depths above are scanned again
+            rescale = (q[s] / q[ref]) * (q[s] / q[ref])
+            for i in range(grid.size):
+                if grid[i] < one_zone:
+                    fr2[i] *= rescale
+                else:
+                    fr2[i] = froude_squared(ch, fl, q[s], grid[i], alpha)
+            ref = s
+        elif ref < 0 or top != top_ref or not proportional(cb.rough[s], cb.rough[ref]):
             ref = s
             top_ref = top
             grid = _scan_grid(ch, top)
