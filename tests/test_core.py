@@ -81,6 +81,22 @@ SECTIONS = [
 ]
 
 
+@pytest.mark.parametrize("x, z, edges", [s for s in SECTIONS if s[2]])
+def test_single_zone_depth_against_polygon_clipping(x, z, edges):
+    # below it one zone at most holds water, just above it two do (shapely's zone areas); the critical depth
+    # scan of independently rough scenarios shares its values there
+    par = G.pack_surveyed(x, z, edges)
+    bounds = [x[0], *edges, x[-1]]
+    y1 = G.single_zone_depth(G.SURVEYED, par)
+    assert 0.0 <= y1 < np.inf  # 0 where two zones share the lowest ground (the rectangle split in two)
+
+    def wet_zones(y):
+        return sum(_shapely_props(x, z, y, bounds[i], bounds[i + 1])[0] > 1e-12 for i in range(len(bounds) - 1))
+
+    assert all(wet_zones(y) <= 1 for y in np.linspace(0.01, 1.0 - 1e-9, 7) * y1)
+    assert wet_zones(max(y1 * (1.0 + 1e-3), 1e-3)) >= 2
+
+
 @pytest.mark.parametrize("x, z, edges", SECTIONS)
 def test_surveyed_geometry_against_polygon_clipping(x, z, edges):
     par = G.pack_surveyed(x, z, edges)

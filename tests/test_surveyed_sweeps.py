@@ -81,6 +81,51 @@ def test_roughness_scale_scales_every_zone_and_each_scenario_is_the_reach_alone(
     assert res.depth[0, 0] < res.depth[1, 0] < res.depth[2, 0]
 
 
+def chezy_normal_depth(q, c_left, c_main, c_right, slope=SLOPE):
+    """Normal depth of CHEZY above its banks by the divided-channel method, worked by hand: K_i = C_i A_i
+    R_i^(1/2) (Chow 1959, §6-2 and §6-7), floodplains 60 and 48 wide, main channel 12 wide and 2 deep."""
+    def conveyance(y):
+        h = y - 2.0
+        return sum(c * a * np.sqrt(a / p) for c, a, p in ((c_left, 60 * h, 60 + h), (c_main, 12 * y, 16.0),
+                                                          (c_right, 48 * h, 48 + h)))
+
+    return brentq(lambda y: conveyance(y) * np.sqrt(slope) - q, 2.0 + 1e-9, 20.0, xtol=1e-14, rtol=1e-15)
+
+
+@pytest.mark.filterwarnings("ignore:.*critical depths at discharge")  # OTHER near bankfull: two, as it should
+@pytest.mark.parametrize("swept", ["roughness_scale", "discharge"])
+def test_constants_of_scenarios_a_factor_apart_follow_each_ones_own_equations(swept):
+    # the batch finds the normal depth of each scenario whose zone roughness is the one before times a factor
+    # from that scenario's root, and gives it the same critical depth (the compound Froude number does not
+    # change when every zone conveyance scales alike): each must still be its own scenario's, by the
+    # divided-channel method worked by hand, and the critical depth the section's at that discharge alone
+    reach = mixed_reach()
+    f = np.linspace(0.7, 1.4, 41)
+    q = 60.0 * f if swept == "discharge" else np.full(f.size, 60.0)
+    res = reach.sweep(roughness_scale=f, n_steps=5) if swept == "roughness_scale" else \
+        reach.sweep(discharge=q, n_steps=5)
+    g = f if swept == "roughness_scale" else np.ones(f.size)
+    for i in range(f.size):
+        assert res.normal_depths[i, 0] == pytest.approx(compound_normal_depth(q[i], 0.05 * g[i], 0.03 * g[i],
+                                                                              0.05 * g[i]), rel=1e-12)
+        assert res.normal_depths[i, 3] == pytest.approx(chezy_normal_depth(q[i], 25.0 / g[i], 40.0 / g[i],
+                                                                           25.0 / g[i]), rel=1e-12)
+    for k, sec in ((0, COMPOUND), (2, OTHER), (3, CHEZY)):
+        for i in range(f.size):
+            assert res.critical_depths[i, k] == pytest.approx(
+                branch_critical_depth(sec, q[i], res.normal_depths[i, k]), rel=1e-12)
+
+
+def branch_critical_depth(section, q, yn):
+    """The section's critical depth at discharge q on the branch of its normal depth yn: with several, the
+    highest one below a subcritical yn (compound Froude number at most 1) or the lowest one above a
+    supercritical yn; with one, that one."""
+    depths = gv.critical_depths(section, q)
+    if depths.size == 1:
+        return depths[0]
+    return depths[depths <= yn].max() if gv.froude_number(section, q, yn) <= 1 else depths[depths > yn].min()
+
+
 def test_roughness_scale_per_segment():
     reach = mixed_reach()
     f = np.array([[1.0, 1.0, 1.0, 1.0], [1.2, 0.9, 1.0, 1.1]])

@@ -29,8 +29,11 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from ._jit import kernel
-from .flow import branch_limits, critical_depth, specific_energy, specific_force, velocity_head
+from .codes import DARCY
+from .flow import branch_limits, critical_depth, proportional, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
 from .march import evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
 from .records import Channel
@@ -50,6 +53,14 @@ def blend(kind, par_up, par_dn, t):
 
 
 @kernel
+def _rough_into(out, r_up, r_dn, t):
+    """out[:] = (1 - t) * r_up + t * r_dn, zone by zone (the zone roughness at fraction t)."""
+    for z in range(out.shape[0]):
+        out[z] = (1.0 - t) * r_up[z] + t * r_dn[z]
+    return out
+
+
+@kernel
 def channel_at(cb, dn, s, t):
     """The :class:`~gvflow._core.records.Channel` of scenario ``s`` at fraction ``t`` of a changing segment
     (``dn`` its :class:`~gvflow._core.records.Along` record): parameters and zone roughness linear in t,
@@ -58,7 +69,48 @@ def channel_at(cb, dn, s, t):
         return Channel(cb.kind, cb.par, cb.law, cb.rough[s])
     if t == 1.0:
         return Channel(cb.kind, dn.par, cb.law, dn.rough[s])
-    return Channel(cb.kind, blend(cb.kind, cb.par, dn.par, t), cb.law, (1.0 - t) * cb.rough[s] + t * dn.rough[s])
+    return Channel(cb.kind, blend(cb.kind, cb.par, dn.par, t), cb.law,
+                   _rough_into(np.empty(cb.rough.shape[1]), cb.rough[s], dn.rough[s], t))
+
+
+@kernel
+def _station_parameters(cb, dn, t):
+    """Row j: the section parameters at fraction t[j] (:func:`channel_at`'s), the same for every scenario."""
+    out = np.empty((t.shape[0], cb.par.shape[0]))
+    for j in range(t.shape[0]):
+        if t[j] == 0.0:
+            out[j] = cb.par
+        elif t[j] == 1.0:
+            out[j] = dn.par
+        else:
+            out[j] = blend(cb.kind, cb.par, dn.par, t[j])
+    return out
+
+
+@kernel
+def _station_roughness(cb, dn, s, t, out):
+    """Row j of ``out``: scenario s's zone roughness at fraction t[j] (:func:`channel_at`'s)."""
+    for j in range(t.shape[0]):
+        if t[j] == 0.0:
+            out[j] = cb.rough[s]
+        elif t[j] == 1.0:
+            out[j] = dn.rough[s]
+        else:
+            _rough_into(out[j], cb.rough[s], dn.rough[s], t[j])
+
+
+@kernel
+def _alike(cb, dn, q, s, p):
+    """Whether scenarios s and p have the same discharge and zone roughness rows proportional by one factor at
+    both ends of the segment, so the same section at every fraction but for a common roughness factor: the
+    same Froude number at every depth (module notes of :func:`~gvflow._core.flow.critical_depth_batch`)."""
+    if q[s] != q[p] or cb.law == DARCY:
+        return False
+    if not (proportional(cb.rough[s], cb.rough[p]) and proportional(dn.rough[s], dn.rough[p])):
+        return False
+    f_up = cb.rough[s][0] / cb.rough[p][0]
+    f_dn = dn.rough[s][0] / dn.rough[p][0]
+    return abs(f_up - f_dn) <= 2e-15 * f_up
 
 
 @kernel
@@ -205,34 +257,46 @@ ROUGH_CRITICAL = 1e-3
 
 
 @kernel
-def _interval(cb, dn, fl, s, q, s0, y1, e1, sf1, hv1, t1, t2, d, branch, alpha, cc, ce, avg, tol, guess, nsub,
-              yc_hint, contraction_first):
-    """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d), from depth
-    y1 whose state e1, sf1, hv1 is known (:func:`~gvflow._core.march.station_state`; unused with lateral
-    inflow): (depth, code, stations done, critical depth at the end, whether the last step was a
-    contraction, the state at the end). ``yc_hint`` is the critical depth at t1; away from critical depth it
-    is carried along by one scaling step per station, yc ~ hint Fc²(hint)^(1/3) (exact for a rectangle),
-    which keeps it close enough to bound the branch, and taken precisely (:func:`critical_near`) near
-    critical depth or after a failed step."""
+def _carry_critical(ch2, fl, q2, alpha, yc):
+    """The critical depth carried to the next section from ``yc`` (the one at the section before) by one
+    scaling step, yc Fc²(yc)^(1/3) (exact for a rectangle): close enough to bound the branch away from it."""
+    f2 = froude_squared(ch2, fl, q2, yc, alpha)
+    if f2 > 0.0 and math.isfinite(f2):
+        return yc * f2 ** (1.0 / 3.0)
+    return yc
+
+
+@kernel
+def _interval(cb, dn, fl, s, q, s0, y1, e1, sf1, hv1, t1, t2, ch_a, ch_b, d, branch, alpha, cc, ce, avg, tol,
+              guess, nsub, yc_hint, yc_carried, contraction_first):
+    """Depth after ``nsub`` equal sub-steps of a changing interval from t1 to t2 (signed length d; ``ch_a`` and
+    ``ch_b`` the channels at its ends), from depth y1 whose state e1, sf1, hv1 is known
+    (:func:`~gvflow._core.march.station_state`; unused with lateral inflow): (depth, code, stations done,
+    critical depth at the end, whether the last step was a contraction, the state at the end). ``yc_hint``
+    is the critical depth at t1; away from critical depth it is carried along by :func:`_carry_critical`
+    (``yc_carried``, when not NaN, is that carry to t2, known for one step), which keeps it close enough to
+    bound the branch, and taken precisely (:func:`critical_near`) near critical depth or after a failed
+    step."""
     y = y1
-    ch1 = channel_at(cb, dn, s, t1)
+    ch1 = ch_a
     ta = t1
     yc2 = yc_hint
     code = 0
     y2 = y
     e2, sf2, hv2 = e1, sf1, hv1
     for k in range(nsub):
-        tb = t1 + (t2 - t1) * (k + 1) / nsub
-        ch2 = channel_at(cb, dn, s, tb)
+        last = k == nsub - 1
+        tb = t2 if last else t1 + (t2 - t1) * (k + 1) / nsub
+        ch2 = ch_b if last else channel_at(cb, dn, s, tb)
         q1 = q + dn.added * ta
         q2 = q + dn.added * tb
         near = abs(y - yc2) <= NEAR_CRITICAL * yc2
         if near:
             yc2 = critical_near(ch2, fl, q2, alpha, yc2, tol)
+        elif nsub == 1 and yc_carried == yc_carried:
+            yc2 = yc_carried
         else:
-            f2 = froude_squared(ch2, fl, q2, yc2, alpha)
-            if f2 > 0.0 and math.isfinite(f2):
-                yc2 *= f2 ** (1.0 / 3.0)
+            yc2 = _carry_critical(ch2, fl, q2, alpha, yc2)
         for _ in range(2):
             if dn.added != 0.0:
                 y2, code = momentum_step(ch2, fl, q1, q2, s0, y, d / nsub, yc2, branch, alpha, avg, tol)
@@ -261,17 +325,30 @@ def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, unt
     :func:`gvflow._core.march.march`; ``yc0[s]`` is the critical depth at the first station where the caller
     knows it (NaN: found here). An interval whose step finds no root on the branch is taken again
     as 4, then 16, then 64 sub-steps through the sections between; if they fail too, the profile
-    reaches critical depth in it (code 1, ``out_xc`` where the sub-steps stopped)."""
+    reaches critical depth in it (code 1, ``out_xc`` where the sub-steps stopped).
+
+    The section parameters at the stations are the same for every scenario and are interpolated once.
+    Scenarios alike in the sense of :func:`_alike` (a roughness factor) have the same Froude number at every
+    depth, so the same carried critical depth from the same one at the station before: the first of them to
+    reach a station with a given carried depth keeps the carry, and the rest take it (to round-off the
+    carry each would make alone)."""
     m = x.shape[0]
     watch = until_force.shape[0] > 0
     even = evenly_spaced(x)
+    pars = _station_parameters(cb, dn, t)
+    rough = np.empty((m, cb.rough.shape[1]))
+    carry_in = np.full(m, math.nan)  # per station: the critical depth carried from, and to
+    carry_out = np.full(m, math.nan)
     for s in range(q.shape[0]):
+        if s == 0 or not _alike(cb, dn, q, s, s - 1):
+            carry_in[:] = math.nan
+        _station_roughness(cb, dn, s, t, rough)
         y = y0[s]
         out_y[s, 0] = y
         out_n[s] = m
         out_xc[s] = math.nan
         out_code[s] = 0
-        ch0 = channel_at(cb, dn, s, t[0])
+        ch0 = Channel(cb.kind, pars[0], cb.law, rough[0])
         if watch and specific_force(ch0, fl, q[s] + dn.added * t[0], y, alpha) < until_force[s, 0] * (1.0 - force_tol):
             stop_march(out_y, out_n, out_code, s, 1, 4)
             continue
@@ -282,15 +359,25 @@ def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, unt
         contraction = True
         for j in range(1, m):
             d = x[j] - x[j - 1]
+            ch_a = Channel(cb.kind, pars[j - 1], cb.law, rough[j - 1])
+            ch_b = Channel(cb.kind, pars[j], cb.law, rough[j])
+            carried = math.nan
+            if not abs(y - yc) <= NEAR_CRITICAL * yc:  # the carry is used: shared, or made and kept
+                if carry_in[j] == yc:
+                    carried = carry_out[j]
+                else:
+                    carried = _carry_critical(ch_b, fl, q[s] + dn.added * t[j], alpha, yc)
+                    carry_in[j] = yc
+                    carry_out[j] = carried
             guess = extrapolate(x, out_y[s], j, even)
             y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],
-                                                               t[j], d, branch, alpha, cc, ce, avg, tol, guess, 1,
-                                                               yc, contraction)
+                                                               t[j], ch_a, ch_b, d, branch, alpha, cc, ce, avg,
+                                                               tol, guess, 1, yc, carried, contraction)
             nsub = 4
             while code == 1 and nsub <= 64:
                 y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],
-                                                                   t[j], d, branch, alpha, cc, ce, avg, tol, y,
-                                                                   nsub, yc, contraction)
+                                                                   t[j], ch_a, ch_b, d, branch, alpha, cc, ce,
+                                                                   avg, tol, y, nsub, yc, math.nan, contraction)
                 if code == 1 and nsub == 64:
                     out_xc[s] = x[j - 1] + d * done / nsub
                 nsub *= 4
@@ -301,7 +388,7 @@ def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, unt
             y, e, sf, hv = y2, e2, sf2, hv2
             yc = yc2
             contraction = way
-            if watch and specific_force(channel_at(cb, dn, s, t[j]), fl, q[s] + dn.added * t[j], y, alpha) < \
+            if watch and specific_force(ch_b, fl, q[s] + dn.added * t[j], y, alpha) < \
                     until_force[s, j] * (1.0 - force_tol):
                 stop_march(out_y, out_n, out_code, s, j + 1, 4)
                 break

@@ -27,10 +27,10 @@ import math
 import numpy as np
 
 from ._jit import kernel
-from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED, SUB
-from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
+from .codes import DARCY, MANNING, NO_ROOT, NOT_CONVERGED, SOLVED, SUB
+from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth, single_zone_depth
 from .records import Channel
-from .resistance import conveyance, dlnsf_dy, froude_squared, hydraulics, velocity_coefficients
+from .resistance import conveyance, froude_squared, hydraulics, velocity_coefficients
 
 _RTOL = 1e-14
 
@@ -391,6 +391,14 @@ def _log_sf(ch, fl, q, y):
 
 
 @kernel
+def _log_sf_slope(ch, fl, q, y):
+    """(ln Sf, d ln Sf/dy) at depth y from one pass of :func:`~gvflow._core.resistance.hydraulics`: the same
+    values as :func:`_log_sf` and :func:`~gvflow._core.resistance.dlnsf_dy`."""
+    h = hydraulics(ch, fl, q, y, 1.0)
+    return 2.0 * (math.log(q) - ln(h[3])), -2.0 * h[4]
+
+
+@kernel
 def normal_depth(ch, fl, q, s0):
     """Depth of uniform flow, Sf(y) = S0; (depth, status).
 
@@ -400,32 +408,49 @@ def normal_depth(ch, fl, q, s0):
     and a discharge above the peak's has no root. Otherwise safeguarded Newton
     on ln Sf(y) - ln S0, decreasing in depth.
     """
+    y, status, slope = _normal_depth_slope(ch, fl, q, s0)
+    return y, status
+
+
+@kernel
+def _normal_depth_slope(ch, fl, q, s0):
+    """:func:`normal_depth` and d ln Sf/d ln y at the last depth its iteration evaluated (NaN if none)."""
     if not s0 > 0.0:
-        return math.nan, NO_ROOT
+        return math.nan, NO_ROOT, math.nan
     lns0 = math.log(s0)
     if max_depth(ch.kind, ch.par) < math.inf:
         hi, k_peak = peak_conveyance(ch, fl, q)
         if _log_sf(ch, fl, q, hi) > lns0 + math.log1p(1e-12):
-            return math.nan, NO_ROOT
+            return math.nan, NO_ROOT, math.nan
     else:
         hi = 1.0
+        f_hi = _log_sf(ch, fl, q, hi)
         for _ in range(1000):
-            if _log_sf(ch, fl, q, hi) < lns0:
+            if f_hi < lns0:
                 break
             hi *= 2.0
-        if not _log_sf(ch, fl, q, hi) < lns0:
-            return math.nan, NO_ROOT
-    lo = 0.0
-    y = 0.5 * hi
+            f_hi = _log_sf(ch, fl, q, hi)
+        if not f_hi < lns0:
+            return math.nan, NO_ROOT, math.nan
+    return _normal_newton(ch, fl, q, lns0, 0.0, hi, 0.5 * hi)
+
+
+@kernel
+def _normal_newton(ch, fl, q, lns0, lo, hi, y):
+    """Safeguarded Newton in ln y on ln Sf(y) - ln S0 from depth y inside the bracket (lo, hi) of the root
+    (hi may be infinite: the bracket then grows by doubling); (depth, status as :func:`normal_depth`,
+    d ln Sf/d ln y at the last depth evaluated)."""
     y_prev = f_prev = math.nan
+    df = math.nan
     for _ in range(200):
-        f = _log_sf(ch, fl, q, y) - lns0  # decreasing in y
+        f, df = _log_sf_slope(ch, fl, q, y)
+        f -= lns0  # decreasing in y
         if f > 0.0:
             lo = y
         else:
             hi = y
         # Newton in ln y (see critical_depth_single): d ln Sf / d ln y = y dlnsf_dy
-        df = y * dlnsf_dy(ch, fl, q, y)
+        df *= y
         if ch.law == DARCY and y_prev == y_prev and y != y_prev:
             # Darcy: dlnsf_dy holds the friction factor fixed, which is far off where ks/4R is large;
             # the secant slope keeps the iteration superlinear
@@ -433,17 +458,53 @@ def normal_depth(ch, fl, q, s0):
             if sec < 0.0:
                 df = sec
         y_prev, f_prev = y, f
-        yn = y * math.exp(-f / df) if -math.inf < df < 0.0 and math.isfinite(f) else _split(lo, hi)
-        if not (lo < yn < hi):
-            yn = _split(lo, hi)
-        if abs(yn - y) <= _RTOL * y or hi - lo <= 1e-15 * hi:
+        newton = -math.inf < df < 0.0 and math.isfinite(f)
+        yn = y * math.exp(-f / df) if newton else math.nan
+        if newton and abs(yn - y) <= _RTOL * y:
+            pass  # a Newton step within round-off of y, which may sit on the bracket's end: converged
+        elif not (lo < yn < hi):
+            yn = _split(lo, hi) if hi < math.inf else 2.0 * lo
+        if abs(yn - y) <= _RTOL * y or (hi < math.inf and hi - lo <= 1e-15 * hi):
             # converged on the depth; the friction slope there must match the bed slope too (it need not
             # where the resistance law is not monotone in depth, e.g. a roughness height near 2R)
             if abs(_log_sf(ch, fl, q, yn) - lns0) <= 1e-8:
-                return yn, SOLVED
-            return yn, NOT_CONVERGED
+                return yn, SOLVED, df
+            return yn, NOT_CONVERGED, df
         y = yn
-    return y, NOT_CONVERGED
+    return y, NOT_CONVERGED, df
+
+
+@kernel
+def normal_depth_batch(cb, fl, q, s0, yn, status):
+    """:func:`normal_depth` of every scenario s of a channel batch (discharge q[s], roughness row s) into
+    yn[s] and status[s].
+
+    Where a scenario's zone roughness row is the previous one's times one factor f (a roughness or discharge
+    sweep) in an open section under Manning's or Chezy's law, every zone conveyance is the previous one's
+    times 1/f (Manning) or f (Chezy): the new normal depth has the conveyance K(yn) = rho K_prev(yn_prev),
+    rho the ratio of the two Q/(f or 1/f). Newton then starts from yn_prev rho^(1/m), m = d ln K/d ln y at
+    yn_prev (off the new root by about the square of the step between the two), and polishes on the
+    scenario's own conveyance to the tolerance :func:`normal_depth` meets: the depth found alone, to
+    round-off. A start that fails falls back to :func:`normal_depth`.
+    """
+    prev = -1
+    slope_prev = math.nan
+    for s in range(q.shape[0]):
+        ch = Channel(cb.kind, cb.par, cb.law, cb.rough[s])
+        if s0 > 0.0 and prev >= 0 and cb.law != DARCY and max_depth(ch.kind, ch.par) == math.inf \
+                and proportional(cb.rough[s], cb.rough[prev]):
+            f = cb.rough[s][0] / cb.rough[prev][0]
+            rho = (q[s] / q[prev]) * (f if cb.law == MANNING else 1.0 / f)
+            m = -0.5 * slope_prev  # d ln K/d ln y = -(d ln Sf/d ln y)/2
+            guess = yn[prev] * math.exp(math.log(rho) / m) if 0.0 < m < math.inf else yn[prev]
+            if guess > 0.0 and math.isfinite(guess):
+                y, st, slope = _normal_newton(ch, fl, q[s], math.log(s0), 0.0, math.inf, guess)
+                if st == SOLVED:
+                    yn[s], status[s] = y, st
+                    prev, slope_prev = s, slope
+                    continue
+        yn[s], status[s], slope_prev = _normal_depth_slope(ch, fl, q[s], s0)
+        prev = s if status[s] == SOLVED else -1
 
 
 @kernel
@@ -477,7 +538,7 @@ def critical_depth(ch, fl, q, alpha):
 
 
 @kernel
-def _proportional(r, ref):
+def proportional(r, ref):
     """Whether roughness row ``r`` is ``ref`` times one factor, to 2e-15 relative in every zone."""
     f = r[0] / ref[0]
     for z in range(1, r.shape[0]):
@@ -496,23 +557,43 @@ def critical_depth_batch(cb, fl, q, alpha, yc, status, count):
     are proportional (a discharge sweep, a roughness factor) share the scan of :func:`critical_depths`,
     taken once at a reference discharge q0 and scaled by (q/q0)², whenever their scan spans the same
     depths. The brackets found are then polished with each scenario's own discharge and roughness, so
-    each depth is the one found alone, but for a grid point where dE/dy is zero to round-off.
+    each depth is the one found alone, but for a grid point where dE/dy is zero to round-off. A scenario
+    whose discharge is the previous one's and whose zone roughness row is proportional to it (a roughness
+    factor) has the same Froude number at every depth, so the same critical depths: it takes the previous
+    scenario's (the depth found alone to round-off; a polish of its own would only move it by that). A
+    scenario whose zone roughness is not proportional to the scan's (zones drawn independently) keeps the
+    scan's values below :func:`~gvflow._core.geometry.single_zone_depth`, where one zone holds all the
+    water and the Froude number does not depend on the roughness, and scans the depths above again.
     """
     buf = np.empty(64)
     grid = np.empty(0)
     fr2 = np.empty(0)
     ref = -1
     top_ref = math.nan
+    one_zone = single_zone_depth(cb.kind, cb.par) if cb.law != DARCY else 0.0
     for s in range(q.shape[0]):
         ch = Channel(cb.kind, cb.par, cb.law, cb.rough[s])
         if ch.kind != SURVEYED:
             yc[s], status[s], count[s] = critical_depth(ch, fl, q[s], alpha)
             continue
+        if s > 0 and q[s] == q[s - 1] and cb.law != DARCY and proportional(cb.rough[s], cb.rough[s - 1]):
+            yc[s], status[s], count[s] = yc[s - 1], status[s - 1], count[s - 1]
+            continue
         top = _scan_top(ch, fl, q[s], alpha)
         if not top < math.inf:
             yc[s], status[s], count[s] = math.nan, NO_ROOT, 0
             continue
-        if ref < 0 or top != top_ref or not _proportional(cb.rough[s], cb.rough[ref]):
+        if ref >= 0 and top == top_ref and not proportional(cb.rough[s], cb.rough[ref]):
+            # the same grid: where at most one zone holds water the Froude number does not depend on the
+            # roughness at all (Q² T/(g A³) of that zone), so only the depths above are scanned again
+            rescale = (q[s] / q[ref]) * (q[s] / q[ref])
+            for i in range(grid.size):
+                if grid[i] < one_zone:
+                    fr2[i] *= rescale
+                else:
+                    fr2[i] = froude_squared(ch, fl, q[s], grid[i], alpha)
+            ref = s
+        elif ref < 0 or top != top_ref or not proportional(cb.rough[s], cb.rough[ref]):
             ref = s
             top_ref = top
             grid = _scan_grid(ch, top)

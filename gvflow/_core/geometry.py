@@ -293,3 +293,41 @@ def breakpoint_depths(kind, par):
             out[k] = z[j]
             k += 1
     return out[:k]
+
+
+@kernel
+def single_zone_depth(kind, par):
+    """The depth below which at most one roughness zone holds water: infinite for a section of one zone,
+    else the second lowest over the zones of the depth at which each first holds water (the lowest ground
+    over its width, of the pieces that overlap it as :func:`surveyed_zone_from` takes them, or its
+    activation depth where that is higher)."""
+    if kind != SURVEYED:
+        return math.inf
+    n = int(par[0])
+    nz = int(par[1])
+    if nz < 2:
+        return math.inf
+    xs = 2
+    zs = 2 + n
+    first = second = math.inf
+    for i in range(nz):
+        lo = par[2 + 2 * n + i]
+        hi = par[3 + 2 * n + i]
+        low = math.inf
+        for j in range(n - 1):
+            xa = par[xs + j]
+            xb = par[xs + j + 1]
+            u = max(xa, lo)
+            v = min(xb, hi)
+            if xb == xa or v <= u:
+                continue  # a wall holds no water; nor does a piece outside the zone
+            za = par[zs + j]
+            slope = (par[zs + j + 1] - za) / (xb - xa)
+            low = min(low, za + slope * (u - xa), za + slope * (v - xa))
+        wet = max(low, par[3 + 2 * n + nz + i])
+        if wet < first:
+            second = first
+            first = wet
+        elif wet < second:
+            second = wet
+    return second

@@ -23,7 +23,8 @@ from .flow import (
     branch_limits,
     critical_depth_batch,
     critical_depth_single,
-    normal_depth,
+    normal_depth_batch,
+    proportional,
     specific_energy,
     specific_force,
     velocity_head,
@@ -573,9 +574,9 @@ def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, 
     scenario i's section has (more than one: a compound section near bankfull)."""
     if not known_yc:
         critical_depth_batch(cb, fl, q, alpha, yc, status, count)
+    normal_depth_batch(cb, fl, q, slope, yn, status_n)
     for i in range(q.shape[0]):
         ch = scenario(cb, i)
-        yn[i], status_n[i] = normal_depth(ch, fl, q[i], slope)
         if status_n[i] != SOLVED:
             yn[i] = math.nan
         sf_c[i] = friction_slope(ch, fl, q[i], yc[i])
@@ -698,8 +699,15 @@ def locate_jumps(cb, fl, q, s0, y_sup, x_lo, y_sub, x_hi, yc, alpha, ce, avg,
 @kernel
 def froude_band_depths(cb, fl, q, lo_fr, hi_fr, y_lo, y_hi):
     """Depths at which each scenario's Froude number (alpha 1) equals ``hi_fr`` (y_lo) and ``lo_fr`` (y_hi):
-    the critical depths of the discharges q/hi_fr and q/lo_fr, since Fr² = Q² T/(g A³) scales with Q²."""
+    the critical depths of the discharges q/hi_fr and q/lo_fr, since Fr² = Q² T/(g A³) scales with Q². They
+    do not depend on the roughness (a surveyed section's bracket does, through its Froude number, only on
+    the ratios of its zone roughness): a scenario with the previous one's discharge takes its depths."""
     for i in range(q.size):
+        if i > 0 and q[i] == q[i - 1] and (cb.kind != SURVEYED or (
+                cb.law != DARCY and proportional(cb.rough[i], cb.rough[i - 1]))):
+            y_lo[i] = y_lo[i - 1]
+            y_hi[i] = y_hi[i - 1]
+            continue
         ch = scenario(cb, i)
         y_lo[i] = critical_depth_single(ch, fl, q[i] / hi_fr, 1.0)[0]
         y_hi[i] = critical_depth_single(ch, fl, q[i] / lo_fr, 1.0)[0]

@@ -138,17 +138,25 @@ class SegmentBatch:
         yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
         code, status, status_n, count = (np.empty(q.shape, np.int64) for _ in range(4))
         # (the section's own parameters and its roughness to 13 decimals: one section met at the end of one
-        # changing segment and the head of the next, whose roughness rows may differ by round-off)
+        # changing segment and the head of the next, whose roughness rows may differ by round-off; all of its
+        # constants where the bed slope is the same too, to 13 significant digits: the slopes of two segments
+        # laid at one slope may differ by round-off, their elevations' differences divided by their lengths)
         key = None if memo is None else (section.core_params()[1].tobytes(), law, np.round(c, 13).tobytes(),
                                          q.tobytes(), float(alpha))
+        whole = None if key is None else key + (f"{float(slope):.13g}", float(critical_tolerance))
         known = key is not None and key in memo
-        if known:
-            yc[:], status[:], count[:] = memo[key]
-        core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha),
-                                                      float(critical_tolerance), yc, yn, sf_c, code, status,
-                                                      status_n, count, known)
-        if key is not None and not known:
-            memo[key] = (yc.copy(), status.copy(), count.copy())
+        if whole is not None and whole in memo:
+            for out, kept in zip((yc, yn, sf_c, code, status, status_n, count), memo[whole], strict=True):
+                out[:] = kept
+        else:
+            if known:
+                yc[:], status[:], count[:] = memo[key]
+            core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha),
+                                                          float(critical_tolerance), yc, yn, sf_c, code, status,
+                                                          status_n, count, known)
+            if key is not None:
+                memo[key] = (yc.copy(), status.copy(), count.copy())
+                memo[whole] = tuple(a.copy() for a in (yc, yn, sf_c, code, status, status_n, count))
         failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
         yc[status == NOT_CONVERGED] = np.nan
         batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed,
