@@ -26,7 +26,7 @@ import math
 
 import numpy as np
 
-from ._jit import kernel
+from ._jit import kernel, scalar_kernel
 from .codes import DARCY, NO_ROOT, NOT_CONVERGED, SOLVED
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth
 from .records import Channel
@@ -35,7 +35,7 @@ from .resistance import conveyance, dlnsf_dy, froude_squared, hydraulics, veloci
 _RTOL = 1e-14
 
 
-@kernel
+@scalar_kernel
 def velocity_head(ch, fl, q, y, alpha):
     """alpha(y) V²/(2g) = alpha(y) Q²/(2 g A²) [length]."""
     if ch.kind == SURVEYED:  # area and alpha from one pass over the zones
@@ -46,13 +46,13 @@ def velocity_head(ch, fl, q, y, alpha):
     return al * (q / a) * (q / a) / (2.0 * fl.g)
 
 
-@kernel
+@scalar_kernel
 def specific_energy(ch, fl, q, y, alpha):
     """E = y + alpha(y) Q²/(2 g A²) [length]."""
     return y + velocity_head(ch, fl, q, y, alpha)
 
 
-@kernel
+@scalar_kernel
 def specific_force(ch, fl, q, y, alpha):
     """M = beta(y) Q²/(g A) + A ybar [length³]; above a closed conduit's crown the full area under the
     pressure head y (module notes)."""

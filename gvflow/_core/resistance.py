@@ -25,14 +25,14 @@ from __future__ import annotations
 
 import math
 
-from ._jit import inline_kernel, kernel
+from ._jit import inline_kernel, scalar_kernel
 from .codes import AVERAGES, AVG_ARITHMETIC, AVG_END, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
 from .geometry import SURVEYED, geometry, surveyed_zone_from, zone_count
 
 LAMINAR_LIMIT = 2000.0
 
 
-@kernel
+@scalar_kernel
 def colebrook(re, eps):
     """Darcy friction factor f from Colebrook-White, 1/sqrt f = -2 log10(eps/3.7 + 2.51/(Re sqrt f)).
 
@@ -57,7 +57,7 @@ def colebrook(re, eps):
     return math.nan
 
 
-@kernel
+@scalar_kernel
 def _zone_k(law, c, k, a, p):
     """Conveyance of one zone of area a and wetted perimeter p (Manning or Chezy); 0 if dry."""
     if a <= 0.0 or p <= 0.0:
@@ -67,7 +67,7 @@ def _zone_k(law, c, k, a, p):
     return c * a * math.sqrt(a / p)
 
 
-@kernel
+@scalar_kernel
 def _exponents(law):
     """(a, b) of K_i proportional to A_i^a P_i^-b: Manning (5/3, 2/3), Chezy and Darcy (3/2, 1/2)."""
     if law == MANNING:
@@ -129,31 +129,31 @@ def hydraulics(ch, fl, q, y, alpha):
     return a_tot, t_tot, m_tot, kk, dk / kk, al, be, fr2
 
 
-@kernel
+@scalar_kernel
 def conveyance(ch, fl, q, y):
     """Conveyance K [length³/s] at depth y, so that Q = K sqrt(Sf); ``q`` matters only for Darcy."""
     return hydraulics(ch, fl, q, y, 1.0)[3]
 
 
-@kernel
+@scalar_kernel
 def slope_of(q, kk):
     """Friction slope (Q/K)² of discharge q through conveyance K; infinite where K vanishes (no flow area)."""
     return (q / kk) * (q / kk) if kk > 0.0 else math.inf
 
 
-@kernel
+@scalar_kernel
 def friction_slope(ch, fl, q, y):
     """Friction slope Sf = (Q/K)² [-] of discharge q at depth y."""
     return slope_of(q, conveyance(ch, fl, q, y))
 
 
-@kernel
+@scalar_kernel
 def dlnsf_dy(ch, fl, q, y):
     """d ln(Sf)/dy at fixed discharge, -2 dK/dy / K (Darcy: friction factor held fixed)."""
     return -2.0 * hydraulics(ch, fl, q, y, 1.0)[4]
 
 
-@kernel
+@scalar_kernel
 def sf_average(avg, s1, s2):
     """Mean friction slope over a step and its derivative with respect to s2.
 
@@ -177,7 +177,7 @@ def sf_average(avg, s1, s2):
     return 4.0 / (den * den), 4.0 * a2 * a2 * a2 / (den * den * den)
 
 
-@kernel
+@scalar_kernel
 def velocity_coefficients(ch, fl, y, alpha):
     """Energy and momentum coefficients (alpha, beta) at depth y.
 
@@ -188,7 +188,7 @@ def velocity_coefficients(ch, fl, y, alpha):
     return h[5], h[6]
 
 
-@kernel
+@scalar_kernel
 def froude_squared(ch, fl, q, y, alpha):
     """Square of the Froude number that decides the regime: 1 - dE/dy at depth y (see :func:`hydraulics`)."""
     return hydraulics(ch, fl, q, y, alpha)[7]
