@@ -366,8 +366,8 @@ def _sub_segment(marcher, seg, xs, y0, c0, can_restart, k, runs):
 
 def _one(ctrl, s):
     """The control of scenario ``s``: ``ctrl`` itself, or its scenario's control when it varies per scenario."""
-    pick = getattr(ctrl, "for_scenario", None)
-    return ctrl if pick is None else pick(s)
+    # (looked up on the class: a model's own lookup of a name it lacks is slow)
+    return ctrl if getattr(type(ctrl), "for_scenario", None) is None else ctrl.for_scenario(s)
 
 
 @dataclass(frozen=True)
@@ -495,7 +495,7 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
         s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
-    xb = reach.boundaries
+    xb = reach.boundaries if any(s.changes for s in segments) else None
     memo = {}  # critical depths of a section met twice (the end of one changing segment, the head of the next)
     built = [SegmentBatch._changing(s, q_seg[:, k].copy(), units, reach.alpha, cols[k], critical_tolerance, xb[k],
                                     xb[k + 1] - xb[k], strict=False, memo=memo)
@@ -509,7 +509,9 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
     for seg in segs:
         seg.require_converged()
     x, seg_ix, bed, bounds = station_layout(reach, n_steps, max_step)
-    code = np.stack([b[2] for b in built], axis=1)
+    code = np.empty((n, nseg), np.int64)
+    for k, b in enumerate(built):
+        code[:, k] = b[2]
     return _Setup(reach=reach, marcher=marcher, controls=controls, q=q, segs=segs,
                   classes=_SLOPE_CLASS_NAMES[code], class_code=code,
                   can_sub_restart=[sf_c[k] > segs[k].slope for k in range(nseg)],

@@ -137,7 +137,9 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
         out)
     for k, sg in enumerate(segs):
-        cols = np.flatnonzero(seg_ix == k) if sg.change is not None else ()
+        if sg.change is None:
+            continue
+        cols = np.flatnonzero(seg_ix == k)
         if len(cols):
             c, part = sg.change, np.empty((7, len(cols)))
             core("changing", len(cols)).quantities_at(sg.cb, c.along, sg.fl, i, float(sg.discharge[i]),
@@ -157,10 +159,13 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
     stretch at the jump.
     """
     nseg = len(reach.segments)
-    crown = np.array([s.section.max_depth for s in reach.segments], dtype=float)
-    full = y > crown[seg]
+    crowns = [s.section.max_depth for s in reach.segments]
     lengths = np.zeros(nseg)
-    if not np.any(full):
+    if all(c == np.inf for c in crowns):  # open sections only: nothing can run full
+        return lengths, []
+    crown = np.array(crowns, dtype=float)
+    full = y > crown[seg]
+    if not full.any():
         return lengths, []
     runs = sol.pressure_runs[i] if sol.pressure_runs else []
     ends = {k: [] for k in range(nseg)}

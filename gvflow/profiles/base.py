@@ -127,8 +127,11 @@ class SegmentBatch:
             law, values = section.core_roughness()
         else:
             law, values = rough.kernel_spec()
-        c = np.broadcast_to(np.asarray(values, dtype=float), q.shape + np.shape(values)).copy() if coef is None \
-            else coef
+        if coef is None:
+            c = np.empty(q.shape + np.shape(values))
+            c[...] = values
+        else:
+            c = coef
         kind, par = section.core_params() if params is None else params
         cb = channel_batch(kind, par, law, c)
         fl = fluid(u)
@@ -146,8 +149,9 @@ class SegmentBatch:
                                                       status_n, count, known)
         if key is not None and not known:
             memo[key] = (yc.copy(), status.copy(), count.copy())
-        failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
-        yc[status == NOT_CONVERGED] = np.nan
+        failed_c = status == NOT_CONVERGED
+        failed = failed_c | (status_n == NOT_CONVERGED)
+        yc[failed_c] = np.nan
         batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed,
                     n_critical=count)
         if strict:
@@ -186,7 +190,7 @@ class SegmentBatch:
     def require_converged(self) -> None:
         """Raise ConvergenceError where a scenario's critical or normal depth did not converge (a solver that
         explains extreme input first builds with ``strict=False`` and calls this after)."""
-        if self.unconverged is not None and np.any(self.unconverged):
+        if self.unconverged is not None and self.unconverged.any():
             i = int(np.flatnonzero(self.unconverged)[0])
             raise ConvergenceError(f"critical or normal depth did not converge for discharge {self.discharge[i]:g} "
                                    f"in {self.section!r}; check that the discharge and the section are in the same "
