@@ -50,8 +50,9 @@ JUMP_BALANCE_TOLERANCE = 1e-6
 
 @dataclass(frozen=True, eq=False)
 class BatchSolution:
-    """Governing solution of n scenarios on shared base stations (frozen: every field, the jumps and the
-    notes included, is given at construction)."""
+    """Governing solution of n scenarios on shared base stations (frozen: every field, the jumps included, is
+    given at construction; the notes may be given as the function that makes them, called when they are
+    first read, see :attr:`notes`)."""
 
     x: np.ndarray  # (M,)
     segment: np.ndarray  # (M,) segment index of each station
@@ -68,7 +69,8 @@ class BatchSolution:
     jump_segment: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
-    notes: tuple = ()  # per scenario: a tuple of Note (x, kind, values; gvflow._notes)
+    # per scenario: a tuple of Note (x, kind, values; gvflow._notes), or a function returning them (:attr:`notes`)
+    _notes: object = ()
     # per scenario: a tuple of (segment, x_up, x_down) where the subcritical pass found the conduit full
     # (pressure flow), before the supercritical profile governs any of it
     pressure_runs: tuple = ()
@@ -77,6 +79,14 @@ class BatchSolution:
     _JUMPS = ("jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after", "jump_at_junction")
     #: the jump fields in the order of the solver's jump tuples
     _JUMP_ROWS = ("jump_scenario",) + _JUMPS
+
+    @property
+    def notes(self) -> tuple:
+        """Per scenario: a tuple of Note (x, kind, values; gvflow._notes). Made when first read: a small
+        solve would spend more on writing its notes than on its march, and a sweep rarely reads them."""
+        if callable(self._notes):
+            object.__setattr__(self, "_notes", self._notes())
+        return self._notes
 
     @classmethod
     def concatenate(cls, parts: list[BatchSolution]) -> BatchSolution:
@@ -93,7 +103,7 @@ class BatchSolution:
             segs.append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"], s0.units, s0.alpha,
                                      cat["yc"], cat["yn"], cb, s0.fl))
         out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
-                  notes=tuple(note for p in parts for note in p.notes),
+                  _notes=tuple(note for p in parts for note in p.notes),
                   pressure_runs=tuple(run for p in parts for run in p.pressure_runs),
                   jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
                   **{f: np.concatenate([getattr(p, f) for p in parts], axis=0) for f in cls._PER_SCENARIO},
@@ -195,7 +205,7 @@ def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
     crit[:, 0] = crit0
     failed = (np.arange(m)[None, :] >= res.n_valid[:, None]) & (res.code == 1)[:, None]
     y = res.depth
-    if np.any(failed):
+    if failed.any():
         y = np.where(failed, seg.critical_depths_at(seg.fractions(x_order)), y)
         crit |= failed
     return y, crit
@@ -254,7 +264,7 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
     crit[:, 1:] = failed[:, 1:]
     again = (stop < m - 1) & can_restart
     # restart from critical depth where the slope lets the branch leave it again
-    idx, j0 = np.flatnonzero(again), stop[again]
+    idx, j0 = again.nonzero()[0], stop[again]
     while idx.size:
         restart_idx, restart_j = [], []
         for start in np.unique(j0):
@@ -465,8 +475,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     sub = _subcritical_pass(st, down)
     up = _upstream_start(st, sub)
     gov = _supercritical_pass(st, down, sub, up)
-    _control_notes(st, down, sub, up, gov)
-    return _solution(st, gov)
+    # (the notes are written when first read: keep only the gates of the subcritical pass for them)
+    return _solution(st, down, _SubPass(None, None, sub.gate_jet, sub.gate_submerged), up, gov)
 
 
 def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical_tolerance, controls) -> _Setup:
@@ -604,11 +614,11 @@ def _upstream_start(st: _Setup, sub: _SubPass) -> _Upstream:
         ok = (y_up < first.yc * (1 - 1e-9)) | (np.isclose(y_up, first.yc, rtol=1e-9) & st.can_sup_start[0])
         sup_state = np.where(ok, y_up, np.nan)
         sup_from_control = ok.copy()
-        for s in np.flatnonzero(~ok):
+        for s in (~ok).nonzero()[0]:
             notes[s].append(note(0.0, "unused control", end="upstream", control=_one(up, s)))
     entry = np.isnan(sup_state) & sub.c[:, 0] & st.can_sup_start[0]
     sup_state = np.where(entry, first.yc, sup_state)
-    for s in np.flatnonzero(entry):
+    for s in entry.nonzero()[0]:
         notes[s].append(note(0.0, "critical control", where="steep head"))
     return _Upstream(ctrl=up, state=up_state, sup_state=sup_state, from_control=sup_from_control)
 
@@ -621,7 +631,7 @@ def _supercritical_pass(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstr
     sup_state = up.sup_state
     carried = np.zeros(st.n, bool)  # supercritical flow carried over from the previous segment
     for k in range(len(st.segs)):
-        act = np.flatnonzero(np.isfinite(sup_state))
+        act = np.isfinite(sup_state).nonzero()[0]
         if act.size:
             gov_sup_end, y_end = _govern_segment(st, k, sub, up, gov, act, sup_state[act], carried)
         else:
@@ -658,7 +668,7 @@ def _govern_segment(st: _Setup, k, sub: _SubPass, up: _Upstream, gov: _Governed,
         core("stations", msup.size).govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
         depth[act, i0:i0 + m], regime[act, i0:i0 + m] = blk_y, blk_r
     sup_from_control = up.from_control
-    for r in np.flatnonzero(first_loss < m):
+    for r in (first_loss < m).nonzero()[0]:
         s, i = int(act[r]), int(first_loss[r])
         if i == 0:
             if k == 0 and not sup_from_control[s]:
@@ -705,7 +715,7 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     # critical depth at the head of a steep segment k + 1
     crit_dn = sub_end & ~crit_up & sub.c[:, j0] & st.can_sup_start[k + 1]
     if crit_up.any():
-        idx = np.flatnonzero(crit_up)
+        idx = crit_up.nonzero()[0]
         yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER, drop)
         nxt[idx] = yt
         carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
@@ -713,7 +723,7 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     if k + 1 in sub.gate_jet:  # the gate releases its jet whatever arrives from upstream
         return sub.gate_jet[k + 1].copy(), np.zeros(n, bool)
     changed = not seg.same_section(nseg1)
-    for s in np.flatnonzero(crit_up | crit_dn):
+    for s in (crit_up | crit_dn).nonzero()[0]:
         if crit_up[s] and st.segments[k + 1].inflow:
             where = "inflow"  # below the inflow the discharge needs more energy
         elif crit_up[s] and changed:
@@ -729,7 +739,7 @@ def _note_swept_out(st: _Setup, down: _Downstream, act, gov_sup_end):
     govern subcritical flow: the jump forms below the reach."""
     if down.ctrl is None:
         return
-    for r in np.flatnonzero(gov_sup_end):
+    for r in gov_sup_end.nonzero()[0]:
         s = act[r]
         if down.governs[s]:
             st.notes[s].append(note(float(st.x[-1]), "jump swept out", control=_one(down.ctrl, s)))
@@ -765,29 +775,35 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
                 assumed = "normal depth" if classes[s, -1] == "mild" else "critical depth"
                 notes[s].append(note(float(x[-1]), "downstream control", assumed=assumed))
     if up.ctrl is not None:
-        for s in np.flatnonzero(up.from_control):
+        for s in up.from_control.nonzero()[0]:
             notes[s].append(note(0.0, "upstream control", control=_one(up.ctrl, s)))
         _add_details(notes, up.ctrl, up.state, depth[:, 0], 0.0)
     if ctrl is not None:
         top = segs[-1].section.max_depth
-        for s in np.flatnonzero(governs_down & (down.y_down > top)):
+        for s in (governs_down & (down.y_down > top)).nonzero()[0]:
             notes[s].append(note(float(x[-1]), "submerged outlet", head=down.y_down[s] - top))
 
 
-def _solution(st: _Setup, gov: _Governed) -> BatchSolution:
-    """The solution record, jumps sorted by scenario and x, with the notes on jumps on sloping floors."""
+def _solution(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, gov: _Governed) -> BatchSolution:
+    """The solution record, jumps sorted by scenario and x; its notes (the passes', then :func:`_control_notes`,
+    then those on jumps on sloping floors) are written when first read."""
     jumps = {}
-    notes = st.notes
     if gov.jumps:
         arr = list(zip(*gov.jumps, strict=True))
         types = (int, float, float, float, int, int, bool)
         jumps = {name: np.array(a, t) for name, a, t in zip(BatchSolution._JUMP_ROWS, arr, types, strict=True)}
         order = np.lexsort((jumps["jump_x"], jumps["jump_scenario"]))
         jumps = {name: a[order] for name, a in jumps.items()}
-        for s, n in note_sloping_jumps(jumps["jump_scenario"], jumps["jump_x"], jumps["jump_segment"], st.reach):
-            notes[s].append(n)
+
+    def notes():
+        _control_notes(st, down, sub, up, gov)
+        if jumps:
+            for s, n in note_sloping_jumps(jumps["jump_scenario"], jumps["jump_x"], jumps["jump_segment"], st.reach):
+                st.notes[s].append(n)
+        return tuple(map(tuple, st.notes))
+
     return BatchSolution(x=st.x, segment=st.seg_ix, bed=st.bed, depth=gov.depth, regime=gov.regime, segs=st.segs,
-                         slope_class=st.classes, notes=tuple(map(tuple, notes)),
+                         slope_class=st.classes, _notes=notes,
                          pressure_runs=tuple(map(tuple, st.pressure_runs)), **jumps)
 
 
@@ -808,7 +824,7 @@ def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
             k_dn = seg.discharge / np.sqrt(seg.tail.properties(depth[:, i0 + m - 1])[4])
             ratio = k_up / k_dn
         far = (ratio > CONVEYANCE_RATIO_LIMIT) | (ratio < 1.0 / CONVEYANCE_RATIO_LIMIT)
-        for s in np.flatnonzero(far):
+        for s in far.nonzero()[0]:
             notes[s].append(note(float(x[i0]), "sections far apart", x_up=float(x[i0]), x_down=float(x[i0 + m - 1]),
                                  ratio=float(max(ratio[s], 1.0 / ratio[s])), limit=CONVEYANCE_RATIO_LIMIT))
 
@@ -825,7 +841,7 @@ def _several_critical_notes(notes, segs, bounds, x, depth):
         if seg.n_critical is None or not (seg.n_critical > 1).any():
             continue
         i0, m = bounds[k]
-        for s in np.flatnonzero(seg.n_critical > 1):
+        for s in (seg.n_critical > 1).nonzero()[0]:
             ch = Channel(seg.cb.kind, seg.cb.par, seg.cb.law, np.ascontiguousarray(seg.cb.rough[s]))
             count, _ = kernel.all_critical_depths(ch, seg.fl, float(seg.discharge[s]), seg.alpha, buf)
             lo, hi = float(buf[:count].min()), float(buf[:count].max())
@@ -865,7 +881,7 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime):
         raised = (regime[:, i_end] == REGIME_SUB) & np.isfinite(yn) & (depth[:, i_end] > yn * (1 + 1e-3))
         raised &= np.isin(classes[:, k], ("mild", "critical"))
         raised &= (regime[:, j0:j0 + m1] == REGIME_CRITICAL).any(axis=1)
-        for s in np.flatnonzero(raised):
+        for s in raised.nonzero()[0]:
             notes[s].append(note(float(x[i_end]), "choke", k=k, depth=depth[s, i_end], yn=yn[s]))
 
 

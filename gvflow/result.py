@@ -116,6 +116,11 @@ def _control_notes(reach, jumps, notes, full_notes) -> list:
     return sorted((ControlNote(float(n.x), n.kind, note_text(n, units)) for n in notes), key=lambda c: c.x)
 
 
+def _scenario_notes(reach, jumps, sol: BatchSolution, i: int, full_notes) -> list:
+    """:func:`_control_notes` of scenario i, with the solver's notes read (and so made) only now."""
+    return _control_notes(reach, jumps, sol.notes[i], full_notes)
+
+
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
     """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``,
     distance ``x``: where a segment's section changes, its section there)."""
@@ -183,7 +188,7 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
         t = inside[0] if inside else 0.5 * (xa + xb)
         lengths[k] += (xb - t) if full[j + 1] else (t - xa)
     notes = []
-    for k in np.flatnonzero(lengths > 0):
+    for k in (lengths > 0).nonzero()[0]:
         sel = (seg == k) & full
         h = y[sel] - crown[k]
         xs = x[sel]
@@ -350,7 +355,7 @@ class Profile:
     @classmethod
     def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> Profile:
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
-        rows = np.flatnonzero(sol.jump_scenario == i)
+        rows = (sol.jump_scenario == i).nonzero()[0]
         # the two sequent depths of every jump inside a segment stand at the jump's x
         x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
             sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows], sol.jump_x[rows],
@@ -390,7 +395,7 @@ class Profile:
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
         full_len, full_notes = _surcharge(reach, sol, i, x, y, seg)
-        controls = functools.partial(_control_notes, reach, jumps, sol.notes[i], full_notes)  # made when first read
+        controls = functools.partial(_scenario_notes, reach, jumps, sol, i, full_notes)  # made when first read
         profile = cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
                       pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes,
                       surcharged_lengths=full_len)
