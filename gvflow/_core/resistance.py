@@ -75,6 +75,13 @@ def _exponents(law):
     return 1.5, 0.5
 
 
+@scalar_kernel
+def geometric_coefficients(alpha):
+    """Energy and momentum coefficients (alpha, beta) of a geometric section (one roughness zone, one velocity
+    across it): the reach's given alpha, and beta = 1."""
+    return alpha, 1.0
+
+
 @inline_kernel
 def hydraulics(ch, fl, q, y, alpha):
     """Everything a step of a profile needs at depth y, in one pass over the section.
@@ -89,15 +96,16 @@ def hydraulics(ch, fl, q, y, alpha):
     ea, eb = _exponents(ch.law)
     if ch.kind != SURVEYED:
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        al, be = geometric_coefficients(alpha)
         if not a > 0.0:  # a depth below what the geometry resolves: no flow area, no conveyance
-            return 0.0, t, 0.0, 0.0, math.inf, alpha, 1.0, math.inf
+            return 0.0, t, 0.0, 0.0, math.inf, al, be, math.inf
         if ch.law == DARCY:
             r = a / p
             f = colebrook(4.0 * r * abs(q) / (a * fl.nu), ch.rough[0] / (4.0 * r))
             kk = math.sqrt(8.0 * fl.g / f) * a * math.sqrt(r)
         else:
             kk = _zone_k(ch.law, ch.rough[0], fl.k, a, p)
-        return a, t, m, kk, ea * t / a - eb * dp / p, alpha, 1.0, alpha * (q / a) * (q / a) * t / (fl.g * a)
+        return a, t, m, kk, ea * t / a - eb * dp / p, al, be, al * (q / a) * (q / a) * t / (fl.g * a)
     a_tot = t_tot = m_tot = 0.0
     kk = dk = s2 = s3 = sig1 = 0.0
     j = 0  # the zones left to right read the ground pieces once
@@ -182,8 +190,11 @@ def velocity_coefficients(ch, fl, y, alpha):
     """Energy and momentum coefficients (alpha, beta) at depth y.
 
     A surveyed section's own coefficients from its zone conveyances (1 and 1 for
-    one zone); a geometric section takes the given ``alpha`` and beta = 1.
+    one zone); a geometric section takes the given ``alpha`` and beta = 1 (:func:`geometric_coefficients`,
+    without the pass over the section).
     """
+    if ch.kind != SURVEYED:
+        return geometric_coefficients(alpha)
     h = hydraulics(ch, fl, 1.0, y, alpha)
     return h[5], h[6]
 
