@@ -154,7 +154,8 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch, gain: flo
     runs full: its depth is the pressure head above the invert, E - alpha Q²/(2 g A_full²)
     (:func:`_pressure_head_with_energy`).
     """
-    same_q = np.array_equal(seg_from.discharge, seg_to.discharge)
+    qa, qb = seg_from.discharge, seg_to.discharge
+    same_q = qa is qb or (qa.shape == qb.shape and bool((qa == qb).all()))  # (np.array_equal, cheaper)
     if gain == 0.0 and same_q and seg_from.same_section(seg_to):
         return y.copy(), np.zeros(y.shape, bool)
     if branch == SUPER and not same_q and gain == 0.0:
@@ -249,6 +250,10 @@ def _march_with_fallback(marcher, seg, x_order, y0, crit0, branch, can_restart, 
         return marcher.march_until(sub, x_order[start:], y_start, branch, rival[rows, start:], _M_TOL)
 
     res = march(seg, 0, np.asarray(y0, dtype=float), slice(None))
+    if not res.code.any() and res.n_valid.min() == m:  # (the usual case: every scenario reached the end)
+        if full_at is not None:
+            full_at[:] = -1
+        return res.depth, crit
     if res.code.max() >= 2:
         _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order, full_at is not None)
     # first station each scenario's branch could not reach (an overtaken one needs no more)

@@ -202,7 +202,7 @@ class SegmentBatch:
         that a surveyed section's zone roughness, which sets its alpha, must match too."""
         if self.cb.kind != other.cb.kind:
             return False
-        same = np.array_equal(self.cb.par, other.cb.par) or self.section is other.section or (
+        same = self.section is other.section or np.array_equal(self.cb.par, other.cb.par) or (
             self.cb.par.size != other.cb.par.size and self.section == other.section)
         if same and self.cb.kind == SURVEYED:
             return np.array_equal(self.cb.rough, other.cb.rough)
