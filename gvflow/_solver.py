@@ -551,8 +551,8 @@ def _downstream_start(st: _Setup) -> _Downstream:
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
         governs_down = y_down >= last.yc * (1 - 1e-12)
-        must_be_sub = (code != _STEEP) & (code != _CRITICAL) & ~governs_down
-        if must_be_sub.any():
+        must_be_sub = False if governs_down.all() else (code != _STEEP) & (code != _CRITICAL) & ~governs_down
+        if must_be_sub is not False and must_be_sub.any():
             i = int(np.flatnonzero(must_be_sub)[0])
             raise ControlError(
                 f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, below critical depth "

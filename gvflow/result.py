@@ -132,7 +132,11 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         roughs = np.ascontiguousarray(cb.rough[i:i + 1], float)
     else:
         pars = [sg.cb.par for sg in segs]
-        par, offsets = np.concatenate(pars), np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
+        ends, end = [0], 0
+        for p in pars:
+            end += p.size
+            ends.append(end)
+        par, offsets = np.concatenate(pars), np.array(ends, np.int64)
         roughs = np.zeros((len(segs), max(sg.cb.rough.shape[1] for sg in segs)))
         for k, sg in enumerate(segs):
             roughs[k, :sg.cb.rough.shape[1]] = sg.cb.rough[i]
@@ -368,10 +372,13 @@ class Profile:
         q_at = _station_discharge(sol, i, x, seg)
         if len(sol.segs) > 1:
             drop = np.array([s.drop for s in reach.segments])
-            keep = np.ones(x.size, bool)
-            keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
-                         & (drop[seg[1:]] == 0) & (q_at[1:] == q_at[:-1]))
-            x, y, reg, seg, q_at = x[keep], y[keep], reg[keep], seg[keep], q_at[keep]
+            # (the tests below only at the junctions: stations sharing an x in two segments)
+            j = ((x[1:] == x[:-1]) & (seg[1:] != seg[:-1])).nonzero()[0]
+            same = j[(np.abs(y[j + 1] - y[j]) <= 1e-12 * y[j]) & (drop[seg[j + 1]] == 0) & (q_at[j + 1] == q_at[j])]
+            if same.size:
+                keep = np.ones(x.size, bool)
+                keep[same + 1] = False
+                x, y, reg, seg, q_at = x[keep], y[keep], reg[keep], seg[keep], q_at[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
         k2 = sol.jump_segment[rows]
