@@ -67,7 +67,7 @@ def specific_force(ch, fl, q, y, alpha):
     return be * q * q / (fl.g * a) + m
 
 
-@kernel
+@scalar_kernel
 def _subcritical_depth(ch, fl, q, alpha):
     """A depth at which the flow is subcritical (Fr² < 1), doubling from 1 [length]; NaN if none by 2^1000."""
     hi = 1.0
@@ -78,7 +78,7 @@ def _subcritical_depth(ch, fl, q, alpha):
     return math.nan
 
 
-@kernel
+@scalar_kernel
 def critical_depth_single(ch, fl, q, alpha):
     """Critical depth of a section whose specific energy has one minimum: alpha Q² T = g A³.
 
@@ -125,7 +125,7 @@ def critical_depth_single(ch, fl, q, alpha):
     return y, NOT_CONVERGED
 
 
-@kernel
+@scalar_kernel
 def _split(lo, hi):
     """A point inside the bracket (lo, hi): the middle, or a thousandth of hi while lo is 0 (geometric
     descent toward tiny roots), or the geometric mean of a bracket spanning decades."""
@@ -136,12 +136,12 @@ def _split(lo, hi):
     return 0.5 * (lo + hi)
 
 
-@kernel
+@scalar_kernel
 def _dedy(ch, fl, q, y, alpha):
     return 1.0 - froude_squared(ch, fl, q, y, alpha)
 
 
-@kernel
+@scalar_kernel
 def _polish(ch, fl, q, alpha, lo, hi):
     """Root of dE/dy (negative at lo, positive at hi) by the Illinois method; (depth, status)."""
     flo = _dedy(ch, fl, q, lo, alpha)
@@ -216,7 +216,7 @@ def _scan_froude(ch, fl, q, alpha, grid):
     return fr2
 
 
-@kernel
+@scalar_kernel
 def _scan_minima(ch, fl, q, alpha, grid, fr2, scale, out):
     """Polish every change of sign of dE/dy = 1 - scale fr2 from negative to positive on the grid; (count,
     status) as :func:`critical_depths`. ``scale`` carries a scan made at another discharge (module notes of
@@ -260,7 +260,7 @@ def critical_depths(ch, fl, q, alpha, out):
     return _scan_minima(ch, fl, q, alpha, grid, _scan_froude(ch, fl, q, alpha, grid), 1.0, out)
 
 
-@kernel
+@scalar_kernel
 def peak_conveyance(ch, fl, q):
     """(depth, conveyance) of a closed conduit's largest conveyance, by golden-section search.
 
@@ -283,19 +283,19 @@ def peak_conveyance(ch, fl, q):
     return y, conveyance(ch, fl, q, y)
 
 
-@kernel
+@scalar_kernel
 def ln(x):
     """Natural logarithm, -inf at zero (as IEEE arithmetic gives it; Python's math.log would raise)."""
     return math.log(x) if x > 0.0 else -math.inf
 
 
-@kernel
+@scalar_kernel
 def _log_sf(ch, fl, q, y):
     """ln Sf = 2 (ln Q - ln K), free of the overflow and underflow of (Q/K)² at extreme discharges."""
     return 2.0 * (math.log(q) - ln(conveyance(ch, fl, q, y)))
 
 
-@kernel
+@scalar_kernel
 def normal_depth(ch, fl, q, s0):
     """Depth of uniform flow, Sf(y) = S0; (depth, status).
 
@@ -351,7 +351,7 @@ def normal_depth(ch, fl, q, s0):
     return y, NOT_CONVERGED
 
 
-@kernel
+@scalar_kernel
 def _least_energy(ch, fl, q, alpha, buf, n, status):
     """(depth, status, count) of the critical depth of least specific energy among buf[:n]."""
     if n == 0:
