@@ -128,15 +128,16 @@ class SegmentBatch:
         else:
             law, values = rough.kernel_spec()
         if coef is None:
-            c = np.empty(q.shape + np.shape(values))
+            values = np.asarray(values, dtype=float)
+            c = np.empty(q.shape + values.shape)
             c[...] = values
         else:
             c = coef
         kind, par = section.core_params() if params is None else params
         cb = channel_batch(kind, par, law, c)
         fl = fluid(u)
-        yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
-        code, status, status_n, count = (np.empty(q.shape, np.int64) for _ in range(4))
+        yc, yn, sf_c = np.empty((3,) + q.shape)  # (rows of one block each: one allocation, not seven)
+        code, status, status_n, count = np.empty((4,) + q.shape, np.int64)
         # (the section's own parameters and its roughness to 13 decimals: one section met at the end of one
         # changing segment and the head of the next, whose roughness rows may differ by round-off)
         key = None if memo is None else (section.core_params()[1].tobytes(), law, np.round(c, 13).tobytes(),
