@@ -88,6 +88,10 @@ class BatchSolution:
             object.__setattr__(self, "_notes", self._notes())
         return self._notes
 
+    def __getstate__(self):
+        # (pickled with its notes made: the function that makes them holds the solver's working state)
+        return {**self.__dict__, "_notes": self.notes}
+
     @classmethod
     def concatenate(cls, parts: list[BatchSolution]) -> BatchSolution:
         """One solution from solutions of consecutive blocks of scenarios of the same reach and stations."""
