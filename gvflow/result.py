@@ -361,9 +361,14 @@ class Profile:
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
         rows = (sol.jump_scenario == i).nonzero()[0]
         # the two sequent depths of every jump inside a segment stand at the jump's x
-        x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
-            sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows], sol.jump_x[rows],
-            sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows])
+        if rows.size:
+            x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
+                sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows],
+                sol.jump_x[rows], sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows],
+                sol.jump_at_junction[rows])
+        else:  # (no jump to insert: the base stations, as the sequence would copy them)
+            x, y = sol.x.copy(), sol.depth[i].copy()
+            reg, seg = sol.regime[i].astype(np.int64), sol.segment.astype(np.int64)
         yn = np.array([s.tail.yn[i] for s in sol.segs])  # (a changing segment: at its downstream end, where
         yc = np.array([s.tail.yc[i] for s in sol.segs])  # its slope class is taken)
         classes = [str(c) for c in sol.slope_class[i]]
@@ -382,10 +387,13 @@ class Profile:
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
         k2 = sol.jump_segment[rows]
-        k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
-        props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
-                                    np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]),
-                                    np.concatenate([x, sol.jump_x[rows], sol.jump_x[rows]]))
+        if rows.size:
+            k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
+            props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
+                                        np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]),
+                                        np.concatenate([x, sol.jump_x[rows], sol.jump_x[rows]]))
+        else:
+            props = _station_quantities(sol, i, seg, y, x)
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
