@@ -46,15 +46,17 @@ def near_critical_notes(notes, segs, bounds, x, depth) -> None:
         core("march", 200 * q.size).froude_band_depths(seg.cb, seg.fl, q, lo_fr, hi_fr, y_lo, y_hi)
         y = depth[:, i0:i0 + m]
         inside = (y >= y_lo[:, None]) & (y <= y_hi[:, None])
-        if not np.any(inside):
+        if not inside.any():
             continue
-        edges = np.diff(np.pad(inside.astype(np.int8), ((0, 0), (1, 1))), axis=1)
+        padded = np.zeros((inside.shape[0], inside.shape[1] + 2), np.int8)  # (np.pad costs more than the rest)
+        padded[:, 1:-1] = inside
+        edges = np.diff(padded, axis=1)
         s_start, j_start = np.nonzero(edges == 1)
         s_end, j_end = np.nonzero(edges == -1)  # one past the last station inside, same order as the starts
         xs = x[i0:i0 + m]
         length = xs[j_end - 1] - xs[j_start]
         yc = seg.yc[s_start]
-        for r in np.flatnonzero(length >= NEAR_CRITICAL_MIN_LENGTH * yc):
+        for r in (length >= NEAR_CRITICAL_MIN_LENGTH * yc).nonzero()[0]:
             s = int(s_start[r])
             a, b = float(xs[j_start[r]]), float(xs[j_end[r] - 1])
             notes[s].append(note(a, "near-critical flow", k=k, x_end=b, yc=yc[r], froude=(lo_fr, hi_fr)))

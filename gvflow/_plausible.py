@@ -22,6 +22,7 @@ Two kinds of check, in one place:
 from __future__ import annotations
 
 import contextlib
+import math
 
 import numpy as np
 
@@ -163,6 +164,8 @@ def _check_depths(k, s, batch, q_ext, units, per_m):
     L = units.length
     y_max, y_min = MAX_DEPTH_M * per_m, MIN_DEPTH_M * per_m
     yc = batch.yc
+    if ((yc <= y_max) & (yc >= y_min)).all() and not (s.slope > 0 and (batch.yn > y_max).any()):
+        return  # (the usual case, in one pass; the checks below say what is wrong)
     big = ~(yc <= y_max)
     if big.any():
         i = int(np.flatnonzero(big)[0])
@@ -197,8 +200,10 @@ def _warn_unusual(segments, coef):
     for k, s in enumerate(segments):
         if not isinstance(s.roughness, Manning):
             continue
-        ns = np.asarray([s.roughness.n]) if coef is None else coef[:, k]
-        n_lo, n_hi = float(ns.min()), float(ns.max())
+        if coef is None:
+            n_lo = n_hi = float(s.roughness.n)
+        else:
+            n_lo, n_hi = float(coef[:, k].min()), float(coef[:, k].max())
         if n_lo < lo or n_hi > hi:
             odd_n.append(f"segment {k}: n = {n_lo:g}" if n_lo == n_hi else f"segment {k}: n {n_lo:g}-{n_hi:g}")
     if odd_n:
@@ -219,16 +224,23 @@ def _warn_mixed_units(segs, L, g) -> None:
     for k, seg in enumerate(segs):
         if seg.section.closed:
             continue
-        y = np.concatenate([seg.yn, seg.yc])
-        y = y[np.isfinite(y) & (y > 0)]
-        if not y.size:
-            continue
-        deepest = float(y.max())
         # Cheap pass first: in an open section whose width never narrows upwards the hydraulic depth
         # A/T is at most the depth, so at critical depth (alpha Q² T = g A³) T >= Q / sqrt(g yc³), and
         # the width only grows above it. Depths below ten times that bound cannot be suspect.
-        bound = seg.discharge / np.sqrt(g * seg.yc ** 3)
-        if deepest < DEPTH_TO_WIDTH_SUSPECT * float(np.min(bound)):
+        if seg.n == 1:  # (one scenario: plain floats, a fraction of the cost of numpy on one element)
+            y = [v for v in (float(seg.yn[0]), float(seg.yc[0])) if 0.0 < v < math.inf]
+            if not y:
+                continue
+            deepest = max(y)
+            least_bound = float(seg.discharge[0]) / math.sqrt(g * float(seg.yc[0]) ** 3)
+        else:
+            y = np.concatenate([seg.yn, seg.yc])
+            y = y[np.isfinite(y) & (y > 0)]
+            if not y.size:
+                continue
+            deepest = float(y.max())
+            least_bound = float((seg.discharge / np.sqrt(g * seg.yc ** 3)).min())
+        if deepest < DEPTH_TO_WIDTH_SUSPECT * least_bound:
             continue
         try:
             top = float(seg.section.top_width(deepest))

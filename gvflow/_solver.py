@@ -50,8 +50,9 @@ JUMP_BALANCE_TOLERANCE = 1e-6
 
 @dataclass(frozen=True, eq=False)
 class BatchSolution:
-    """Governing solution of n scenarios on shared base stations (frozen: every field, the jumps and the
-    notes included, is given at construction)."""
+    """Governing solution of n scenarios on shared base stations (frozen: every field, the jumps included, is
+    given at construction; the notes may be given as the function that makes them, called when they are
+    first read, see :attr:`notes`)."""
 
     x: np.ndarray  # (M,)
     segment: np.ndarray  # (M,) segment index of each station
@@ -68,7 +69,8 @@ class BatchSolution:
     jump_segment: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     jump_after: np.ndarray = field(default_factory=lambda: np.zeros(0, int))  # base station index before it
     jump_at_junction: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
-    notes: tuple = ()  # per scenario: a tuple of Note (x, kind, values; gvflow._notes)
+    # per scenario: a tuple of Note (x, kind, values; gvflow._notes), or a function returning them (:attr:`notes`)
+    _notes: object = ()
     # per scenario: a tuple of (segment, x_up, x_down) where the subcritical pass found the conduit full
     # (pressure flow), before the supercritical profile governs any of it
     pressure_runs: tuple = ()
@@ -77,6 +79,18 @@ class BatchSolution:
     _JUMPS = ("jump_x", "jump_y1", "jump_y2", "jump_segment", "jump_after", "jump_at_junction")
     #: the jump fields in the order of the solver's jump tuples
     _JUMP_ROWS = ("jump_scenario",) + _JUMPS
+
+    @property
+    def notes(self) -> tuple:
+        """Per scenario: a tuple of Note (x, kind, values; gvflow._notes). Made when first read: a small
+        solve would spend more on writing its notes than on its march, and a sweep rarely reads them."""
+        if callable(self._notes):
+            object.__setattr__(self, "_notes", self._notes())
+        return self._notes
+
+    def __getstate__(self):
+        # (pickled with its notes made: the function that makes them holds the solver's working state)
+        return {**self.__dict__, "_notes": self.notes}
 
     @classmethod
     def concatenate(cls, parts: list[BatchSolution]) -> BatchSolution:
@@ -93,7 +107,7 @@ class BatchSolution:
             segs.append(SegmentBatch(s0.section, s0.slope, s0.law, cat["coef"], cat["discharge"], s0.units, s0.alpha,
                                      cat["yc"], cat["yn"], cb, s0.fl))
         out = cls(x=first.x, segment=first.segment, bed=first.bed, segs=segs,
-                  notes=tuple(note for p in parts for note in p.notes),
+                  _notes=tuple(note for p in parts for note in p.notes),
                   pressure_runs=tuple(run for p in parts for run in p.pressure_runs),
                   jump_scenario=np.concatenate([p.jump_scenario + o for p, o in zip(parts, offsets, strict=True)]),
                   **{f: np.concatenate([getattr(p, f) for p in parts], axis=0) for f in cls._PER_SCENARIO},
@@ -144,7 +158,8 @@ def _transfer(seg_from: SegmentBatch, seg_to: SegmentBatch, y, branch, gain: flo
     runs full: its depth is the pressure head above the invert, E - alpha Q²/(2 g A_full²)
     (:func:`_pressure_head_with_energy`).
     """
-    same_q = np.array_equal(seg_from.discharge, seg_to.discharge)
+    qa, qb = seg_from.discharge, seg_to.discharge
+    same_q = qa is qb or (qa.shape == qb.shape and bool((qa == qb).all()))  # (np.array_equal, cheaper)
     if gain == 0.0 and same_q and seg_from.same_section(seg_to):
         return y.copy(), np.zeros(y.shape, bool)
     if branch == SUPER and not same_q and gain == 0.0:
@@ -295,6 +310,10 @@ def _march_prismatic(marcher, seg, x_order, y0, crit0, branch, can_restart, riva
         return marcher.march_until(sub, x_order[start:], y_start, branch, rival[rows, start:], _M_TOL)
 
     res = march(seg, 0, np.asarray(y0, dtype=float), slice(None))
+    if not res.code.any() and res.n_valid.min() == m:  # (the usual case: every scenario reached the end)
+        if full_at is not None:
+            full_at[:] = -1
+        return res.depth, crit
     if res.code.max() >= 2:
         _check_stop_codes(marcher, seg, res.code, res.n_valid, np.arange(n), x_order, full_at is not None)
     # first station each scenario's branch could not reach (an overtaken one needs no more)
@@ -310,7 +329,7 @@ def _march_prismatic(marcher, seg, x_order, y0, crit0, branch, can_restart, riva
     crit[:, 1:] = failed[:, 1:]
     again = (stop < m - 1) & can_restart
     # restart from critical depth where the slope lets the branch leave it again
-    idx, j0 = np.flatnonzero(again), stop[again]
+    idx, j0 = again.nonzero()[0], stop[again]
     while idx.size:
         restart_idx, restart_j = [], []
         for start in np.unique(j0):
@@ -422,8 +441,8 @@ def _sub_segment(marcher, seg, xs, y0, c0, can_restart, k, runs):
 
 def _one(ctrl, s):
     """The control of scenario ``s``: ``ctrl`` itself, or its scenario's control when it varies per scenario."""
-    pick = getattr(ctrl, "for_scenario", None)
-    return ctrl if pick is None else pick(s)
+    # (looked up on the class: a model's own lookup of a name it lacks is slow)
+    return ctrl if getattr(type(ctrl), "for_scenario", None) is None else ctrl.for_scenario(s)
 
 
 @dataclass(frozen=True)
@@ -521,8 +540,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     sub = _subcritical_pass(st, down)
     up = _upstream_start(st, sub)
     gov = _supercritical_pass(st, down, sub, up)
-    _control_notes(st, down, sub, up, gov)
-    return _solution(st, gov)
+    # (the notes are written when first read: keep only the gates of the subcritical pass for them)
+    return _solution(st, down, _SubPass(None, None, sub.gate_jet, sub.gate_submerged), up, gov)
 
 
 def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical_tolerance, controls) -> _Setup:
@@ -551,7 +570,7 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
         s, k = (int(v[0]) for v in np.nonzero(q_seg <= 0))
         raise InvalidInputError(f"segments[{k}].inflow: at discharge {q[s]:g} the withdrawals leave no discharge in "
                                 f"segment {k}; the discharge must stay positive along the reach")
-    xb = reach.boundaries
+    xb = reach.boundaries if any(s.changes for s in segments) else None
     memo = {}  # critical depths of a section met twice (the end of one changing segment, the head of the next)
     built = [SegmentBatch._changing(s, q_seg[:, k].copy(), units, reach.alpha, cols[k], critical_tolerance, xb[k],
                                     xb[k + 1] - xb[k], strict=False, memo=memo)
@@ -561,7 +580,9 @@ def _build_segments(reach, marcher, discharge, coef, n_steps, max_step, critical
              for k, s in enumerate(segments)]
     segs = [b[0] for b in built]
     sf_c = [b[1] for b in built]  # friction slope at critical depth
-    code = np.stack([b[2] for b in built], axis=1)
+    code = np.empty((n, nseg), np.int64)
+    for k, b in enumerate(built):
+        code[:, k] = b[2]
     for k, seg in enumerate(segs):
         if not seg.several_critical().any():
             continue
@@ -624,8 +645,8 @@ def _downstream_start(st: _Setup) -> _Downstream:
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
         governs_down = last.subcritical_at(y_down)
-        must_be_sub = (code != _STEEP) & (code != _CRITICAL) & ~governs_down
-        if must_be_sub.any():
+        must_be_sub = False if governs_down.all() else (code != _STEEP) & (code != _CRITICAL) & ~governs_down
+        if must_be_sub is not False and must_be_sub.any():
             i = int(np.flatnonzero(must_be_sub)[0])
             if last.several_critical()[i]:
                 near, far = (v[i] for v in last.branch_limits(y_down, SUPER))
@@ -704,11 +725,11 @@ def _upstream_start(st: _Setup, sub: _SubPass) -> _Upstream:
                                                                   & st.can_sup_start[0]), ok)
         sup_state = np.where(ok, y_up, np.nan)
         sup_from_control = ok.copy()
-        for s in np.flatnonzero(~ok):
+        for s in (~ok).nonzero()[0]:
             notes[s].append(note(0.0, "unused control", end="upstream", control=_one(up, s)))
     entry = np.isnan(sup_state) & sub.c[:, 0] & st.can_sup_start[0]
     sup_state = np.where(entry, first.yc, sup_state)
-    for s in np.flatnonzero(entry):
+    for s in entry.nonzero()[0]:
         notes[s].append(note(0.0, "critical control", where="steep head"))
     return _Upstream(ctrl=up, state=up_state, sup_state=sup_state, from_control=sup_from_control)
 
@@ -721,7 +742,7 @@ def _supercritical_pass(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstr
     sup_state = up.sup_state
     carried = np.zeros(st.n, bool)  # supercritical flow carried over from the previous segment
     for k in range(len(st.segs)):
-        act = np.flatnonzero(np.isfinite(sup_state))
+        act = np.isfinite(sup_state).nonzero()[0]
         if act.size:
             gov_sup_end, y_end = _govern_segment(st, k, sub, up, gov, act, sup_state[act], carried)
         else:
@@ -763,7 +784,7 @@ def _govern_segment(st: _Setup, k, sub: _SubPass, up: _Upstream, gov: _Governed,
         core("stations", msup.size).govern(msup, msub, ysup, csup, blk_y, blk_r, _M_TOL, first_loss)
         depth[act, i0:i0 + m], regime[act, i0:i0 + m] = blk_y, blk_r
     sup_from_control = up.from_control
-    for r in np.flatnonzero(first_loss < m):
+    for r in (first_loss < m).nonzero()[0]:
         s, i = int(act[r]), int(first_loss[r])
         if i == 0:
             if k == 0 and not sup_from_control[s]:
@@ -812,7 +833,7 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     # critical depth at the head of a steep segment k + 1
     crit_dn = sub_end & ~crit_up & sub.c[:, j0] & st.can_sup_start[k + 1]
     if crit_up.any():
-        idx = np.flatnonzero(crit_up)
+        idx = crit_up.nonzero()[0]
         yt, _ = _transfer(_subset(seg, idx), _subset(nseg1, idx), seg.yc[idx], SUPER, drop)
         nxt[idx] = yt
         carried[idx] = yt < nseg1.yc[idx] * (1 - 1e-9)
@@ -820,7 +841,7 @@ def _next_head(st: _Setup, k, sub: _SubPass, gov: _Governed, act, gov_sup_end, y
     if k + 1 in sub.gate_jet:  # the gate releases its jet whatever arrives from upstream
         return sub.gate_jet[k + 1].copy(), np.zeros(n, bool)
     changed = not seg.same_section(nseg1)
-    for s in np.flatnonzero(crit_up | crit_dn):
+    for s in (crit_up | crit_dn).nonzero()[0]:
         if crit_up[s] and st.segments[k + 1].inflow:
             where = "inflow"  # below the inflow the discharge needs more energy
         elif crit_up[s] and changed:
@@ -836,7 +857,7 @@ def _note_swept_out(st: _Setup, down: _Downstream, act, gov_sup_end):
     govern subcritical flow: the jump forms below the reach."""
     if down.ctrl is None:
         return
-    for r in np.flatnonzero(gov_sup_end):
+    for r in gov_sup_end.nonzero()[0]:
         s = act[r]
         if down.governs[s]:
             st.notes[s].append(note(float(st.x[-1]), "jump swept out", control=_one(down.ctrl, s)))
@@ -873,29 +894,35 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
                 assumed = "normal depth" if classes[s, -1] == "mild" else "critical depth"
                 notes[s].append(note(float(x[-1]), "downstream control", assumed=assumed))
     if up.ctrl is not None:
-        for s in np.flatnonzero(up.from_control):
+        for s in up.from_control.nonzero()[0]:
             notes[s].append(note(0.0, "upstream control", control=_one(up.ctrl, s)))
         _add_details(notes, up.ctrl, up.state, depth[:, 0], 0.0)
     if ctrl is not None:
         top = segs[-1].section.max_depth
-        for s in np.flatnonzero(governs_down & (down.y_down > top)):
+        for s in (governs_down & (down.y_down > top)).nonzero()[0]:
             notes[s].append(note(float(x[-1]), "submerged outlet", head=down.y_down[s] - top))
 
 
-def _solution(st: _Setup, gov: _Governed) -> BatchSolution:
-    """The solution record, jumps sorted by scenario and x, with the notes on jumps on sloping floors."""
+def _solution(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, gov: _Governed) -> BatchSolution:
+    """The solution record, jumps sorted by scenario and x; its notes (the passes', then :func:`_control_notes`,
+    then those on jumps on sloping floors) are written when first read."""
     jumps = {}
-    notes = st.notes
     if gov.jumps:
         arr = list(zip(*gov.jumps, strict=True))
         types = (int, float, float, float, int, int, bool)
         jumps = {name: np.array(a, t) for name, a, t in zip(BatchSolution._JUMP_ROWS, arr, types, strict=True)}
         order = np.lexsort((jumps["jump_x"], jumps["jump_scenario"]))
         jumps = {name: a[order] for name, a in jumps.items()}
-        for s, n in note_sloping_jumps(jumps["jump_scenario"], jumps["jump_x"], jumps["jump_segment"], st.reach):
-            notes[s].append(n)
+
+    def notes():
+        _control_notes(st, down, sub, up, gov)
+        if jumps:
+            for s, n in note_sloping_jumps(jumps["jump_scenario"], jumps["jump_x"], jumps["jump_segment"], st.reach):
+                st.notes[s].append(n)
+        return tuple(map(tuple, st.notes))
+
     return BatchSolution(x=st.x, segment=st.seg_ix, bed=st.bed, depth=gov.depth, regime=gov.regime, segs=st.segs,
-                         slope_class=st.classes, notes=tuple(map(tuple, notes)),
+                         slope_class=st.classes, _notes=notes,
                          pressure_runs=tuple(map(tuple, st.pressure_runs)), **jumps)
 
 
@@ -916,7 +943,7 @@ def _conveyance_ratio_notes(notes, segments, segs, bounds, x, depth):
             k_dn = seg.discharge / np.sqrt(seg.tail.properties(depth[:, i0 + m - 1])[4])
             ratio = k_up / k_dn
         far = (ratio > CONVEYANCE_RATIO_LIMIT) | (ratio < 1.0 / CONVEYANCE_RATIO_LIMIT)
-        for s in np.flatnonzero(far):
+        for s in far.nonzero()[0]:
             notes[s].append(note(float(x[i0]), "sections far apart", x_up=float(x[i0]), x_down=float(x[i0 + m - 1]),
                                  ratio=float(max(ratio[s], 1.0 / ratio[s])), limit=CONVEYANCE_RATIO_LIMIT))
 
@@ -932,7 +959,7 @@ def _several_critical_notes(notes, segs, bounds, x, depth):
         if seg.n_critical is None or not (seg.n_critical > 1).any():
             continue
         i0, m = bounds[k]
-        for s in np.flatnonzero(seg.n_critical > 1):
+        for s in (seg.n_critical > 1).nonzero()[0]:
             ch = Channel(seg.cb.kind, seg.cb.par, seg.cb.law, np.ascontiguousarray(seg.cb.rough[s]))
             count, _ = kernel.all_critical_depths(ch, seg.fl, float(seg.discharge[s]), seg.alpha, buf)
             lo, hi = float(buf[:count].min()), float(buf[:count].max())
@@ -986,7 +1013,7 @@ def _choke_notes(notes, segs, classes, bounds, x, depth, regime):
         raised = (regime[:, i_end] == REGIME_SUB) & np.isfinite(yn) & (depth[:, i_end] > yn * (1 + 1e-3))
         raised &= np.isin(classes[:, k], ("mild", "critical"))
         raised &= (regime[:, j0:j0 + m1] == REGIME_CRITICAL).any(axis=1)
-        for s in np.flatnonzero(raised):
+        for s in raised.nonzero()[0]:
             notes[s].append(note(float(x[i_end]), "choke", k=k, depth=depth[s, i_end], yn=yn[s]))
 
 

@@ -189,7 +189,7 @@ def section_roughness(section, roughness):
     InvalidInputError
         When a surveyed section is given a roughness too, or a geometric section none.
     """
-    if hasattr(section, "core_roughness"):
+    if hasattr(type(section), "core_roughness"):  # (on the class: a model's own lookup of a missing name is slow)
         if roughness is not None:
             raise InvalidInputError(f"roughness: {section!r} carries its own roughness per zone; leave roughness "
                                     "out (None), or change the section's roughness")

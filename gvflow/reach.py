@@ -334,9 +334,12 @@ class Reach(FrozenModel):
         The discharge entering the reach plus every inflow down to and including the segment's own, and the
         lateral inflow of every segment above it.
         """
-        lateral = [s.lateral_inflow * s.length for s in self.segments]
-        added = np.cumsum([s.inflow for s in self.segments]) + np.concatenate([[0.0], np.cumsum(lateral)[:-1]])
-        return np.asarray(discharge, dtype=float)[..., None] + added
+        added, inflows, lateral = [], 0.0, 0.0  # running sums, in the order of the segments
+        for s in self.segments:
+            inflows += s.inflow
+            added.append(inflows + lateral)
+            lateral += s.lateral_inflow * s.length
+        return np.asarray(discharge, dtype=float)[..., None] + np.array(added)
 
     # -- geometry --------------------------------------------------------------------
     @property
@@ -352,7 +355,11 @@ class Reach(FrozenModel):
     @property
     def boundaries(self) -> np.ndarray:
         """x of the segment ends, from 0 to the reach length (K + 1 values) [length]."""
-        return np.concatenate([[0.0], np.cumsum([s.length for s in self.segments])])
+        out, x = [0.0], 0.0
+        for s in self.segments:
+            x += s.length
+            out.append(x)
+        return np.array(out)
 
     def segment_at(self, x) -> np.ndarray:
         """Index of the segment holding each x (a junction belongs to the downstream segment)."""

@@ -116,6 +116,11 @@ def _control_notes(reach, jumps, notes, full_notes) -> list:
     return sorted((ControlNote(float(n.x), n.kind, note_text(n, units)) for n in notes), key=lambda c: c.x)
 
 
+def _scenario_notes(reach, jumps, sol: BatchSolution, i: int, full_notes) -> list:
+    """:func:`_control_notes` of scenario i, with the solver's notes read (and so made) only now."""
+    return _control_notes(reach, jumps, sol.notes[i], full_notes)
+
+
 def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
     """(A, T, Sf, V, Fr, alpha V²/2g, alpha) at each station of scenario i (segment index ``seg_ix``, ``depth``,
     distance ``x``: where a segment's section changes, its section there)."""
@@ -127,7 +132,11 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         roughs = np.ascontiguousarray(cb.rough[i:i + 1], float)
     else:
         pars = [sg.cb.par for sg in segs]
-        par, offsets = np.concatenate(pars), np.cumsum([0] + [p.size for p in pars]).astype(np.int64)
+        ends, end = [0], 0
+        for p in pars:
+            end += p.size
+            ends.append(end)
+        par, offsets = np.concatenate(pars), np.array(ends, np.int64)
         roughs = np.zeros((len(segs), max(sg.cb.rough.shape[1] for sg in segs)))
         for k, sg in enumerate(segs):
             roughs[k, :sg.cb.rough.shape[1]] = sg.cb.rough[i]
@@ -137,7 +146,9 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
         out)
     for k, sg in enumerate(segs):
-        cols = np.flatnonzero(seg_ix == k) if sg.change is not None else ()
+        if sg.change is None:
+            continue
+        cols = np.flatnonzero(seg_ix == k)
         if len(cols):
             c, part = sg.change, np.empty((7, len(cols)))
             core("changing", len(cols)).quantities_at(sg.cb, c.along, sg.fl, i, float(sg.discharge[i]),
@@ -157,10 +168,13 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
     stretch at the jump.
     """
     nseg = len(reach.segments)
-    crown = np.array([s.section.max_depth for s in reach.segments], dtype=float)
-    full = y > crown[seg]
+    crowns = [s.section.max_depth for s in reach.segments]
     lengths = np.zeros(nseg)
-    if not np.any(full):
+    if all(c == np.inf for c in crowns):  # open sections only: nothing can run full
+        return lengths, []
+    crown = np.array(crowns, dtype=float)
+    full = y > crown[seg]
+    if not full.any():
         return lengths, []
     runs = sol.pressure_runs[i] if sol.pressure_runs else []
     ends = {k: [] for k in range(nseg)}
@@ -178,7 +192,7 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
         t = inside[0] if inside else 0.5 * (xa + xb)
         lengths[k] += (xb - t) if full[j + 1] else (t - xa)
     notes = []
-    for k in np.flatnonzero(lengths > 0):
+    for k in (lengths > 0).nonzero()[0]:
         sel = (seg == k) & full
         h = y[sel] - crown[k]
         xs = x[sel]
@@ -345,11 +359,16 @@ class Profile:
     @classmethod
     def from_batch(cls, reach, sol: BatchSolution, i: int, method: str = "standard_step") -> Profile:
         """The profile of scenario ``i`` of a batch solution (``reach`` holds its discharge)."""
-        rows = np.flatnonzero(sol.jump_scenario == i)
+        rows = (sol.jump_scenario == i).nonzero()[0]
         # the two sequent depths of every jump inside a segment stand at the jump's x
-        x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
-            sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows], sol.jump_x[rows],
-            sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows], sol.jump_at_junction[rows])
+        if rows.size:
+            x, y, reg, seg = core("pieces", sol.x.size).scenario_sequence(
+                sol.x, sol.depth[i], sol.regime[i].astype(np.int64), sol.segment, sol.jump_after[rows],
+                sol.jump_x[rows], sol.jump_y1[rows], sol.jump_y2[rows], sol.jump_segment[rows],
+                sol.jump_at_junction[rows])
+        else:  # (no jump to insert: the base stations, as the sequence would copy them)
+            x, y = sol.x.copy(), sol.depth[i].copy()
+            reg, seg = sol.regime[i].astype(np.int64), sol.segment.astype(np.int64)
         yn = np.array([s.tail.yn[i] for s in sol.segs])  # (a changing segment: at its downstream end, where
         yc = np.array([s.tail.yc[i] for s in sol.segs])  # its slope class is taken)
         classes = [str(c) for c in sol.slope_class[i]]
@@ -358,17 +377,23 @@ class Profile:
         q_at = _station_discharge(sol, i, x, seg)
         if len(sol.segs) > 1:
             drop = np.array([s.drop for s in reach.segments])
-            keep = np.ones(x.size, bool)
-            keep[1:] = ~((x[1:] == x[:-1]) & (seg[1:] != seg[:-1]) & (np.abs(y[1:] - y[:-1]) <= 1e-12 * y[:-1])
-                         & (drop[seg[1:]] == 0) & (q_at[1:] == q_at[:-1]))
-            x, y, reg, seg, q_at = x[keep], y[keep], reg[keep], seg[keep], q_at[keep]
+            # (the tests below only at the junctions: stations sharing an x in two segments)
+            j = ((x[1:] == x[:-1]) & (seg[1:] != seg[:-1])).nonzero()[0]
+            same = j[(np.abs(y[j + 1] - y[j]) <= 1e-12 * y[j]) & (drop[seg[j + 1]] == 0) & (q_at[j + 1] == q_at[j])]
+            if same.size:
+                keep = np.ones(x.size, bool)
+                keep[same + 1] = False
+                x, y, reg, seg, q_at = x[keep], y[keep], reg[keep], seg[keep], q_at[keep]
         bed = reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
         k2 = sol.jump_segment[rows]
-        k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
-        props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
-                                    np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]),
-                                    np.concatenate([x, sol.jump_x[rows], sol.jump_x[rows]]))
+        if rows.size:
+            k1 = np.where(sol.jump_at_junction[rows], k2 - 1, k2)
+            props = _station_quantities(sol, i, np.concatenate([seg, k1, k2]),
+                                        np.concatenate([y, sol.jump_y1[rows], sol.jump_y2[rows]]),
+                                        np.concatenate([x, sol.jump_x[rows], sol.jump_x[rows]]))
+        else:
+            props = _station_quantities(sol, i, seg, y, x)
         fr_j, hv_j = props[4, x.size:], props[5, x.size:]
         stations = np.empty((len(_STATION_ROWS), x.size))
         stations[0], stations[1], stations[2] = x, y, bed
@@ -385,7 +410,7 @@ class Profile:
                               where="at a segment junction" if sol.jump_at_junction[j] else "in segment"))
 
         full_len, full_notes = _surcharge(reach, sol, i, x, y, seg)
-        controls = functools.partial(_control_notes, reach, jumps, sol.notes[i], full_notes)  # made when first read
+        controls = functools.partial(_scenario_notes, reach, jumps, sol, i, full_notes)  # made when first read
         profile = cls(reach=reach, method=method, stations=stations, regime=reg, segment=seg, jumps=jumps,
                       pieces=pieces, controls=controls, normal_depths=yn, critical_depths=yc, slope_classes=classes,
                       surcharged_lengths=full_len)

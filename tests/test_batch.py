@@ -432,6 +432,17 @@ def test_profile_pickles_whole_and_read_only():
     assert back.summary() == profile.summary()
 
 
+def test_sweep_pickles_with_its_notes():
+    # the solver writes its notes when first read; a pickled sweep carries them made, unread or read
+    result = chute().sweep(roughness_scale=[0.9, 1.0, 1.1], n_steps=20)
+    unread = pickle.loads(pickle.dumps(result))
+    texts = [c.text for c in result[1].controls]
+    assert any("governs" in t for t in texts)
+    for back in (unread, pickle.loads(pickle.dumps(result))):
+        assert [c.text for c in back[1].controls] == texts
+        np.testing.assert_array_equal(back.depth, result.depth)
+
+
 @pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_solve_many_on_a_local_dask_cluster():
     distributed = pytest.importorskip("distributed")

@@ -72,3 +72,42 @@ def test_a_fresh_process_answers_without_numba():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True,
                          env={"GVFLOW_ENGINE": "auto", "PATH": ""})
     assert out.stdout.strip() == "False"
+
+
+def _core_functions():
+    """{name: (decorator name, the function's AST)} of every decorated function of gvflow/_core."""
+    import ast
+    from pathlib import Path
+
+    out = {}
+    for path in sorted((Path(gv.__file__).parent / "_core").glob("*.py")):
+        for node in ast.parse(path.read_text()).body:
+            if isinstance(node, ast.FunctionDef) and node.decorator_list:
+                deco = node.decorator_list[0]
+                if isinstance(deco, ast.Name):
+                    out[node.name] = (deco.id, node, path.name)
+    return out
+
+
+def test_kernels_without_reference_counting_handle_no_array_of_their_own():
+    """A ``scalar_kernel`` (compiled without reference counting, :mod:`gvflow._core._jit`) may read the
+    arrays it is given but must neither make one (numpy calls) nor receive one from a call: only other
+    scalar or inlined kernels of the core, plain math and records built on the spot. A function breaking
+    this would count references wrongly; numba itself only refuses the allocations."""
+    import ast
+
+    funcs = _core_functions()
+    scalar = {name for name, (deco, _, _) in funcs.items() if deco == "scalar_kernel"}
+    allowed = scalar | {name for name, (deco, _, _) in funcs.items() if deco == "inline_kernel"}
+    assert {"hydraulics"} <= allowed and {"step_from", "advance", "geometry", "normal_depth"} <= scalar
+    offences = []
+    for name in sorted(scalar):
+        for node in ast.walk(funcs[name][1]):
+            if not isinstance(node, ast.Call):
+                continue
+            f = node.func
+            if isinstance(f, ast.Attribute) and isinstance(f.value, ast.Name) and f.value.id == "np":
+                offences.append(f"{name} calls np.{f.attr}")
+            elif isinstance(f, ast.Name) and f.id in funcs and f.id not in allowed:
+                offences.append(f"{name} calls {f.id}, a {funcs[f.id][0]}")
+    assert not offences, offences

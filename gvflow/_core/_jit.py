@@ -61,6 +61,25 @@ def kernel(fn):
     return njit(cache=True)(fn)
 
 
+def scalar_kernel(fn):
+    """:func:`kernel` for a function that takes records and arrays but returns only numbers, allocates no
+    array and calls nothing that returns one: compiled without reference counting (numba's ``_nrt=False``).
+
+    A compiled call passes each array of a record with a count of its references, raised on entry and
+    lowered on exit (two atomic operations per array per call); the caller already holds every array for
+    the duration of the call, so on the march's innermost path, where the records pass through several
+    calls per station, the counting is pure cost. The numbers computed are the same. A function marked so
+    must not return an array or a record holding one, nor receive one from a call: nothing would count
+    the reference it makes.
+    """
+    if fn.__module__.startswith(PLAIN):
+        return fn
+    from numba import njit
+
+    _drop_stale_cache()
+    return njit(cache=True, _nrt=False)(fn)
+
+
 def inline_kernel(fn):
     """:func:`kernel` for the one-pass hydraulics on the march's innermost path:
     numba inlines it where it is called (about 20 % off the march), at the price of a longer first compile."""

@@ -26,7 +26,7 @@ import math
 
 import numpy as np
 
-from ._jit import kernel
+from ._jit import kernel, scalar_kernel
 from .codes import DARCY, MANNING, NO_ROOT, NOT_CONVERGED, SOLVED, SUB
 from .geometry import SURVEYED, breakpoint_depths, geometry, max_depth, single_zone_depth
 from .records import Channel
@@ -35,7 +35,7 @@ from .resistance import conveyance, froude_squared, hydraulics, velocity_coeffic
 _RTOL = 1e-14
 
 
-@kernel
+@scalar_kernel
 def velocity_head(ch, fl, q, y, alpha):
     """alpha(y) V²/(2g) = alpha(y) Q²/(2 g A²) [length]."""
     if ch.kind == SURVEYED:  # area and alpha from one pass over the zones
@@ -46,13 +46,13 @@ def velocity_head(ch, fl, q, y, alpha):
     return al * (q / a) * (q / a) / (2.0 * fl.g)
 
 
-@kernel
+@scalar_kernel
 def specific_energy(ch, fl, q, y, alpha):
     """E = y + alpha(y) Q²/(2 g A²) [length]."""
     return y + velocity_head(ch, fl, q, y, alpha)
 
 
-@kernel
+@scalar_kernel
 def specific_force(ch, fl, q, y, alpha):
     """M = beta(y) Q²/(g A) + A ybar [length³]; above a closed conduit's crown the full area under the
     pressure head y (module notes)."""
@@ -67,7 +67,7 @@ def specific_force(ch, fl, q, y, alpha):
     return be * q * q / (fl.g * a) + m
 
 
-@kernel
+@scalar_kernel
 def _subcritical_depth(ch, fl, q, alpha):
     """A depth at which the flow is subcritical (Fr² < 1), doubling from 1 [length]; NaN if none by 2^1000."""
     hi = 1.0
@@ -78,7 +78,7 @@ def _subcritical_depth(ch, fl, q, alpha):
     return math.nan
 
 
-@kernel
+@scalar_kernel
 def critical_depth_single(ch, fl, q, alpha):
     """Critical depth of a section whose specific energy has one minimum: alpha Q² T = g A³.
 
@@ -125,7 +125,7 @@ def critical_depth_single(ch, fl, q, alpha):
     return y, NOT_CONVERGED
 
 
-@kernel
+@scalar_kernel
 def _split(lo, hi):
     """A point inside the bracket (lo, hi): the middle, or a thousandth of hi while lo is 0 (geometric
     descent toward tiny roots), or the geometric mean of a bracket spanning decades."""
@@ -136,18 +136,18 @@ def _split(lo, hi):
     return 0.5 * (lo + hi)
 
 
-@kernel
+@scalar_kernel
 def _dedy(ch, fl, q, y, alpha):
     return 1.0 - froude_squared(ch, fl, q, y, alpha)
 
 
-@kernel
+@scalar_kernel
 def _polish(ch, fl, q, alpha, lo, hi):
     """Root of dE/dy (negative at lo, positive at hi) by the Illinois method; (depth, status)."""
     return _polish_signed(ch, fl, q, alpha, lo, hi, 1.0)
 
 
-@kernel
+@scalar_kernel
 def _polish_signed(ch, fl, q, alpha, lo, hi, sign):
     """Root of sign dE/dy (negative at lo, positive at hi): sign 1 a minimum of specific energy, -1 a
     maximum (:func:`_polish`)."""
@@ -228,7 +228,7 @@ def _scan_froude(ch, fl, q, alpha, grid):
     return fr2
 
 
-@kernel
+@scalar_kernel
 def _scan_minima(ch, fl, q, alpha, grid, fr2, scale, out):
     """Polish every change of sign of dE/dy = 1 - scale fr2 from negative to positive on the grid; (count,
     status) as :func:`critical_depths`. ``scale`` carries a scan made at another discharge (module notes of
@@ -355,7 +355,7 @@ def _previous_max(ch, fl, q, alpha, grid, fr2, i, m):
     return 0.0
 
 
-@kernel
+@scalar_kernel
 def peak_conveyance(ch, fl, q):
     """(depth, conveyance) of a closed conduit's largest conveyance, by golden-section search.
 
@@ -378,19 +378,19 @@ def peak_conveyance(ch, fl, q):
     return y, conveyance(ch, fl, q, y)
 
 
-@kernel
+@scalar_kernel
 def ln(x):
     """Natural logarithm, -inf at zero (as IEEE arithmetic gives it; Python's math.log would raise)."""
     return math.log(x) if x > 0.0 else -math.inf
 
 
-@kernel
+@scalar_kernel
 def _log_sf(ch, fl, q, y):
     """ln Sf = 2 (ln Q - ln K), free of the overflow and underflow of (Q/K)² at extreme discharges."""
     return 2.0 * (math.log(q) - ln(conveyance(ch, fl, q, y)))
 
 
-@kernel
+@scalar_kernel
 def _log_sf_slope(ch, fl, q, y):
     """(ln Sf, d ln Sf/dy) at depth y from one pass of :func:`~gvflow._core.resistance.hydraulics`: the same
     values as :func:`_log_sf` and :func:`~gvflow._core.resistance.dlnsf_dy`."""
@@ -398,7 +398,7 @@ def _log_sf_slope(ch, fl, q, y):
     return 2.0 * (math.log(q) - ln(h[3])), -2.0 * h[4]
 
 
-@kernel
+@scalar_kernel
 def normal_depth(ch, fl, q, s0):
     """Depth of uniform flow, Sf(y) = S0; (depth, status).
 
@@ -412,7 +412,7 @@ def normal_depth(ch, fl, q, s0):
     return y, status
 
 
-@kernel
+@scalar_kernel
 def _normal_depth_slope(ch, fl, q, s0):
     """:func:`normal_depth` and d ln Sf/d ln y at the last depth its iteration evaluated (NaN if none)."""
     if not s0 > 0.0:
@@ -435,7 +435,7 @@ def _normal_depth_slope(ch, fl, q, s0):
     return _normal_newton(ch, fl, q, lns0, 0.0, hi, 0.5 * hi)
 
 
-@kernel
+@scalar_kernel
 def _normal_newton(ch, fl, q, lns0, lo, hi, y):
     """Safeguarded Newton in ln y on ln Sf(y) - ln S0 from depth y inside the bracket (lo, hi) of the root
     (hi may be infinite: the bracket then grows by doubling); (depth, status as :func:`normal_depth`,
@@ -507,7 +507,7 @@ def normal_depth_batch(cb, fl, q, s0, yn, status):
         prev = s if status[s] == SOLVED else -1
 
 
-@kernel
+@scalar_kernel
 def _least_energy(ch, fl, q, alpha, buf, n, status):
     """(depth, status, count) of the critical depth of least specific energy among buf[:n]."""
     if n == 0:

@@ -46,7 +46,7 @@ import math
 
 import numpy as np
 
-from ._jit import kernel
+from ._jit import kernel, scalar_kernel
 from .codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed  # noqa: F401
 
 # d_k = c_k * 2/((2k+3)(2k+5)), c_k the coefficients of sqrt(1 - s) = sum c_k s^k: the series
@@ -59,7 +59,7 @@ for _k in range(16):
 del _c, _k
 
 
-@kernel
+@scalar_kernel
 def theta_minus_sin(theta):
     """theta - sin(theta) without cancellation at small angles (Taylor series below 0.25 rad)."""
     if theta >= 0.25:
@@ -69,7 +69,7 @@ def theta_minus_sin(theta):
         1.0 - t2 / 110.0 * (1.0 - t2 / 156.0)))))
 
 
-@kernel
+@scalar_kernel
 def _circle_moment(y, d):
     """First moment about the surface of a shallow circular segment (y/D < 0.05), no cancellation.
 
@@ -83,7 +83,7 @@ def _circle_moment(y, d):
     return 4.0 * math.sqrt(d) * y * y * math.sqrt(y) * acc
 
 
-@kernel
+@scalar_kernel
 def _circle(d, y):
     yy = min(max(y, 0.0), d)
     s = yy / d
@@ -106,7 +106,7 @@ def _circle(d, y):
     return a, p, t, m, -math.inf if yy > 0.0 else math.inf, math.inf
 
 
-@kernel
+@scalar_kernel
 def _parabola(c, y):
     if y <= 0.0:
         return 0.0, 0.0, 0.0, 0.0, math.inf, math.inf
@@ -118,7 +118,7 @@ def _parabola(c, y):
             0.5 * c * math.sqrt(1.0 + 16.0 * y / (c * c)) / s)
 
 
-@kernel
+@scalar_kernel
 def zone_count(kind, par):
     """Number of roughness zones of a section (1 for every geometric shape)."""
     if kind == SURVEYED:
@@ -126,7 +126,7 @@ def zone_count(kind, par):
     return 1
 
 
-@kernel
+@scalar_kernel
 def _wall_in_zone(x, za, zb, lo, hi):
     """Whether a vertical wall at offset x (ground from za to zb, left to right) lies in zone [lo, hi]."""
     if lo < x < hi:
@@ -138,7 +138,7 @@ def _wall_in_zone(x, za, zb, lo, hi):
     return False
 
 
-@kernel
+@scalar_kernel
 def surveyed_zone_from(par, y, i, j0):
     """(A, P, T, M, dT/dy, dP/dy, j1) of zone i of a packed surveyed section at depth y, reading ground pieces
     from piece j0 on; j1 is where zone i + 1 starts reading.
@@ -213,14 +213,14 @@ def surveyed_zone_from(par, y, i, j0):
     return a, p, t, m, dt, dp, j1
 
 
-@kernel
+@scalar_kernel
 def _surveyed_zone(par, y, i):
     """(A, P, T, M, dT/dy, dP/dy) of zone i of a packed surveyed section at depth y."""
     a, p, t, m, dt, dp, j1 = surveyed_zone_from(par, y, i, 0)
     return a, p, t, m, dt, dp
 
 
-@kernel
+@scalar_kernel
 def zone_geometry(kind, par, y, i):
     """(A_i, P_i, T_i, M_i, dT_i/dy, dP_i/dy) of roughness zone i at depth y.
 
@@ -232,7 +232,7 @@ def zone_geometry(kind, par, y, i):
     return geometry(kind, par, y)
 
 
-@kernel
+@scalar_kernel
 def geometry(kind, par, y):
     """(A, P, T, M, dT/dy, dP/dy) of the whole section at depth y [length].
 
@@ -266,7 +266,7 @@ def geometry(kind, par, y):
     return a, p, t, m, dt, dp
 
 
-@kernel
+@scalar_kernel
 def max_depth(kind, par):
     """Largest depth a section can hold [length]: the crown of a closed conduit, else infinity."""
     if kind == CIRCLE:

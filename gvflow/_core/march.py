@@ -17,7 +17,7 @@ import math
 
 import numpy as np
 
-from ._jit import kernel
+from ._jit import kernel, scalar_kernel
 from .codes import AVG_END, DARCY, SOLVED, SUB, SUPER  # noqa: F401
 from .flow import (
     branch_limits,
@@ -40,7 +40,7 @@ def scenario(cb, s):
     return Channel(cb.kind, cb.par, cb.law, cb.rough[s])
 
 
-@kernel
+@scalar_kernel
 def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
     """Energy residual r(y2) of a standard step over signed distance d, and dr/dy2."""
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y2, alpha)
@@ -57,7 +57,7 @@ def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
     return r, dr
 
 
-@kernel
+@scalar_kernel
 def station_state(ch, fl, q, alpha, y):
     """What a standard step needs of its start at depth y, and the relaxation rate there, from one pass of
     :func:`~gvflow._core.resistance.hydraulics`: (specific energy, friction slope, velocity head, rate).
@@ -69,7 +69,7 @@ def station_state(ch, fl, q, alpha, y):
     return y + hv, sf, hv, sf * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
 
 
-@kernel
+@scalar_kernel
 def step(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     """Depth after a standard step of signed length d on ``branch``.
 
@@ -82,7 +82,7 @@ def step(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     return step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess)
 
 
-@kernel
+@scalar_kernel
 def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     """:func:`step` from depth y1 whose specific energy e1, friction slope sf1 and velocity head hv1 are
     known (:func:`station_state`)."""
@@ -157,7 +157,7 @@ def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ym
     return y, 3
 
 
-@kernel
+@scalar_kernel
 def substeps(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol):
     """A step of length d taken as 4, then 16, then 64 equal sub-steps; (depth, code) as :func:`step`."""
     code = 1
@@ -176,7 +176,7 @@ def substeps(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol):
     return y, code
 
 
-@kernel
+@scalar_kernel
 def critical_distance(ch, fl, q, s0, y1, yc, alpha, avg):
     """Signed distance from a station at depth y1 to where the profile reaches yc (direct step)."""
     e1 = y1 + velocity_head(ch, fl, q, y1, alpha)
@@ -200,7 +200,7 @@ _GL_W = np.array([0.1713244923791704, 0.3607615730481386, 0.4679139345726910,
                   0.4679139345726910, 0.3607615730481386, 0.1713244923791704])
 
 
-@kernel
+@scalar_kernel
 def gvf_terms(ch, fl, q, s0, alpha, y):
     """Numerator and denominator of the GVF equation dy/dx = (S0 - Sf)/(1 - alpha Q² T/(g A³)) at depth y
     (Chow 1959, *Open-Channel Hydraulics*, eq. 9-13, x downstream): the compiled mirror of
@@ -209,7 +209,7 @@ def gvf_terms(ch, fl, q, s0, alpha, y):
     return s0 - slope_of(q, kk), 1.0 - fr2
 
 
-@kernel
+@scalar_kernel
 def _ratio(a, b):
     """a/b, infinite (with a's sign times b's) where b is zero, NaN for 0/0 (as IEEE division)."""
     if b != 0.0:
@@ -219,21 +219,21 @@ def _ratio(a, b):
     return math.inf if (a > 0.0) == (math.copysign(1.0, b) > 0.0) else -math.inf
 
 
-@kernel
+@scalar_kernel
 def dydx(ch, fl, q, s0, alpha, y):
     """Slope of the water-surface profile dy/dx = (S0 - Sf)/(1 - Fr²) at depth y (x downstream)."""
     num, den = gvf_terms(ch, fl, q, s0, alpha, y)
     return _ratio(num, den)
 
 
-@kernel
+@scalar_kernel
 def dxdy(ch, fl, q, s0, alpha, y):
     """dx/dy = (1 - Fr²)/(S0 - Sf) at depth y, regular at critical depth."""
     num, den = gvf_terms(ch, fl, q, s0, alpha, y)
     return _ratio(den, num)
 
 
-@kernel
+@scalar_kernel
 def relaxation_rate(ch, fl, q, alpha, y):
     """Rate [1/length] at which a profile near depth y relaxes toward normal depth: |dSf/dy| / |1 - Fr²|,
     the stiffness of the GVF equation (its Jacobian where S0 = Sf). A trapezoidal energy step longer than
@@ -241,14 +241,14 @@ def relaxation_rate(ch, fl, q, alpha, y):
     return station_state(ch, fl, q, alpha, y)[3]
 
 
-@kernel
+@scalar_kernel
 def _dxdy(ch, fl, q, s0, alpha, ce, sxy, y):
     """dx/dy of the energy equation with eddy loss: ((1 - Fr²) + sxy Ce Fr²)/(S0 - Sf), sxy = sign(dx dy)."""
     num, den = gvf_terms(ch, fl, q, s0, alpha, y)
     return (den + sxy * ce * (1.0 - den)) / num
 
 
-@kernel
+@scalar_kernel
 def x_of_y(ch, fl, q, s0, alpha, ce, sxy, ya, yb, panels):
     """Distance the profile takes to go from depth ya to yb, the integral of dx/dy by Gauss-Legendre
     quadrature (6 points) on ``panels`` equal panels (the x(y) form is regular at critical depth, where dy/dx
@@ -263,7 +263,7 @@ def x_of_y(ch, fl, q, s0, alpha, ce, sxy, ya, yb, panels):
     return tot
 
 
-@kernel
+@scalar_kernel
 def crown_distance(ch, fl, q, s0, y1, ymax, alpha, ce, panels):
     """Distance upstream from a station at depth y1 to where a subcritical profile rising upstream reaches
     the crown ymax of a closed conduit: minus the integral of dx/dy = (1 - Fr²)/(S0 - Sf) from y1 to ymax
@@ -296,7 +296,7 @@ def crown_distances(cb, fl, rows, q, s0, y1, ymax, alpha, ce, panels, out):
         out[i] = crown_distance(scenario(cb, rows[i]), fl, q[i], s0, y1[i], ymax, alpha, ce, panels)
 
 
-@kernel
+@scalar_kernel
 def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
     """March near critical depth in the x(y) form, where the depth changes as the square root of distance.
 
@@ -378,7 +378,7 @@ def critical_leg(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, ymax):
 UNKNOWN_STATE = (0.0, 0.0, 0.0, -1.0)
 
 
-@kernel
+@scalar_kernel
 def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, state1):
     """Depth one station interval (signed length d) from depth y1 on ``branch``: (depth, code, dist, rate).
 
@@ -487,6 +487,7 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
     even = evenly_spaced(x)
     for s in range(ns):
         ch = scenario(cb, s)
+        ys = out_y[s]  # (one view of the scenario's row, not one per station)
         y = y0[s]
         state = UNKNOWN_STATE  # station_state of y, carried from one interval to the next
         out_y[s, 0] = y
@@ -499,7 +500,7 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
         for j in range(1, m):
             d = x[j] - x[j - 1]
             y2, code, dist, state = advance(ch, fl, q[s], s0, y, d, yc[s], branch, alpha, ce, avg, ymax, tol,
-                                            extrapolate(x, out_y[s], j, even), state)
+                                            extrapolate(x, ys, j, even), state)
             if code != 0:
                 stop_march(out_y, out_n, out_code, s, j, code)
                 if code == 1:
@@ -513,7 +514,7 @@ def march(cb, fl, q, s0, x, y0, yc, branch, alpha, ce, avg, ymax, tol,
                 break
 
 
-@kernel
+@scalar_kernel
 def stop_march(out_y, out_n, out_code, s, n_valid, code):
     """Scenario s of a march stops after ``n_valid`` stations, for the reason ``code``: the rest are NaN."""
     out_n[s] = n_valid
@@ -522,7 +523,7 @@ def stop_march(out_y, out_n, out_code, s, n_valid, code):
         out_y[s, jj] = math.nan
 
 
-@kernel
+@scalar_kernel
 def evenly_spaced(x):
     """True when the stations ``x`` are equally spaced (to 1e-9 of the spacing)."""
     d = x[1] - x[0] if x.shape[0] > 1 else 0.0
@@ -532,7 +533,7 @@ def evenly_spaced(x):
     return True
 
 
-@kernel
+@scalar_kernel
 def extrapolate(x, y, j, even):
     """First guess of y[j] from the depths before it: cubic through the last four on evenly spaced stations
     (the march's usual layout), linear otherwise."""
@@ -626,7 +627,7 @@ def force_or_energy(cb, fl, q, y, alpha, energy, out):
                 out[s, j] = specific_force(ch, fl, qs, yj, alpha)
 
 
-@kernel
+@scalar_kernel
 def _branch_depth(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol):
     """Depth a signed distance d from (y1) along ``branch``; critical depth where the branch ends."""
     if d == 0.0:
@@ -713,7 +714,7 @@ def froude_band_depths(cb, fl, q, lo_fr, hi_fr, y_lo, y_hi):
         y_hi[i] = critical_depth_single(ch, fl, q[i] / lo_fr, 1.0)[0]
 
 
-@kernel
+@scalar_kernel
 def station_values(ch, fl, q, y, alpha, out, i):
     """Fill out[:, i] with (A, T, Sf, V, Fr, alpha V²/2g, alpha) at depth y in channel ``ch`` for discharge q
     (NaN where y is not positive). Fr is V/sqrt(gA/T) for a geometric section, the compound Froude number

@@ -25,14 +25,14 @@ from __future__ import annotations
 
 import math
 
-from ._jit import inline_kernel, kernel
+from ._jit import inline_kernel, scalar_kernel
 from .codes import AVERAGES, AVG_ARITHMETIC, AVG_END, AVG_GEOMETRIC, AVG_HARMONIC, CHEZY, DARCY, MANNING  # noqa: F401
 from .geometry import SURVEYED, geometry, surveyed_zone_from, zone_count
 
 LAMINAR_LIMIT = 2000.0
 
 
-@kernel
+@scalar_kernel
 def colebrook(re, eps):
     """Darcy friction factor f from Colebrook-White, 1/sqrt f = -2 log10(eps/3.7 + 2.51/(Re sqrt f)).
 
@@ -57,7 +57,7 @@ def colebrook(re, eps):
     return math.nan
 
 
-@kernel
+@scalar_kernel
 def _zone_k(law, c, k, a, p):
     """Conveyance of one zone of area a and wetted perimeter p (Manning or Chezy); 0 if dry."""
     if a <= 0.0 or p <= 0.0:
@@ -67,12 +67,19 @@ def _zone_k(law, c, k, a, p):
     return c * a * math.sqrt(a / p)
 
 
-@kernel
+@scalar_kernel
 def _exponents(law):
     """(a, b) of K_i proportional to A_i^a P_i^-b: Manning (5/3, 2/3), Chezy and Darcy (3/2, 1/2)."""
     if law == MANNING:
         return 5.0 / 3.0, 2.0 / 3.0
     return 1.5, 0.5
+
+
+@scalar_kernel
+def geometric_coefficients(alpha):
+    """Energy and momentum coefficients (alpha, beta) of a geometric section (one roughness zone, one velocity
+    across it): the reach's given alpha, and beta = 1."""
+    return alpha, 1.0
 
 
 @inline_kernel
@@ -89,15 +96,16 @@ def hydraulics(ch, fl, q, y, alpha):
     ea, eb = _exponents(ch.law)
     if ch.kind != SURVEYED:
         a, p, t, m, dt, dp = geometry(ch.kind, ch.par, y)
+        al, be = geometric_coefficients(alpha)
         if not a > 0.0:  # a depth below what the geometry resolves: no flow area, no conveyance
-            return 0.0, t, 0.0, 0.0, math.inf, alpha, 1.0, math.inf
+            return 0.0, t, 0.0, 0.0, math.inf, al, be, math.inf
         if ch.law == DARCY:
             r = a / p
             f = colebrook(4.0 * r * abs(q) / (a * fl.nu), ch.rough[0] / (4.0 * r))
             kk = math.sqrt(8.0 * fl.g / f) * a * math.sqrt(r)
         else:
             kk = _zone_k(ch.law, ch.rough[0], fl.k, a, p)
-        return a, t, m, kk, ea * t / a - eb * dp / p, alpha, 1.0, alpha * (q / a) * (q / a) * t / (fl.g * a)
+        return a, t, m, kk, ea * t / a - eb * dp / p, al, be, al * (q / a) * (q / a) * t / (fl.g * a)
     a_tot = t_tot = m_tot = 0.0
     kk = dk = s2 = s3 = sig1 = 0.0
     j = 0  # the zones left to right read the ground pieces once
@@ -129,31 +137,31 @@ def hydraulics(ch, fl, q, y, alpha):
     return a_tot, t_tot, m_tot, kk, dk / kk, al, be, fr2
 
 
-@kernel
+@scalar_kernel
 def conveyance(ch, fl, q, y):
     """Conveyance K [length³/s] at depth y, so that Q = K sqrt(Sf); ``q`` matters only for Darcy."""
     return hydraulics(ch, fl, q, y, 1.0)[3]
 
 
-@kernel
+@scalar_kernel
 def slope_of(q, kk):
     """Friction slope (Q/K)² of discharge q through conveyance K; infinite where K vanishes (no flow area)."""
     return (q / kk) * (q / kk) if kk > 0.0 else math.inf
 
 
-@kernel
+@scalar_kernel
 def friction_slope(ch, fl, q, y):
     """Friction slope Sf = (Q/K)² [-] of discharge q at depth y."""
     return slope_of(q, conveyance(ch, fl, q, y))
 
 
-@kernel
+@scalar_kernel
 def dlnsf_dy(ch, fl, q, y):
     """d ln(Sf)/dy at fixed discharge, -2 dK/dy / K (Darcy: friction factor held fixed)."""
     return -2.0 * hydraulics(ch, fl, q, y, 1.0)[4]
 
 
-@kernel
+@scalar_kernel
 def sf_average(avg, s1, s2):
     """Mean friction slope over a step and its derivative with respect to s2.
 
@@ -177,18 +185,21 @@ def sf_average(avg, s1, s2):
     return 4.0 / (den * den), 4.0 * a2 * a2 * a2 / (den * den * den)
 
 
-@kernel
+@scalar_kernel
 def velocity_coefficients(ch, fl, y, alpha):
     """Energy and momentum coefficients (alpha, beta) at depth y.
 
     A surveyed section's own coefficients from its zone conveyances (1 and 1 for
-    one zone); a geometric section takes the given ``alpha`` and beta = 1.
+    one zone); a geometric section takes the given ``alpha`` and beta = 1 (:func:`geometric_coefficients`,
+    without the pass over the section).
     """
+    if ch.kind != SURVEYED:
+        return geometric_coefficients(alpha)
     h = hydraulics(ch, fl, 1.0, y, alpha)
     return h[5], h[6]
 
 
-@kernel
+@scalar_kernel
 def froude_squared(ch, fl, q, y, alpha):
     """Square of the Froude number that decides the regime: 1 - dE/dy at depth y (see :func:`hydraulics`)."""
     return hydraulics(ch, fl, q, y, alpha)[7]

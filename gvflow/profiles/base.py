@@ -130,13 +130,17 @@ class SegmentBatch:
             law, values = section.core_roughness()
         else:
             law, values = rough.kernel_spec()
-        c = np.broadcast_to(np.asarray(values, dtype=float), q.shape + np.shape(values)).copy() if coef is None \
-            else coef
+        if coef is None:
+            values = np.asarray(values, dtype=float)
+            c = np.empty(q.shape + values.shape)
+            c[...] = values
+        else:
+            c = coef
         kind, par = section.core_params() if params is None else params
         cb = channel_batch(kind, par, law, c)
         fl = fluid(u)
-        yc, yn, sf_c = np.empty(q.shape), np.empty(q.shape), np.empty(q.shape)
-        code, status, status_n, count = (np.empty(q.shape, np.int64) for _ in range(4))
+        yc, yn, sf_c = np.empty((3,) + q.shape)  # (rows of one block each: one allocation, not seven)
+        code, status, status_n, count = np.empty((4,) + q.shape, np.int64)
         # (the section's own parameters and its roughness to 13 decimals: one section met at the end of one
         # changing segment and the head of the next, whose roughness rows may differ by round-off; all of its
         # constants where the bed slope is the same too, to 13 significant digits: the slopes of two segments
@@ -157,8 +161,9 @@ class SegmentBatch:
             if key is not None:
                 memo[key] = (yc.copy(), status.copy(), count.copy())
                 memo[whole] = tuple(a.copy() for a in (yc, yn, sf_c, code, status, status_n, count))
-        failed = (status == NOT_CONVERGED) | (status_n == NOT_CONVERGED)
-        yc[status == NOT_CONVERGED] = np.nan
+        failed_c = status == NOT_CONVERGED
+        failed = failed_c | (status_n == NOT_CONVERGED)
+        yc[failed_c] = np.nan
         batch = cls(section, float(slope), int(law), c, q, u, float(alpha), yc, yn, cb, fl, failed,
                     n_critical=count)
         if strict:
@@ -197,7 +202,7 @@ class SegmentBatch:
     def require_converged(self) -> None:
         """Raise ConvergenceError where a scenario's critical or normal depth did not converge (a solver that
         explains extreme input first builds with ``strict=False`` and calls this after)."""
-        if self.unconverged is not None and np.any(self.unconverged):
+        if self.unconverged is not None and self.unconverged.any():
             i = int(np.flatnonzero(self.unconverged)[0])
             raise ConvergenceError(f"critical or normal depth did not converge for discharge {self.discharge[i]:g} "
                                    f"in {self.section!r}; check that the discharge and the section are in the same "
@@ -209,7 +214,7 @@ class SegmentBatch:
         that a surveyed section's zone roughness, which sets its alpha, must match too."""
         if self.cb.kind != other.cb.kind:
             return False
-        same = np.array_equal(self.cb.par, other.cb.par) or self.section is other.section or (
+        same = self.section is other.section or np.array_equal(self.cb.par, other.cb.par) or (
             self.cb.par.size != other.cb.par.size and self.section == other.section)
         if same and self.cb.kind == SURVEYED:
             return np.array_equal(self.cb.rough, other.cb.rough)
