@@ -256,8 +256,7 @@ def _check_split(diameter, slope, barrels, crest, length, tailwater, qmax):
     assert np.all(r.barrel_discharge > 0) and np.all(r.road_discharge >= 0)
     over = r.road_discharge > 0
     if np.any(over):
-        alone = st.culvert_headwater(barrel, r.barrel_discharge[over], tailwater=tailwater)
-        np.testing.assert_allclose(alone.headwater, r.headwater[over], rtol=1e-10)
+        _check_one_headwater(barrel, r.barrel_discharge[over], r.headwater[over], tailwater)
         down = tailwater - 30.0 * slope
 
         def road_flow(hw):
@@ -273,6 +272,40 @@ def _check_split(diameter, slope, barrels, crest, length, tailwater, qmax):
         assert np.all(np.abs(r.road_discharge[over] - ref) <= tol)
     # the road carries flow exactly where the headwater stands above its crest
     assert np.all(r.headwater[over] > road.low_point) and np.all(r.headwater[~over] <= road.low_point)
+
+
+def _check_one_headwater(barrel, qb, hw, tailwater):
+    """The barrels alone at their share give the split's headwater; where their rating jumps at that share
+    (a barrel turning from steep to mild: the inlet governs below, a higher outlet control above), the
+    split's headwater lies within the jump."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GVFlowWarning)
+        alone = st.culvert_headwater(barrel, qb, tailwater=tailwater).headwater
+        below = st.culvert_headwater(barrel, qb * (1 - 1e-6), tailwater=tailwater).headwater
+        above = st.culvert_headwater(barrel, qb * (1 + 1e-6), tailwater=tailwater).headwater
+    # (a rating smooth at qb moves by about 1e-6 of the headwater over these probes; a jump by far more)
+    jump = np.abs(above - below) > 1e-4 * alone
+    np.testing.assert_allclose(alone[~jump], hw[~jump], rtol=1e-10)
+    lo, hi = np.minimum(below, above), np.maximum(below, above)
+    assert np.all((hw[jump] >= lo[jump] * (1 - 1e-5)) & (hw[jump] <= hi[jump] * (1 + 1e-5)))
+
+
+def test_a_split_in_the_jump_of_the_barrel_rating():
+    # A 0.5 m pipe on a slope that is steep for it below about 0.3045 m³/s and mild above: the inlet governs
+    # below (headwater 0.6465 m at the change), outlet control above (0.6581 m). A total of 0.3955 m³/s
+    # splits at the change; the headwater is the one that passes the rest over the road (continuity, and
+    # the road's broad-crested weir with its submergence factor, as in the property test below).
+    barrel = st.CircularBarrel(diameter=0.5, length=30.0, slope=0.007665935468262181, roughness=0.013, barrels=1)
+    road = st.RoadCrest(length=5.0, elevation=1.203125 * 0.5)
+    q = np.array([0.3955, 0.5])
+    with pytest.warns(GVFlowWarning, match="rating jumps"):
+        r = st.culvert_headwater(barrel, q, tailwater=0.0, road=road)
+    np.testing.assert_array_equal(r.barrel_discharge + r.road_discharge, q)
+    _check_one_headwater(barrel, r.barrel_discharge, r.headwater, 0.0)
+    down = 0.0 - 30.0 * barrel.slope
+    kt = np.asarray(st.road_submergence_factor((down - road.low_point) / (r.headwater - road.low_point)))
+    np.testing.assert_allclose(r.road_discharge, kt * weir(st.ROAD_OVERTOPPING_COEFFICIENT, 5.0,
+                                                           r.headwater - road.low_point), rtol=1e-9)
 
 
 def test_split_property():

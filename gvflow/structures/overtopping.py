@@ -71,6 +71,7 @@ import numpy as np
 from pydantic import Field, model_validator
 
 from .. import coefficients
+from .._roots import bracketed_root
 from .._validate import finite_array, scalar_or_array
 from ..errors import GVFlowWarning, InvalidInputError, NoSolutionError
 from ..units import UnitsLike, resolve_units
@@ -377,6 +378,7 @@ def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units,
                 merged[name] = full
             q_barrel[idx] = qb
             q_road[idx] = q[idx] - qb  # continuity, exactly
+            _headwater_in_a_jump(road, merged["headwater"], idx, qi - qb, down[idx], u)
             kt[idx] = _road_flow(road, merged["headwater"][idx], down[idx], u)[1]
             if np.any(kt[idx] < 1.0) and np.any(
                     (down[idx] - road.low_point) / (merged["headwater"][idx] - road.low_point)
@@ -396,6 +398,32 @@ def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units,
                    outlet_flow_depth=_shaped(depth, scalar), outlet_velocity=_shaped(velocity, scalar),
                    reason=reasons[0] if scalar else np.array(reasons), road=road,
                    road_submergence=_shaped(kt, scalar))
+
+
+def _headwater_in_a_jump(road, hw, idx, q_road, down, u):
+    """Where the split closed on a jump of the barrel's rating, set the headwater (``hw[idx]``, in place) to
+    the one that passes ``q_road`` over the road, with a warning.
+
+    The barrel's governing headwater jumps up with its discharge where the barrel turns from steep to mild:
+    below, the inlet governs (the outlet-control figure, critical depth at the entrance, is for information);
+    above, outlet control, which may stand higher than the inlet's figure. A total discharge whose split
+    falls in that jump sends the barrel the discharge at the jump, with its headwater anywhere within the
+    jump, and the rest over the road: the headwater is the road's for that rest."""
+    q_at = _road_flow(road, hw[idx], down, u)[0]
+    off = np.flatnonzero(np.abs(q_at - q_road) > 1e-9 * np.maximum(q_road, 1e-12) + 1e-12)
+    if not off.size:
+        return
+    for r in off.tolist():
+        target = float(q_road[r])
+        lo, hi = road.low_point, float(hw[idx[r]])
+        while _road_flow(road, np.array([hi]), down[r:r + 1], u)[0][0] < target:
+            hi = road.low_point + 2.0 * (hi - road.low_point)
+        hw[idx[r]] = bracketed_root(lambda h, _r=r, _t=target: _road_flow(road, h, down[_r:_r + 1], u)[0] - _t,
+                                    np.array([lo]), np.array([hi]), rtol=1e-14, what="headwater over the road")[0]
+    warnings.warn(f"the barrels' rating jumps where they turn from steep to mild (the inlet governs below, outlet "
+                  f"control above, higher): at {off.size} discharge(s) the split falls in that jump, so the barrels "
+                  "carry the discharge at the jump and the headwater is the one that passes the rest over the road",
+                  GVFlowWarning, stacklevel=4)
 
 
 def _shaped(v, scalar):
