@@ -31,7 +31,7 @@ import math
 
 import numpy as np
 
-from ._jit import kernel
+from ._jit import kernel, scalar_kernel
 from .codes import DARCY
 from .flow import branch_limits, critical_depth, proportional, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
@@ -113,7 +113,7 @@ def _alike(cb, dn, q, s, p):
     return abs(f_up - f_dn) <= 2e-15 * f_up
 
 
-@kernel
+@scalar_kernel
 def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, cc, ce, avg, ymax, tol, guess,
                     contraction_first):
     """Depth at station 2 (channel ``ch2``, signed distance d from station 1 whose state e1, sf1, hv1 in its
@@ -139,7 +139,7 @@ def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha
     return y2, 0, contraction_first, e2, sf2, hv2
 
 
-@kernel
+@scalar_kernel
 def _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, y2, alpha, avg):
     """Momentum residual of a spatially varied step: M(y2) - M1 - d (A1 + A2)/2 (S0 - mean Sf)."""
     a2 = geometry(ch.kind, ch.par, y2)[0]
@@ -147,7 +147,7 @@ def _force_residual(ch, fl, q2, s0, d, m1, a1, sf1, y2, alpha, avg):
     return specific_force(ch, fl, q2, y2, alpha) - m1 - d * 0.5 * (a1 + a2) * (s0 - sav)
 
 
-@kernel
+@scalar_kernel
 def momentum_step(ch, fl, q1, q2, s0, y1, d, yc2, branch, alpha, avg, tol):
     """Depth at station 2 (discharge q2, signed distance d) from depth y1 at station 1 (discharge q1) in one
     channel ``ch`` with lateral inflow between them (module notes): (depth, code) as
@@ -256,7 +256,7 @@ NEAR_CRITICAL = 0.1
 ROUGH_CRITICAL = 1e-3
 
 
-@kernel
+@scalar_kernel
 def _carry_critical(ch2, fl, q2, alpha, yc):
     """The critical depth carried to the next section from ``yc`` (the one at the section before) by one
     scaling step, yc Fc²(yc)^(1/3) (exact for a rectangle): close enough to bound the branch away from it."""
