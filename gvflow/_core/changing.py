@@ -35,7 +35,7 @@ from ._jit import kernel, scalar_kernel
 from .codes import DARCY
 from .flow import branch_limits, critical_depth, proportional, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
-from .march import evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
+from .march import _ratio, evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
 from .records import Channel
 from .resistance import friction_slope, froude_squared, hydraulics, sf_average
 
@@ -461,17 +461,18 @@ def slope_at(cb, dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
     if qstar != 0.0:
         # spatially varied flow in one section (momentum form, module notes): the inflow brings no
         # momentum along the channel, dy/dx = (S0 - Sf - 2 alpha Q q*/(g A²)) / (1 - Fr²)
-        return (s0 - sf - 2.0 * al * q * qstar / (fl.g * a * a)) / (1.0 - fr2), fr2
+        return _ratio(s0 - sf - 2.0 * al * q * qstar / (fl.g * a * a), 1.0 - fr2), fr2
     h = 1e-6
     tp = min(t + h, 1.0)
     tm = max(t - h, 0.0)
     b = (velocity_head(channel_at(cb, dn, s, tp), fl, q, y, alpha)
          - velocity_head(channel_at(cb, dn, s, tm), fl, q, y, alpha)) / (tp - tm) * dtdx
     num = s0 - sf - b
-    dydx = (num - cc * b) / (1.0 - fr2 * (1.0 + cc))
+    # (at critical depth itself the slope is infinite, as IEEE division gives it in both engines)
+    dydx = _ratio(num - cc * b, 1.0 - fr2 * (1.0 + cc))
     if -fr2 * dydx + b > 0.0 or cc == ce:
         return dydx, fr2
-    dydx = (num + ce * b) / (1.0 - fr2 * (1.0 - ce))
+    dydx = _ratio(num + ce * b, 1.0 - fr2 * (1.0 - ce))
     if -fr2 * dydx + b <= 0.0:
         return dydx, fr2
     return (b / fr2 if fr2 > 0.0 else 0.0), fr2
