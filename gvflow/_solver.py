@@ -616,11 +616,13 @@ def _uniform_flow_branch(seg, sf_c, code, tol):
         return seg, sf_c, code
     yn = seg.yn
     near_sub, far_sub = seg.branch_limits(yn, SUB)
-    near_sup, _ = seg.branch_limits(yn, SUPER)
     critical = np.abs(yn - near_sub) <= tol * near_sub
     sub = ~critical & (yn > near_sub) & (yn <= far_sub)
     yc = seg.yc.copy()
-    yc[rows] = np.where(sub | critical, near_sub, near_sup)[rows]
+    yc[rows] = near_sub[rows]
+    steep = rows[~(sub | critical)[rows]]
+    if steep.size:  # a supercritical normal depth: the critical depth above it, passed leaving a pool
+        yc[steep] = seg.take(steep).branch_limits(yn[steep], SUPER)[0]
     seg = replace(seg, yc=yc)
     sf_c = np.asarray(sf_c, dtype=float).copy()
     sf_c[rows] = seg.friction_slope(yc)[rows]

@@ -243,13 +243,11 @@ def _numeric_band(section, q, y):
     return slope(y), int(np.count_nonzero(np.diff(signs)))
 
 
-@pytest.mark.slow
 @settings(max_examples=40, deadline=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow])
 @given(main=st.floats(4.0, 12.0), bank=st.floats(0.8, 3.0), plain=st.floats(40.0, 200.0),
        n_main=st.floats(0.02, 0.04), n_plain=st.floats(0.04, 0.1), q_factor=st.floats(0.5, 1.6),
        slope=st.floats(2e-4, 0.03), tail_factor=st.floats(1.02, 1.8))
-def test_generated_compound_reaches_keep_regime_and_branch(main, bank, plain, n_main, n_plain, q_factor, slope,
-                                                           tail_factor):
+def _check_generated(main, bank, plain, n_main, n_plain, q_factor, slope, tail_factor):
     # A rectangular main channel between two floodplains; discharge scaled to bankfull flow at critical
     # depth so that many cases have two critical depths; tailwater above the upper one (subcritical), so
     # that profiles on steep beds meet jumps and on mild beds drawdowns and backwater through the band.
@@ -279,9 +277,10 @@ RESULTS = []
 
 
 @pytest.mark.slow
-def test_most_generated_compound_reaches_solve():
-    if not RESULTS:
-        pytest.skip("runs after the generated reaches")
+def test_generated_compound_reaches_keep_regime_and_branch():
+    # every generated reach that solves keeps each stretch on one branch in its regime, and most solve
+    RESULTS.clear()
+    _check_generated()
     solved, several = (np.array(v) for v in zip(*RESULTS, strict=True))
     assert len(RESULTS) >= 30 and solved.mean() >= 0.9, (len(RESULTS), solved.mean())
-    assert (several > 1).mean() >= 0.15  # the generated sections do reach the band (8 of the 40)
+    assert (several > 1).mean() >= 0.3  # the generated sections do reach the band (22 of the 40)

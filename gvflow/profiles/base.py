@@ -264,10 +264,9 @@ class SegmentBatch:
         branch)."""
         y = np.asarray(y, dtype=float)
         out = y >= self.yc * (1 - 1e-12)
-        if self.n_critical is None or (self.change is None and self.n_critical.max() < 2):
-            return out
-        rows = np.flatnonzero(self.several_critical())
-        if rows.size:
+        several = self.several_critical()
+        if several.any():
+            rows = np.flatnonzero(several)
             near, far = self.branch_limits(y, SUB)
             yr = np.broadcast_to(y, (self.n,))[rows]
             out[rows] = (yr >= near[rows] * (1 - 1e-12)) & (yr <= far[rows])
