@@ -51,7 +51,12 @@ def mode() -> str:
 
 
 def _cache_is_warm() -> bool:
-    """Whether numba's on-disk cache already holds kernels of the core (a cheap look for index files)."""
+    """Whether numba's on-disk cache already holds kernels of the core written from the sources as they are
+    (kernels from an older source are deleted when the compiled core loads, :mod:`gvflow._core._jit`)."""
+    from ._core._jit import cache_is_current
+
+    if not cache_is_current():
+        return False
     here = Path(__file__).with_name("_core")
     override = os.environ.get("NUMBA_CACHE_DIR")
     if override:  # numba mirrors the source folder's path under the cache folder
@@ -84,7 +89,9 @@ def compiled_wanted(work: int) -> bool:
     if m == "interpreted":
         return False
     total = _state["spent"] + work
-    if total >= (HOT_WARM_CACHE if _cache_is_warm() else HOT_COLD_CACHE):
+    if "warm" not in _state:  # looked at once: until this process compiles, nothing else writes the cache
+        _state["warm"] = _cache_is_warm()
+    if total >= (HOT_WARM_CACHE if _state["warm"] else HOT_COLD_CACHE):
         _state["compiled"] = True
         return True
     _state["spent"] = total

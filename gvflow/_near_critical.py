@@ -43,7 +43,7 @@ def near_critical_notes(notes, segs, bounds, x, depth) -> None:
         q = np.ascontiguousarray(seg.discharge, dtype=float)
         y_lo = np.empty_like(q)
         y_hi = np.empty_like(q)
-        core("march", 200 * q.size).froude_band_depths(seg.cb, seg.fl, q, lo_fr, hi_fr, y_lo, y_hi)
+        core("march", 200 * q.size * seg.cost).froude_band_depths(seg.cb, seg.fl, q, lo_fr, hi_fr, y_lo, y_hi)
         y = depth[:, i0:i0 + m]
         inside = (y >= y_lo[:, None]) & (y <= y_hi[:, None])
         if not inside.any():

@@ -233,7 +233,7 @@ def _keep_to_branch(sub, rows, t, y, crit, n_valid, branch, carried):
     ``carried``), past a maximum of specific energy, which bounds the branch as critical depth does, the
     depth is that limit, flagged critical, as in a prismatic segment."""
     out_j, out_far = np.empty(rows.size, np.int64), np.empty(rows.size)
-    core("changing", 200 * y.shape[1] * rows.size).left_branch(
+    core("changing", 200 * y.shape[1] * rows.size * sub.cost).left_branch(
         sub.cb, sub.change.along, sub.fl, np.ascontiguousarray(sub.discharge), t, sub.alpha,
         np.ascontiguousarray(y[rows]), np.ascontiguousarray(np.minimum(n_valid[rows], y.shape[1])), int(branch),
         carried, out_j, out_far)
@@ -363,7 +363,7 @@ def _crown_crossing(marcher, seg, rows, x1, y1, x2):
     the crown on its way upstream to station ``x2`` < ``x1``: x1 less the x(y) integral from y1 to the
     crown, kept within [x2, x1] (x2 where the integral finds no crossing: the discrete step overshot)."""
     out = np.empty(rows.size)
-    core("march", 50 * rows.size).crown_distances(
+    core("march", 50 * rows.size * seg.cost).crown_distances(
         seg.cb, seg.fl, np.ascontiguousarray(rows, np.int64), np.ascontiguousarray(seg.discharge[rows]),
         seg.slope, np.ascontiguousarray(y1, float), float(seg.section.max_depth), seg.alpha,
         float(getattr(marcher, "eddy_loss", 0.0)), _CROWN_PANELS, out)

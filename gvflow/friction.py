@@ -23,6 +23,7 @@ from typing import Annotated, ClassVar, Literal
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, ValidationError
 
+from ._core.codes import pass_cost
 from ._core.records import Channel, channel, fluid
 from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array
@@ -255,8 +256,9 @@ def _kfactor(section, depth, roughness, units, discharge):
     y, q = np.broadcast_arrays(np.asarray(depth, dtype=float), 1.0 if discharge is None else discharge)
     flat_y = np.ascontiguousarray(y.reshape(-1))
     out = np.empty(flat_y.size)
-    core("arrays", flat_y.size).conveyance_many(core_channel(section, roughness), fluid(units),
-                                                np.ascontiguousarray(q.reshape(-1), dtype=float), flat_y, out)
+    ch = core_channel(section, roughness)
+    core("arrays", flat_y.size * pass_cost(ch.kind, ch.par)).conveyance_many(
+        ch, fluid(units), np.ascontiguousarray(q.reshape(-1), dtype=float), flat_y, out)
     if not np.all(np.isfinite(out)):
         raise ConvergenceError("Colebrook-White iteration did not converge", iterations=50)
     return out.reshape(y.shape)

@@ -140,7 +140,7 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         roughs = np.zeros((len(segs), max(sg.cb.rough.shape[1] for sg in segs)))
         for k, sg in enumerate(segs):
             roughs[k, :sg.cb.rough.shape[1]] = sg.cb.rough[i]
-    core("march", depth.size).station_quantities(
+    core("march", depth.size * max(sg.cost for sg in segs)).station_quantities(
         np.array([sg.cb.kind for sg in segs], np.int64), par, offsets,
         np.array([sg.cb.law for sg in segs], np.int64), roughs, np.ascontiguousarray(seg_ix, np.int64),
         segs[0].fl, np.array([sg.discharge[i] for sg in segs]), np.ascontiguousarray(depth, float), segs[0].alpha,
@@ -151,7 +151,7 @@ def _station_quantities(sol: BatchSolution, i: int, seg_ix, depth, x):
         cols = np.flatnonzero(seg_ix == k)
         if len(cols):
             c, part = sg.change, np.empty((7, len(cols)))
-            core("changing", len(cols)).quantities_at(sg.cb, c.along, sg.fl, i, float(sg.discharge[i]),
+            core("changing", len(cols) * sg.cost).quantities_at(sg.cb, c.along, sg.fl, i, float(sg.discharge[i]),
                                                       np.ascontiguousarray(depth[cols], float), sg.fractions(x[cols]),
                                                       sg.alpha, part)
             out[:, cols] = part

@@ -23,7 +23,7 @@ from typing import Annotated, ClassVar, Literal
 import numpy as np
 from pydantic import BaseModel, ConfigDict, Field, PrivateAttr, ValidationError, field_validator
 
-from ._core.codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed
+from ._core.codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed, pass_cost
 from ._core.records import Fluid, fluid
 from ._engine import core
 from ._validate import invalid_input_from, positive_array, scalar_or_array
@@ -77,7 +77,7 @@ class Section(BaseModel):
         kind, par = self.core_params()
         flat = np.ascontiguousarray(y.reshape(-1))
         out = np.empty((6, flat.size))
-        core("arrays", flat.size).geometry_many(kind, par, flat, out)
+        core("arrays", flat.size * pass_cost(kind, par)).geometry_many(kind, par, flat, out)
         return tuple(row.reshape(y.shape) for row in out)
 
     @property

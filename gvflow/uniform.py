@@ -13,7 +13,7 @@ from typing import Literal
 
 import numpy as np
 
-from ._core.codes import NO_ROOT, NOT_CONVERGED
+from ._core.codes import NO_ROOT, NOT_CONVERGED, pass_cost
 from ._core.records import fluid
 from ._engine import core
 from ._roots import bracketed_root, expand_upper
@@ -77,7 +77,8 @@ def _peak_conveyance_depth(section, rough, units, q):
     """Depth and conveyance of a closed conduit's largest conveyance, for each discharge."""
     shape, (qf,) = _flat(np.asarray(q, dtype=float))
     depth, k = np.empty(qf.size), np.empty(qf.size)
-    core("arrays", 100 * qf.size).peak_conveyance_many(core_channel(section, rough), fluid(units), qf, depth, k)
+    ch = core_channel(section, rough)
+    core("arrays", 100 * qf.size * pass_cost(ch.kind, ch.par)).peak_conveyance_many(ch, fluid(units), qf, depth, k)
     return depth.reshape(shape), k.reshape(shape)
 
 
@@ -141,7 +142,7 @@ def normal_depth(section, discharge, slope, roughness=None, units: UnitsLike = "
     shape, (qf, sf) = _flat(q, s)
     ch = core_channel(section, rough)
     out, status = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64)
-    core("arrays", 100 * qf.size).normal_depth_many(ch, fluid(u), qf, sf, out, status)
+    core("arrays", 100 * qf.size * pass_cost(ch.kind, ch.par)).normal_depth_many(ch, fluid(u), qf, sf, out, status)
     none = status == NO_ROOT
     if np.any(none):
         i = int(np.flatnonzero(none)[0])
@@ -187,7 +188,8 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
     shape, (qf,) = _flat(q)
     out, status, count = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64), np.zeros(qf.size, dtype=np.int64)
     ch = core_channel(section)  # critical flow does not depend on the roughness
-    core("arrays", 100 * qf.size).critical_depth_many(ch, fluid(u), qf, a_, out, status, count)
+    core("arrays", 100 * qf.size * pass_cost(ch.kind, ch.par)).critical_depth_many(
+        ch, fluid(u), qf, a_, out, status, count)
     none = status == NO_ROOT
     if np.any(none):
         i = int(np.flatnonzero(none)[0])
@@ -243,7 +245,8 @@ def critical_depths(section, discharge, units: UnitsLike = "SI", alpha: float = 
     q = float(positive_array(discharge, "discharge"))
     a_ = float(positive_array(alpha, "alpha"))
     out = np.empty(64)
-    n, status = core("arrays", 1000).all_critical_depths(core_channel(section), fluid(u), q, a_, out)
+    ch = core_channel(section)
+    n, status = core("arrays", 1000 * pass_cost(ch.kind, ch.par)).all_critical_depths(ch, fluid(u), q, a_, out)
     if status == NO_ROOT or n == 0:
         raise NoSolutionError(f"no critical depth found for discharge {q:g} in {section!r}")
     _check_status(np.array([status]), out, "critical depth", f"{section!r}")
@@ -294,7 +297,8 @@ def _station_values(section, discharge, depth, units, alpha, loop):
     q, y = _qy(section, discharge, depth)
     shape, (qf, yf) = _flat(q, y)
     out = np.empty(qf.size)
-    getattr(core("arrays", qf.size), loop)(core_channel(section), fluid(u), qf, yf, alpha, out)
+    ch = core_channel(section)
+    getattr(core("arrays", qf.size * pass_cost(ch.kind, ch.par)), loop)(ch, fluid(u), qf, yf, alpha, out)
     return scalar_or_array(out.reshape(shape))
 
 

@@ -65,6 +65,40 @@ def test_the_engine_mode_is_checked():
         _engine.use("fast")
 
 
+def _declared_work(reach, monkeypatch) -> float:
+    declared = []
+    monkeypatch.setattr(_engine, "compiled_wanted", lambda work: declared.append(work) or False)
+    reach.solve(n_steps=10)
+    monkeypatch.undo()
+    return sum(declared)
+
+
+def test_a_surveyed_section_declares_its_cost(monkeypatch):
+    """The engine compiles once the interpreted work would cost more than compiling; a surveyed section's
+    hydraulics cost about 10 passes of a trapezoid's with 8 ground points in 3 zones (measured by
+    benchmarks/interpreted_cost.py), so a reach of them declares that much more work than one of
+    trapezoids with the same stations, or it would run interpreted for a minute before compiling."""
+    pts = gv.Surveyed(offset=[0, 10, 40, 41, 49, 50, 80, 90], elevation=[4, 3, 2, 0, 0, 2, 2.2, 4],
+                      roughness=[0.06, 0.035, 0.06], zone_edges=[40, 50])
+    trap = gv.Trapezoidal(bottom_width=8.0, side_slope=2.0)
+    reaches = [gv.Reach(segments=[gv.Segment(length=200.0, slope=0.001, section=sec, roughness=rough)],
+                        discharge=40.0, downstream=gv.FixedDepth(3.0)) for sec, rough in ((pts, None), (trap, 0.035))]
+    surveyed, prismatic = (_declared_work(r, monkeypatch) for r in reaches)
+    assert surveyed >= 6 * prismatic > 0
+
+
+def test_a_cache_from_older_sources_is_not_warm(monkeypatch, tmp_path):
+    from gvflow._core import _jit
+
+    stamp = tmp_path / "stamp"
+    monkeypatch.setattr(_jit, "_STAMP", stamp)
+    assert not _jit.cache_is_current()  # no stamp
+    stamp.write_text("0" * 64)
+    assert not _jit.cache_is_current()
+    stamp.write_text(_jit._sources_digest())
+    assert _jit.cache_is_current()
+
+
 @pytest.mark.slow  # a fresh interpreter
 def test_a_fresh_process_answers_without_numba():
     code = ("import sys, gvflow as gv; gv.normal_depth(gv.Rectangular(width=2.0), 3.0, 0.001, 0.015); "

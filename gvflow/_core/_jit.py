@@ -15,6 +15,21 @@ _HERE = Path(__file__).parent
 _checked = False
 
 
+def _sources_digest() -> str:
+    return hashlib.sha256(b"".join(p.read_bytes() for p in sorted(_HERE.glob("*.py")))).hexdigest()
+
+
+_STAMP = _HERE / "__pycache__" / "gvflow-core-sources.sha256"
+
+
+def cache_is_current() -> bool:
+    """Whether the cached kernels (if any) were written from the core sources as they are now."""
+    try:
+        return _STAMP.read_text() == _sources_digest()
+    except OSError:
+        return False
+
+
 def _drop_stale_cache() -> None:
     """Delete numba's cached kernels of the core when any core source changed since they were written.
 
@@ -26,9 +41,9 @@ def _drop_stale_cache() -> None:
     if _checked:
         return
     _checked = True
-    digest = hashlib.sha256(b"".join(p.read_bytes() for p in sorted(_HERE.glob("*.py")))).hexdigest()
-    cache = _HERE / "__pycache__"
-    stamp = cache / "gvflow-core-sources.sha256"
+    digest = _sources_digest()
+    cache = _STAMP.parent
+    stamp = _STAMP
     try:
         if stamp.read_text() == digest:
             return

@@ -47,6 +47,18 @@ NO_ROOT = 1
 NOT_CONVERGED = 2
 
 
+def pass_cost(kind: int, par) -> float:
+    """Cost of one pass of a section's hydraulics in the interpreted core, in passes of a trapezoid's: the unit
+    of the work a call declares to :func:`gvflow._engine.core`, which decides when compiling pays.
+
+    A geometric shape costs 1; a surveyed section reads its ground once per pass and sums its zones, about
+    2 per zone and a half per ground point (measured: 8 points in 3 zones about 10, 100 points about 50).
+    """
+    if kind != SURVEYED:
+        return 1.0
+    return 2.0 * float(par[1]) + 0.5 * float(par[0])
+
+
 def pack_surveyed(offset, elevation, zone_edges=(), active_from=None) -> np.ndarray:
     """Parameter array of a surveyed section (layout in :mod:`gvflow._core.geometry`); inputs already validated.
 

@@ -21,7 +21,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from .._core.codes import NOT_CONVERGED, SUB, SUPER, SURVEYED
+from .._core.codes import NOT_CONVERGED, SUB, SUPER, SURVEYED, pass_cost
 from .._core.records import Along, ChannelBatch, Fluid, channel_batch, fluid
 from .._engine import core
 from .._roots import bracketed_root
@@ -155,9 +155,9 @@ class SegmentBatch:
         else:
             if known:
                 yc[:], status[:], count[:] = memo[key]
-            core("march", 100 * q.size).segment_constants(cb, fl, q, float(slope), float(alpha),
-                                                          float(critical_tolerance), yc, yn, sf_c, code, status,
-                                                          status_n, count, known)
+            core("march", 100 * q.size * pass_cost(cb.kind, cb.par)).segment_constants(
+                cb, fl, q, float(slope), float(alpha), float(critical_tolerance), yc, yn, sf_c, code, status,
+                status_n, count, known)
             if key is not None:
                 memo[key] = (yc.copy(), status.copy(), count.copy())
                 memo[whole] = tuple(a.copy() for a in (yc, yn, sf_c, code, status, status_n, count))
@@ -225,6 +225,12 @@ class SegmentBatch:
         """Number of scenarios."""
         return self.discharge.shape[0]
 
+    @property
+    def cost(self) -> float:
+        """Cost of one pass of the section's hydraulics, the unit of a core call's declared work
+        (:func:`~gvflow._core.codes.pass_cost`; both ends of a changing segment share one layout)."""
+        return pass_cost(self.cb.kind, self.cb.par)
+
     def take(self, idx) -> SegmentBatch:
         """The sub-batch of scenarios ``idx`` (an index array or slice)."""
         cb = self.cb
@@ -252,7 +258,7 @@ class SegmentBatch:
         if rows.size:
             nr, fr = np.empty(rows.size), np.empty(rows.size)
             y = np.broadcast_to(np.asarray(y, dtype=float), (self.n,))
-            core("march", 200 * rows.size).branch_limits_batch(
+            core("march", 200 * rows.size * self.cost).branch_limits_batch(
                 self.cb, self.fl, np.ascontiguousarray(self.discharge), self.alpha,
                 np.ascontiguousarray(y[rows]), branch, rows.astype(np.int64), nr, fr)
             near[rows], far[rows] = nr, fr
@@ -319,8 +325,9 @@ class SegmentBatch:
         has several (:func:`gvflow._core.changing.critical_along`)."""
         t = np.ascontiguousarray(t, dtype=float)
         out = np.empty((self.n, t.size))
-        core("changing", 100 * out.size).critical_along(self.cb, self.change.along, self.fl, self.discharge, t,
-                                                        self.alpha, np.ascontiguousarray(hint, dtype=float), out)
+        core("changing", 100 * out.size * self.cost).critical_along(
+            self.cb, self.change.along, self.fl, self.discharge, t, self.alpha,
+            np.ascontiguousarray(hint, dtype=float), out)
         return out
 
     def critical_depths_at(self, t) -> np.ndarray:
@@ -330,15 +337,15 @@ class SegmentBatch:
             return np.repeat(self.yc[:, None], t.size, axis=1)
         out = np.empty((self.n, t.size))
         c = self.change
-        core("changing", 100 * out.size).critical_depths_at(self.cb, c.along, self.fl, self.discharge,
-                                                            t, self.alpha, out)
+        core("changing", 100 * out.size * self.cost).critical_depths_at(
+            self.cb, c.along, self.fl, self.discharge, t, self.alpha, out)
         return out
 
     def _at(self, depth, t, energy):
         c = self.change
         y2 = np.ascontiguousarray(np.asarray(depth, dtype=float).reshape(self.n, -1))
         out = np.empty(y2.shape)
-        core("changing", y2.size).force_or_energy_at(self.cb, c.along, self.fl, self.discharge, y2,
+        core("changing", y2.size * self.cost).force_or_energy_at(self.cb, c.along, self.fl, self.discharge, y2,
                                                      np.ascontiguousarray(t, dtype=float), self.alpha, energy, out)
         return out
 
@@ -351,7 +358,7 @@ class SegmentBatch:
             rows = np.ascontiguousarray(d.reshape(self.n, -1))
             m = rows.shape[1]
             out = np.empty((5, rows.size))
-            core("changing", rows.size).properties_at(
+            core("changing", rows.size * self.cost).properties_at(
                 self.cb, c.along, self.fl, np.repeat(np.arange(self.n), m), np.repeat(self.discharge, m),
                 rows.ravel(), np.tile(np.ascontiguousarray(t, dtype=float), self.n), out)
             return out.reshape((5,) + d.shape)
@@ -361,14 +368,14 @@ class SegmentBatch:
         q = np.repeat(self.discharge, m) if m > 1 else self.discharge
         which = np.repeat(np.arange(self.n), m)
         out = np.empty((5, rows.size))
-        core("march", rows.size).properties(self.cb, self.fl, which, q, rows.ravel(), out)
+        core("march", rows.size * self.cost).properties(self.cb, self.fl, which, q, rows.ravel(), out)
         return out.reshape((5,) + shape)
 
     def _force_or_energy(self, depth, energy: bool):
         d = np.asarray(depth, dtype=float)
         y2 = d.reshape(self.n, -1) if d.ndim else np.full((self.n, 1), float(d))
         out = np.empty(y2.shape)
-        core("march", y2.size).force_or_energy(self.cb, self.fl, self.discharge, np.ascontiguousarray(y2),
+        core("march", y2.size * self.cost).force_or_energy(self.cb, self.fl, self.discharge, np.ascontiguousarray(y2),
                                                self.alpha, energy, out)
         return out.reshape(d.shape) if d.ndim else out[:, 0]
 

@@ -59,7 +59,7 @@ class _Problem:
     """One scenario of a segment as right-hand-side callables for solve_ivp."""
 
     def __init__(self, seg: SegmentBatch, index: int):
-        self.core = core("march", 2000)
+        self.core = core("march", 2000 * seg.cost)
         self.args = (self.core.scenario(seg.cb, index), seg.fl, float(seg.discharge[index]), seg.slope, seg.alpha)
         self.yc = float(seg.yc[index])
         # the branch's other limit where the section has several critical depths (NaN: none)
@@ -339,7 +339,7 @@ class IVPMarcher(Marcher):
         x = np.asarray(x, dtype=float)
         n, m = seg.n, x.shape[0]
         c = seg.change
-        kern = core("changing", 2000)
+        kern = core("changing", 2000 * seg.cost)
         dtdx = 1.0 / c.length
         y0 = np.broadcast_to(np.asarray(y0, dtype=float), (n,))
         out_y = np.full((n, m), np.nan)

@@ -83,7 +83,7 @@ class StandardStep(Marcher):
         self.tol = positive_float(tol, "tol")
 
     def _work(self, seg: SegmentBatch, stations: int) -> int:
-        return 20 * seg.n * stations
+        return 20 * seg.n * stations * seg.cost
 
     def march(self, seg, x, y0, branch):
         return self._march(seg, x, y0, branch, _NO_FORCE, 0.0)
@@ -119,7 +119,7 @@ class StandardStep(Marcher):
         out_y, out_n = np.empty((n, m)), np.empty(n, np.int64)
         out_xc, out_code = np.empty(n), np.empty(n, np.int64)
         yc0 = seg.start_critical_depth(x[0], y0, branch)
-        core("changing", 40 * n * m).march(seg.cb, c.along, seg.fl, seg.discharge, seg.slope, x,
+        core("changing", 40 * n * m * seg.cost).march(seg.cb, c.along, seg.fl, seg.discharge, seg.slope, x,
                                            seg.fractions(x), _per_scenario(y0, n), yc0, int(branch), seg.alpha,
                                            c.contraction, c.expansion, AVERAGES[self.friction_average], self.tol,
                                            force, float(rtol), out_y, out_n, out_xc, out_code)
@@ -129,7 +129,7 @@ class StandardStep(Marcher):
         d = finite_float(x2, "x2") - finite_float(x1, "x1")
         if d == 0.0:
             return float(y1)
-        M = core("march", 20)
+        M = core("march", 20 * seg.cost)
         y, code = M.step(M.scenario(seg.cb, int(index)), seg.fl, float(seg.discharge[index]), seg.slope, float(y1),
                          d, float(seg.yc[index]), int(branch), seg.alpha, self.eddy_loss,
                          AVERAGES[self.friction_average], seg.section.max_depth, self.tol, float(y1))
@@ -140,7 +140,7 @@ class StandardStep(Marcher):
             np.asarray(index), np.asarray(y1, float), np.asarray(x1, float), np.asarray(x2, float)))
         shape = index.shape
         idx = np.ascontiguousarray(index.ravel(), dtype=np.int64)
-        out = core("march", 20 * idx.size).step_many(
+        out = core("march", 20 * idx.size * seg.cost).step_many(
             seg.cb, seg.fl, idx, np.ascontiguousarray(seg.discharge[idx]), seg.slope, y1.ravel(), x1.ravel(),
             x2.ravel(), np.ascontiguousarray(seg.yc[idx]), int(branch), seg.alpha, self.eddy_loss,
             AVERAGES[self.friction_average], seg.section.max_depth, self.tol)
@@ -150,7 +150,7 @@ class StandardStep(Marcher):
         n = seg.n
         out_x, out_y1, out_y2 = np.empty(n), np.empty(n), np.empty(n)
         args = [_per_scenario(v, n) for v in (y_sup, x_lo, y_sub, x_hi)]
-        core("march", 2000 * n).locate_jumps(
+        core("march", 2000 * n * seg.cost).locate_jumps(
             seg.cb, seg.fl, seg.discharge, seg.slope, args[0], args[1], args[2], args[3], seg.yc, seg.alpha,
             self.eddy_loss, AVERAGES[self.friction_average], seg.section.max_depth, self.tol, out_x, out_y1, out_y2)
         return out_x, out_y1, out_y2
