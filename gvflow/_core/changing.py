@@ -122,16 +122,16 @@ def transition_step(ch1, ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha
     :func:`~gvflow._core.march.step`. The coefficient of ``contraction_first`` is tried first (the previous
     interval's, usually right)."""
     c1, c2 = (cc, ce) if contraction_first else (ce, cc)
-    y2, code = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c1, avg, ymax, tol, guess)
+    y2, code, e2, sf2, hv2, _ = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c1, avg, ymax, tol,
+                                          guess)
     if code != 0:
         return y2, code, contraction_first, math.nan, math.nan, math.nan
-    e2, sf2, hv2, _ = station_state(ch2, fl, q, alpha, y2)
     if cc == ce or ((hv2 - hv1) * d > 0.0) == contraction_first:
         return y2, code, contraction_first, e2, sf2, hv2  # the velocity head changes the way assumed
-    y3, code3 = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c2, avg, ymax, tol, y2)
+    y3, code3, e3, sf3, hv3, _ = step_from(ch2, fl, q, s0, y1, e1, sf1, hv1, d, yc2, branch, alpha, c2, avg, ymax,
+                                           tol, y2)
     if code3 != 0:
         return y3, code3, not contraction_first, math.nan, math.nan, math.nan
-    e3, sf3, hv3, _ = station_state(ch2, fl, q, alpha, y3)
     if ((hv3 - hv1) * d > 0.0) != contraction_first or abs(hv3 - hv1) < abs(hv2 - hv1):
         # the other way, as assumed the second time; or neither assumption holds (the velocity head hardly
         # changes, and so neither does the loss) and this one changes it less
@@ -357,9 +357,10 @@ def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, unt
             yc = critical_depth(ch0, fl, q[s] + dn.added * t[0], alpha)[0]
         e, sf, hv, _ = station_state(ch0, fl, q[s] + dn.added * t[0], alpha, y)
         contraction = True
+        ch_b = ch0
         for j in range(1, m):
             d = x[j] - x[j - 1]
-            ch_a = Channel(cb.kind, pars[j - 1], cb.law, rough[j - 1])
+            ch_a = ch_b
             ch_b = Channel(cb.kind, pars[j], cb.law, rough[j])
             carried = math.nan
             if not abs(y - yc) <= NEAR_CRITICAL * yc:  # the carry is used: shared, or made and kept
@@ -370,9 +371,19 @@ def march(cb, dn, fl, q, s0, x, t, y0, yc0, branch, alpha, cc, ce, avg, tol, unt
                     carry_in[j] = yc
                     carry_out[j] = carried
             guess = extrapolate(x, out_y[s], j, even)
-            y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],
-                                                               t[j], ch_a, ch_b, d, branch, alpha, cc, ce, avg,
-                                                               tol, guess, 1, yc, carried, contraction)
+            code = 1
+            if carried == carried and dn.added == 0.0:
+                # the usual interval, away from critical depth: :func:`_interval`'s first step, taken here
+                y2, code, way, e2, sf2, hv2 = transition_step(
+                    ch_a, ch_b, fl, q[s], s0, y, e, sf, hv, d, carried, branch, alpha, cc, ce, avg,
+                    max_depth(ch_b.kind, ch_b.par), tol, guess, contraction)
+                yc2 = carried
+                if not (code == 0 and abs(y2 - carried) > NEAR_CRITICAL * carried):
+                    code = 1
+            if code != 0:
+                y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],
+                                                                   t[j], ch_a, ch_b, d, branch, alpha, cc, ce,
+                                                                   avg, tol, guess, 1, yc, carried, contraction)
             nsub = 4
             while code == 1 and nsub <= 64:
                 y2, code, done, yc2, way, e2, sf2, hv2 = _interval(cb, dn, fl, s, q[s], s0, y, e, sf, hv, t[j - 1],

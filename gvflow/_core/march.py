@@ -43,6 +43,13 @@ def scenario(cb, s):
 @scalar_kernel
 def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
     """Energy residual r(y2) of a standard step over signed distance d, and dr/dy2."""
+    r, dr, hv2, sf2, fr2, dlnk = _residual_state(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg)
+    return r, dr
+
+
+@scalar_kernel
+def _residual_state(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
+    """:func:`_residual` and what the pass gave at y2: (r, dr/dy2, velocity head, Sf, Fr², dK/dy / K)."""
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y2, alpha)
     hv2 = al * (q / a) * (q / a) / (2.0 * fl.g)
     sf2 = slope_of(q, kk)
@@ -54,7 +61,22 @@ def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
     sgn = 1.0 if d > 0 else -1.0
     r = y2 + hv2 - e1 - s0 * d + d * sav + sgn * he
     dr = 1.0 + dhv2 + d * dsav * dsf2 + sgn * dhe
-    return r, dr
+    return r, dr, hv2, sf2, fr2, dlnk
+
+
+@scalar_kernel
+def _state_after(ch, fl, q, alpha, y, hv, sf, fr2, dlnk, yn):
+    """:func:`station_state` at yn from the pass at y a Newton correction before it: first order in yn - y,
+    with dhv/dy = -Fr² and dSf/dy = -2 Sf dK/dy / K (module notes of :mod:`~gvflow._core.resistance`). The
+    march accepts a correction of at most 1e-9 y (:func:`step_from`), so the neglected second-order terms
+    are below 1e-17 of each value, under round-off; a Darcy-Weisbach conveyance's derivative holds the
+    friction factor fixed, so its state is taken afresh."""
+    if ch.law == DARCY:
+        return station_state(ch, fl, q, alpha, yn)
+    dy = yn - y
+    hvn = hv - fr2 * dy
+    sfn = sf - 2.0 * sf * dlnk * dy
+    return yn + hvn, sfn, hvn, sfn * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
 
 
 @scalar_kernel
@@ -79,19 +101,21 @@ def step(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     the crown of a closed conduit; 3 no convergence.
     """
     e1, sf1, hv1, rate1 = station_state(ch, fl, q, alpha, y1)
-    return step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess)
+    r = step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess)
+    return r[0], r[1]
 
 
 @scalar_kernel
 def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ymax, tol, guess):
     """:func:`step` from depth y1 whose specific energy e1, friction slope sf1 and velocity head hv1 are
-    known (:func:`station_state`)."""
+    known (:func:`station_state`): (depth, code, and where code is 0 the :func:`station_state` of the depth,
+    made from the last pass of the iteration by :func:`_state_after`, else NaN)."""
     # Fast path: Newton from the guess, accepted only if every iterate stays on
     # the branch (the residual is monotone there, so the root is the branch's).
     y = guess
     if (branch == 1 and yc < y < ymax) or (branch == -1 and 0.0 < y < yc):
         for _ in range(8):
-            r, dr = _residual(ch, fl, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg)
+            r, dr, hv, sf, fr2, dlnk = _residual_state(ch, fl, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg)
             if dr == 0.0 or (dr > 0.0) != (branch == 1):
                 break
             yn = y - r / dr
@@ -104,20 +128,21 @@ def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ym
             # Newton converges quadratically here: after a correction below 1e-3 sqrt(tol) y the next
             # one would be of order (dy / y)^2 y <= 1e-6 tol y, so yn already meets the tolerance
             if dy <= tol * y or dy <= 1e-3 * math.sqrt(tol) * y:
-                return yn, 0
+                e, sf, hv, rate = _state_after(ch, fl, q, alpha, y, hv, sf, fr2, dlnk, yn)
+                return yn, 0, e, sf, hv, rate
             y = yn
     # Safe path: bracket on the branch, then safeguarded Newton.
     rc, drc = _residual(ch, fl, q, s0, d, e1, sf1, hv1, yc, alpha, ce, avg)
     if branch == 1:
         if rc > 0.0:
-            return yc, 1
+            return yc, 1, math.nan, math.nan, math.nan, math.nan
         lo, hi = yc, max(y1, yc) * 1.25
         for _ in range(200):
             if hi >= ymax:
                 hi = ymax
                 rh, dh = _residual(ch, fl, q, s0, d, e1, sf1, hv1, hi, alpha, ce, avg)
                 if rh < 0.0:
-                    return ymax, 2
+                    return ymax, 2, math.nan, math.nan, math.nan, math.nan
                 break
             rh, dh = _residual(ch, fl, q, s0, d, e1, sf1, hv1, hi, alpha, ce, avg)
             if rh > 0.0:
@@ -126,7 +151,7 @@ def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ym
             hi *= 2.0
     else:
         if rc > 0.0:
-            return yc, 1
+            return yc, 1, math.nan, math.nan, math.nan, math.nan
         hi, lo = yc, min(y1, yc) * 0.8
         for _ in range(200):
             rl, dl = _residual(ch, fl, q, s0, d, e1, sf1, hv1, lo, alpha, ce, avg)
@@ -137,7 +162,7 @@ def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ym
     y = y1 if lo < y1 < hi else 0.5 * (lo + hi)
     y_prev = r_prev = math.nan
     for _ in range(100):
-        r, dr = _residual(ch, fl, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg)
+        r, dr, hv, sf, fr2, dlnk = _residual_state(ch, fl, q, s0, d, e1, sf1, hv1, y, alpha, ce, avg)
         if (r > 0.0) == (branch == 1):
             hi = y
         else:
@@ -152,9 +177,10 @@ def step_from(ch, fl, q, s0, y1, e1, sf1, hv1, d, yc, branch, alpha, ce, avg, ym
         if not (lo < yn < hi):
             yn = 0.5 * (lo + hi)
         if abs(yn - y) <= tol * y or hi - lo <= 1e-15 * hi:
-            return yn, 0
+            e, sf, hv, rate = _state_after(ch, fl, q, alpha, y, hv, sf, fr2, dlnk, yn)
+            return yn, 0, e, sf, hv, rate
         y = yn
-    return y, 3
+    return y, 3, math.nan, math.nan, math.nan, math.nan
 
 
 @scalar_kernel
@@ -429,15 +455,15 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
             h = min(max(0.25 / rate, total / MAX_SUBSTEPS), rest)
             if rate * h > 1.5:
                 how = AVG_END
-        y2, code = step_from(ch, fl, q, s0, y, e_y, sf_y, hv_y, sgn * h, yc, branch, alpha, ce, how,
-                             ymax, tol, guess if first and h >= rest else y)
+        y2, code, e2, sf2, hv2, rate2 = step_from(ch, fl, q, s0, y, e_y, sf_y, hv_y, sgn * h, yc, branch, alpha,
+                                                  ce, how, ymax, tol, guess if first and h >= rest else y)
         if code == 1 and how != AVG_END:
             # a trapezoidal step long against the relaxation length near normal depth can overshoot
             # past critical depth: the damped step, monotone, tells whether the profile stiffens there
-            y_be, code_be = step_from(ch, fl, q, s0, y, e_y, sf_y, hv_y, sgn * h, yc, branch, alpha, ce, AVG_END,
-                                      ymax, tol, y)
+            y_be, code_be, e_be, sf_be, hv_be, rate_be = step_from(ch, fl, q, s0, y, e_y, sf_y, hv_y, sgn * h, yc,
+                                                                   branch, alpha, ce, AVG_END, ymax, tol, y)
             if code_be == 0:
-                rate2 = relaxation_rate(ch, fl, q, alpha, y_be)
+                rate2 = rate_be
                 if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
                     hint = rate2
                     continue
@@ -445,6 +471,8 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
             # near critical depth a long step can miss a root the profile really has (the discrete
             # energy equation loses it before the profile does): retry with sub-steps first
             y2, code = substeps(ch, fl, q, s0, y, sgn * h, yc, branch, alpha, ce, how, ymax, tol)
+            if code == 0:
+                e2, sf2, hv2, rate2 = station_state(ch, fl, q, alpha, y2)
         if code != 0:
             if code == 1:
                 dc = critical_distance(ch, fl, q, s0, y, yc, alpha, avg)
@@ -453,13 +481,10 @@ def advance(ch, fl, q, s0, y1, d, yc, branch, alpha, ce, avg, ymax, tol, guess, 
         if how != AVG_END:
             # the profile may stiffen along the step (deep flow relaxing fast near normal depth): a step
             # long against the relaxation length at its far end is taken again, shorter
-            e2, sf2, hv2, rate2 = station_state(ch, fl, q, alpha, y2)
             if rate2 * h > 0.5 and rate2 > rate and h > total / MAX_SUBSTEPS:
                 hint = rate2
                 continue
-            e_y, sf_y, hv_y, rate_y = e2, sf2, hv2, rate2  # the next sub-step starts at y2
-        else:
-            rate_y = -1.0
+        e_y, sf_y, hv_y, rate_y = e2, sf2, hv2, rate2  # the next sub-step starts at y2
         hint = 0.0
         y = y2
         done += h
