@@ -211,13 +211,16 @@ class SegmentBatch:
     def same_section(self, other: SegmentBatch) -> bool:
         """Whether ``other`` has the same cross-section: kind and parameters, or the same section in another
         parameter layout (the end of one changing segment and the head of the next); roughness aside, except
-        that a surveyed section's zone roughness, which sets its alpha, must match too."""
+        that a surveyed section's zone roughness, which sets its alpha, must match too (to round-off)."""
         if self.cb.kind != other.cb.kind:
             return False
-        same = self.section is other.section or np.array_equal(self.cb.par, other.cb.par) or (
-            self.cb.par.size != other.cb.par.size and self.section == other.section)
-        if same and self.cb.kind == SURVEYED:
-            return np.array_equal(self.cb.rough, other.cb.rough)
+        # (one section matched to two different neighbours is packed in two layouts, of one size or two; its
+        # own packing is one, and leaves the roughness out)
+        same = self.section is other.section or np.array_equal(self.cb.par, other.cb.par) or \
+            np.array_equal(self.section.core_params()[1], other.section.core_params()[1])
+        if same and self.cb.kind == SURVEYED:  # (a sweep's factor reaches the two ends by two roundings)
+            a, b = self.cb.rough, other.cb.rough
+            return a.shape == b.shape and bool((np.abs(a - b) <= 1e-14 * np.abs(b)).all())
         return same
 
     @property
