@@ -909,6 +909,9 @@ def _solution(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, gov: 
     """The solution record, jumps sorted by scenario and x; its notes (the passes', then :func:`_control_notes`,
     then those on jumps on sloping floors) are written when first read."""
     jumps = {}
+    # (a "jump" inside a segment whose two depths agree to 1e-9 is the profile passing through critical depth,
+    # both sides at it: no jump; in unlike sections at a junction the sequent depths may stand either way)
+    gov.jumps[:] = [j for j in gov.jumps if j[6] or not j[3] <= j[2] * (1.0 + 1e-9)]
     if gov.jumps:
         arr = list(zip(*gov.jumps, strict=True))
         types = (int, float, float, float, int, int, bool)
