@@ -232,6 +232,32 @@ def test_a_reach_through_changing_compound_sections_keeps_each_profile_on_its_br
             assert np.unique(branch[a:b]).size == 1, (p.x[a:b], p.depth[a:b], branch[a:b])
 
 
+def test_ivp_through_changing_compound_sections_stops_where_the_loss_makes_the_equation_singular():
+    # With a contraction loss C on the change of velocity head the non-prismatic equation's denominator is
+    # 1 - Fr² (1 + C): the profile turns vertical a little short of critical depth, where the standard
+    # step's energy equation loses its root too. Marching toward the upper critical depth of the reach
+    # above, solve_ivp used to shrink its step to nothing there (a ConvergenceError); it stops at that
+    # point now, and the subcritical profile and the jump below it agree with the standard step's.
+    stations = np.array([0.0, 250.0, 500.0, 750.0, 1000.0])
+    widths = np.array([10.0, 10.3, 10.6, 10.3, 10.0])
+    sections = [gv.Surveyed(offset=[-100, -100, 0, 0, w, w, w + 100, w + 100],
+                            elevation=np.array([5, 2, 2, 0, 0, 2, 2, 5]) + 0.004 * (1000.0 - x),
+                            roughness=[0.05, 0.03, 0.05], zone_edges=[0, w])
+                for w, x in zip(widths, stations, strict=True)]
+    reach = gv.Reach.from_sections(stations=stations, sections=sections, discharge=Q,
+                                   downstream=gv.FixedDepth(2.6))
+    # (in the band the jump's place depends on the spacing: here by one station between 20 and 40 steps)
+    a, b = reach.solve(n_steps=20), reach.solve(method="ivp", n_steps=20)
+    assert abs(a.jumps[-1].x - b.jumps[-1].x) <= 12.5  # one spacing
+    below = a.x > a.jumps[-1].x + 12.5
+    np.testing.assert_allclose(b.depth[-below.sum():], a.depth[below], atol=1e-3)
+    assert (b.regime[-below.sum():] == "subcritical").all()
+    # a march whose stopping event fires at its first point leaves solve_ivp no interpolant: the stations
+    # past it are simply not solved (it raised numpy's "need at least one array to concatenate")
+    low = reach.model_copy(update={"downstream": gv.FixedDepth(2.0)}).solve(method="ivp", n_steps=20)
+    assert np.isfinite(low.depth).all()
+
+
 def _numeric_band(section, q, y):
     """(sign of dE/dy at y, number of sign changes of dE/dy below y), from gv.specific_energy by central
     differences on a grid (the solver's decisions against the physics relation, not its own bookkeeping)."""

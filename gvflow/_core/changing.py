@@ -457,13 +457,17 @@ def quantities_at(cb, dn, fl, s, q, y, t, alpha, out):
 
 @kernel
 def slope_at(cb, dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
-    """dy/dx of the gradually varied flow equation of a changing section, and Fr², at depth y and fraction t
+    """dy/dx of the gradually varied flow equation of a changing section at depth y and fraction t, and the
+    Fr² at which the equation is singular (Fr² (1 + C σ) below, 1 at critical depth without transition loss)
     (``dtdx`` = 1/length of the segment): with E = y + alpha V²/2g and the transition loss of the module
     notes, dE/dx = S0 - Sf - C |d(alpha V²/2g)/dx| (x downstream), where d(alpha V²/2g)/dx =
     -Fr² dy/dx + b and b, the change of the velocity head with x at a fixed depth (the dA/dx term, and a
     changing alpha), is taken by central differences in t. So dy/dx = (S0 - Sf - b (1 + C σ)) /
     (1 - Fr² (1 + C σ)), σ the sign of the velocity head's change: the contraction coefficient where it
-    grows, the expansion coefficient where it falls (zero change where neither is consistent)."""
+    grows, the expansion coefficient where it falls (zero change where neither is consistent). The loss
+    moves the singularity: with a contraction the profile turns vertical where Fr² (1 + C) = 1, a little
+    short of critical depth (the standard step's energy equation loses its root there too), so the
+    second value, which tells a march how near it is, is Fr² (1 + C σ)."""
     ch = channel_at(cb, dn, s, t)
     qstar = dn.added * dtdx  # lateral inflow per length
     q = q + dn.added * t
@@ -482,10 +486,10 @@ def slope_at(cb, dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
     # (at critical depth itself the slope is infinite, as IEEE division gives it in both engines)
     dydx = _ratio(num - cc * b, 1.0 - fr2 * (1.0 + cc))
     if -fr2 * dydx + b > 0.0 or cc == ce:
-        return dydx, fr2
+        return dydx, fr2 * (1.0 + cc)
     dydx = _ratio(num + ce * b, 1.0 - fr2 * (1.0 - ce))
     if -fr2 * dydx + b <= 0.0:
-        return dydx, fr2
+        return dydx, fr2 * (1.0 - ce)
     return (b / fr2 if fr2 > 0.0 else 0.0), fr2
 
 

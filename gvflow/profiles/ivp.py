@@ -386,7 +386,8 @@ class IVPMarcher(Marcher):
             reached = float(sol.t[-1])
             dirn = 1.0 if x[-1] > x[0] else -1.0
             inside = (x[j0 + 1:] - reached) * dirn <= 0
-            out_y[s, j0 + 1:][inside] = sol.sol(x[j0 + 1:][inside])[0]
+            if inside.any():  # (an event at the start leaves no interpolant)
+                out_y[s, j0 + 1:][inside] = sol.sol(x[j0 + 1:][inside])[0]
             if sol.status == 1:
                 out_code[s] = 1
                 out_xc[s] = reached
