@@ -99,31 +99,42 @@ def test_roughness_sweep(benchmark, reaches, kind):
         np.testing.assert_allclose(res[i].depth, alone.depth, rtol=0, atol=1e-12)
 
 
-def _best(fn, repeat: int) -> float:
+def _best(fn, repeat: int, clock=time.perf_counter) -> float:
     best = np.inf
     for _ in range(repeat):
-        t = time.perf_counter()
+        t = clock()
         fn()
-        best = min(best, time.perf_counter() - t)
+        best = min(best, clock() - t)
     return best
 
 
-def main(scenarios: int = SCENARIOS) -> None:
-    sv, pr = surveyed_reach(), prismatic_reach()
+def main(scenarios: int = SCENARIOS, rounds: int = 3) -> None:
+    """Best of ``rounds`` for each reach, the two reaches taking turns round by round, so that a machine
+    whose speed drifts slows both alike; the sweeps are timed by the wall clock and by this process's
+    processor time (which leaves out the time a shared machine gives to others)."""
+    reaches = {"surveyed": surveyed_reach(), "prismatic": prismatic_reach()}
     f = factors(scenarios)
-    out = {}
-    for name, reach in (("surveyed", sv), ("prismatic", pr)):
+    best = {name: [np.inf, np.inf, np.inf] for name in reaches}
+    for reach in reaches.values():
         reach.solve(n_steps=STEPS)
         reach.sweep(roughness_scale=f[:20], n_steps=STEPS)  # compiled kernels loaded
-        solve = _best(lambda r=reach: r.solve(n_steps=STEPS), 20)
-        sweep = _best(lambda r=reach: r.sweep(roughness_scale=f, n_steps=STEPS), 2)
+    for _ in range(rounds):
+        for name, reach in reaches.items():
+            t_cpu = time.process_time()
+            t_wall = time.perf_counter()
+            reach.sweep(roughness_scale=f, n_steps=STEPS)
+            sweep, cpu = time.perf_counter() - t_wall, time.process_time() - t_cpu
+            solve = _best(lambda r=reach: r.solve(n_steps=STEPS), 10)
+            b = best[name]
+            best[name] = [min(b[0], solve), min(b[1], sweep), min(b[2], cpu)]
+    for name, (solve, sweep, cpu) in best.items():
         rate = scenarios * SEGMENTS * (STEPS + 1) / sweep
-        out[name] = (solve, sweep, rate)
         print(f"{name:9s}  solve {solve * 1e3:7.2f} ms   sweep of {scenarios:,} {sweep:6.2f} s "
-              f"({rate / 1e6:.3f} million station-solutions/s)")
-    s, p = out["surveyed"], out["prismatic"]
+              f"(processor {cpu:6.2f} s; {rate / 1e6:.3f} million station-solutions/s)")
+    s, p = best["surveyed"], best["prismatic"]
     print(f"single solve: surveyed / prismatic time = {s[0] / p[0]:.2f} (target at most 5)")
-    print(f"roughness sweep: surveyed / prismatic throughput = {s[2] / p[2]:.2f} (target at least 0.33)")
+    print(f"roughness sweep: surveyed / prismatic throughput = {p[1] / s[1]:.2f} by the wall clock, "
+          f"{p[2] / s[2]:.2f} by processor time (target at least 0.33)")
 
 
 if __name__ == "__main__":
