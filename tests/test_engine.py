@@ -145,3 +145,31 @@ def test_kernels_without_reference_counting_handle_no_array_of_their_own():
             elif isinstance(f, ast.Name) and f.id in funcs and f.id not in allowed:
                 offences.append(f"{name} calls {f.id}, a {funcs[f.id][0]}")
     assert not offences, offences
+
+
+@pytest.mark.parametrize("section", [gv.Trapezoidal(bottom_width=4.0, side_slope=1.5),
+                                     gv.Surveyed(offset=[0, 10, 40, 41, 49, 50, 80, 90],
+                                                 elevation=[4, 3, 2, 0, 0, 2, 2.2, 4],
+                                                 roughness=[0.06, 0.035, 0.06], zone_edges=[40, 50])])
+def test_a_step_hands_on_the_state_of_its_depth(section):
+    # The standard step takes the state at its depth from its last Newton pass, first order in the final
+    # correction: energy, friction slope and velocity head the same, to round-off, as a pass of the
+    # section's hydraulics at that depth (station_state); the relaxation rate, which only sizes sub-steps,
+    # is the one at the last pass, 1e-9 of the depth away.
+    from gvflow._core.records import fluid
+    from gvflow.friction import core_channel
+    from gvflow.units import resolve_units
+
+    m = _engine.core("march", 0)
+    rough = None if isinstance(section, gv.Surveyed) else gv.Manning(n=0.02)
+    ch, fl = core_channel(section, rough), fluid(resolve_units("SI"))
+    q, y1 = 12.0, 2.6
+    yc = gv.critical_depth(section, q)
+    e1, sf1, hv1, _ = m.station_state(ch, fl, q, 1.0, y1)
+    for d, guess in ((-20.0, 2.59), (-20.0, 2.0), (-300.0, 2.6), (-20.0, 0.5 * yc)):  # (the last: bracketed)
+        y, code, *state = m.step_from(ch, fl, q, 1e-3, y1, e1, sf1, hv1, d, yc, 1, 1.0, 0.0, 3, np.inf, 1e-12,
+                                      guess)
+        assert code == 0
+        fresh = m.station_state(ch, fl, q, 1.0, y)
+        np.testing.assert_allclose(state[:3], fresh[:3], rtol=1e-13)
+        assert state[3] == pytest.approx(fresh[3], rel=1e-8)

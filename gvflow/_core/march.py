@@ -68,9 +68,10 @@ def _residual_state(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
 def _state_after(ch, fl, q, alpha, y, hv, sf, fr2, dlnk, yn):
     """:func:`station_state` at yn from the pass at y a Newton correction before it: first order in yn - y,
     with dhv/dy = -Fr² and dSf/dy = -2 Sf dK/dy / K (module notes of :mod:`~gvflow._core.resistance`). The
-    march accepts a correction of at most 1e-9 y (:func:`step_from`), so the neglected second-order terms
-    are below 1e-17 of each value, under round-off; a Darcy-Weisbach conveyance's derivative holds the
-    friction factor fixed, so its state is taken afresh."""
+    march accepts a correction of at most 1e-3 sqrt(tol) y (:func:`step_from`; 1e-9 y with the default tol
+    of 1e-12), so the neglected second-order terms are below 1e-6 tol of each value (1e-17, under
+    round-off). The relaxation rate, which only sizes sub-steps, is the one at y. A Darcy-Weisbach
+    conveyance's derivative holds the friction factor fixed, so its state is taken afresh."""
     if ch.law == DARCY:
         return station_state(ch, fl, q, alpha, yn)
     dy = yn - y
