@@ -25,7 +25,7 @@ CORE = "gvflow._core"
 PLAIN = "gvflow._core_plain"
 MODES = ("auto", "compiled", "interpreted")
 
-#: Work (about one scalar evaluation of a section's hydraulics per unit) after which the process
+#: Work (in passes of a trapezoid's hydraulics, :func:`gvflow._core.codes.pass_cost`) after which the process
 #: switches to the compiled core when the compiled-kernel cache is empty (compiling takes seconds)
 #: and when it already holds kernels (loading them takes a fraction of a second).
 HOT_COLD_CACHE = 3_000_000
@@ -81,7 +81,7 @@ def _plain_package():
     return mod
 
 
-def compiled_wanted(work: int) -> bool:
+def compiled_wanted(work: float) -> bool:
     """Whether a call of about ``work`` units should run compiled (and account for it if not)."""
     m = _state["mode"]
     if m == "compiled" or _state["compiled"]:
@@ -101,7 +101,7 @@ def compiled_wanted(work: int) -> bool:
 _modules: dict[tuple[bool, str], object] = {}  # (compiled, name) -> module, once imported
 
 
-def core(name: str, work: int = 0):
+def core(name: str, work: float = 0):
     """The core module ``name`` (``"geometry"``, ``"resistance"``, ``"flow"``, ...) to run a call on."""
     compiled = compiled_wanted(work)
     mod = _modules.get((compiled, name))
