@@ -41,20 +41,14 @@ def _drop_stale_cache() -> None:
     if _checked:
         return
     _checked = True
-    digest = _sources_digest()
-    cache = _STAMP.parent
-    stamp = _STAMP
+    if cache_is_current():
+        return
     try:
-        if stamp.read_text() == digest:
-            return
-    except OSError:
-        pass
-    try:
-        cache.mkdir(exist_ok=True)
-        for f in cache.iterdir():
+        _STAMP.parent.mkdir(exist_ok=True)
+        for f in _STAMP.parent.iterdir():
             if f.suffix in (".nbi", ".nbc"):
                 f.unlink(missing_ok=True)
-        stamp.write_text(digest)
+        _STAMP.write_text(_sources_digest())
     except OSError:  # a read-only installation: numba then cannot cache either
         pass
 

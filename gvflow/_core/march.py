@@ -50,9 +50,7 @@ def _residual(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
 @scalar_kernel
 def _residual_state(ch, fl, q, s0, d, e1, sf1, hv1, y2, alpha, ce, avg):
     """:func:`_residual` and what the pass gave at y2: (r, dr/dy2, velocity head, Sf, Fr², dK/dy / K)."""
-    a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y2, alpha)
-    hv2 = al * (q / a) * (q / a) / (2.0 * fl.g)
-    sf2 = slope_of(q, kk)
+    hv2, sf2, fr2, dlnk = _pass(ch, fl, q, alpha, y2)
     sav, dsav = sf_average(avg, sf1, sf2)
     dhv2 = -fr2  # d(alpha V²/2g)/dy = dE/dy - 1 = -Fr², alpha varying or not
     dsf2 = -2.0 * sf2 * dlnk
@@ -77,7 +75,21 @@ def _state_after(ch, fl, q, alpha, y, hv, sf, fr2, dlnk, yn):
     dy = yn - y
     hvn = hv - fr2 * dy
     sfn = sf - 2.0 * sf * dlnk * dy
-    return yn + hvn, sfn, hvn, sfn * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
+    return yn + hvn, sfn, hvn, _rate(sfn, dlnk, fr2)
+
+
+@scalar_kernel
+def _pass(ch, fl, q, alpha, y):
+    """One pass of :func:`~gvflow._core.resistance.hydraulics` at depth y as a step uses it: (velocity head,
+    friction slope, Fr², dK/dy / K)."""
+    a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
+    return al * (q / a) * (q / a) / (2.0 * fl.g), slope_of(q, kk), fr2, dlnk
+
+
+@scalar_kernel
+def _rate(sf, dlnk, fr2):
+    """The relaxation rate |dSf/dy| / |1 - Fr²| from Sf, dK/dy / K and Fr² (:func:`relaxation_rate`)."""
+    return sf * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
 
 
 @scalar_kernel
@@ -86,10 +98,8 @@ def station_state(ch, fl, q, alpha, y):
     :func:`~gvflow._core.resistance.hydraulics`: (specific energy, friction slope, velocity head, rate).
     The march computes it once at each depth it reaches: the rate decides the next interval's sub-steps
     and the rest starts the next step (see :func:`relaxation_rate`, :func:`step_from`)."""
-    a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
-    hv = al * (q / a) * (q / a) / (2.0 * fl.g)
-    sf = slope_of(q, kk)
-    return y + hv, sf, hv, sf * abs(2.0 * dlnk) / max(abs(1.0 - fr2), 1e-3)
+    hv, sf, fr2, dlnk = _pass(ch, fl, q, alpha, y)
+    return y + hv, sf, hv, _rate(sf, dlnk, fr2)
 
 
 @scalar_kernel
