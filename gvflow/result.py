@@ -375,6 +375,7 @@ class Profile:
         pieces = functools.partial(scenario_pieces, sol, i, x, y, reg, seg, yn, yc)  # made when first read
         # a junction station appears twice; keep one where nothing changes across it
         q_at = _station_discharge(sol, i, x, seg)
+        base = not rows.size  # (the solver's own stations, whose bed it laid out with them)
         if len(sol.segs) > 1:
             drop = np.array([s.drop for s in reach.segments])
             # (the tests below only at the junctions: stations sharing an x in two segments)
@@ -384,7 +385,8 @@ class Profile:
                 keep = np.ones(x.size, bool)
                 keep[same + 1] = False
                 x, y, reg, seg, q_at = x[keep], y[keep], reg[keep], seg[keep], q_at[keep]
-        bed = reach.bed_elevation(x, seg)
+                base = False
+        bed = sol.bed if base else reach.bed_elevation(x, seg)
         # properties at the stations and at both ends of every jump, in one pass
         k2 = sol.jump_segment[rows]
         if rows.size:

@@ -164,6 +164,7 @@ SI = Units(g=9.80665, manning_k=1.0, length="m", kinematic_viscosity=1.004e-6, n
 US = Units(g=32.174, manning_k=1.486, length="ft", kinematic_viscosity=1.081e-5, name="US")
 
 UnitsLike = Literal["SI", "US"] | Units
+_BY_NAME = {"SI": SI, "US": US}
 
 
 def resolve_units(units: UnitsLike | str = "SI") -> Units:
@@ -177,6 +178,8 @@ def resolve_units(units: UnitsLike | str = "SI") -> Units:
     if isinstance(units, Units):
         return units
     if isinstance(units, str):
+        if units in _BY_NAME:  # (the usual spellings, without the string work)
+            return _BY_NAME[units]
         key = units.strip().upper()
         if key == "SI":
             return SI
