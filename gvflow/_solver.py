@@ -413,10 +413,13 @@ def _sub_segment(marcher, seg, xs, y0, c0, can_restart, k, runs):
             for r, j, x_t in zip(hit.tolist(), jj.tolist(), xt.tolist(), strict=True):
                 pressure.append((int(rows[r]), x_t, j0 + j - skip, top))
 
-    free = np.flatnonzero(~(y0 > top))
+    # a depth handed in above the crown, or at the crown where the grade line of full flow rises upstream
+    # (Sf_full > S0), starts full; at the crown with Sf_full <= S0 the free surface falls away upstream
+    full = (y0 > top) | ((y0 >= top) & (rise > 0.0))
+    free = np.flatnonzero(~full)
     if free.size:
         free_run(free, xs[0], 0, y0[free], np.asarray(c0)[free])
-    pressure += [(int(r), xs[0], 0, float(y0[r])) for r in np.flatnonzero(y0 > top)]
+    pressure += [(int(r), xs[0], 0, float(y0[r])) for r in np.flatnonzero(full)]
     # a full stretch ends where the grade line meets the crown (only where Sf_full < S0), and the free
     # surface resumes there; each scenario switches at most once each way (rise keeps its sign)
     while pressure:

@@ -166,6 +166,24 @@ def test_free_surface_meets_the_full_flow_line_continuously(method):
     assert last and min(pc.x_start for pc in last) >= x[j]
 
 
+@pytest.mark.parametrize("kw", [dict(n_steps=10), dict(n_steps=100), dict(method="ivp")])
+@pytest.mark.parametrize("offset", [-1e-7, 0.0, 1e-7])
+def test_tailwater_at_the_crown_fills_the_whole_pipe(kw, offset):
+    """A pipe above its full capacity under a tailwater at (or within round-off of) its crown runs full
+    from the outlet: the pressure head at the inlet is D + L (Sf_full - S0) (hand energy equation, Manning
+    full flow), the same for a tailwater a hair above or below the crown."""
+    d, s0, n, length, q = 0.9, 0.005, 0.013, 200.0, 3.0
+    reach = gv.Reach(segments=[gv.Segment(length=length, slope=s0, section=gv.Circular(diameter=d), roughness=n)],
+                     discharge=q, downstream=gv.FixedDepth(d + offset))
+    p = reach.solve(**kw)
+    head = d + offset + length * (manning_sf(q, d, n) - s0)
+    # (a surface 1e-7 below the crown reaches it within some micrometres)
+    tol = 1e-9 if offset == 0.0 else 1e-5
+    assert p.depth[0] == pytest.approx(head, abs=tol)
+    assert p.surcharged_lengths[0] == pytest.approx(length, abs=tol)
+    assert p.surcharged[:-1].all()
+
+
 def test_methods_agree_on_the_surcharged_stretch():
     """The standard step and scipy's solve_ivp integrate the free surface independently; where it meets
     the crown, and so the grade line at the inlet, agree."""
