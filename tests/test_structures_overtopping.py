@@ -308,6 +308,30 @@ def test_a_split_in_the_jump_of_the_barrel_rating():
                                                            r.headwater - road.low_point), rtol=1e-9)
 
 
+def test_a_discharge_splits_the_same_alone_and_in_any_array():
+    # A 1.2 m pipe whose rating falls from outlet to inlet control near 1.1 m³/s under a 1.0 m tailwater,
+    # so the split over a 0.86 m road has more than one balance near Q = 1.3 (each satisfies continuity and
+    # one headwater, checked below as in the property test). Which one is returned must depend on that
+    # scenario's own inputs only: alone, in an array with other discharges, and in a reach sweep.
+    barrel = st.CircularBarrel(diameter=1.2, length=30.0, slope=0.01, roughness=0.012, barrels=1)
+    road = st.RoadCrest(length=30.0, elevation=0.86)
+    alone = st.culvert_headwater(barrel, np.array([1.3]), tailwater=1.0, road=road)
+    for others in ([1.0, 1.3], [1.3, 0.5, 4.0], [2.0, 1.2, 1.3]):
+        r = st.culvert_headwater(barrel, np.array(others), tailwater=1.0, road=road)
+        i = others.index(1.3)
+        assert r.headwater[i] == alone.headwater[0] and r.road_discharge[i] == alone.road_discharge[0]
+    np.testing.assert_array_equal(alone.barrel_discharge + alone.road_discharge, [1.3])
+    _check_one_headwater(barrel, alone.barrel_discharge, alone.headwater, 1.0)
+    reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=0.002, roughness=0.03,
+                                          section=gv.Trapezoidal(bottom_width=2.0, side_slope=2.0))],
+                     discharge=1.3, downstream=gv.Culvert(barrel=barrel, tailwater=1.0, road=road))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GVFlowWarning)
+        one = reach.solve()
+        sweep = reach.sweep(discharge=np.array([1.0, 1.3]))
+    np.testing.assert_array_equal(sweep[1].depth, one.depth)
+
+
 def test_split_property():
     # random culverts and roads: continuity and one headwater hold, and most cases actually solve
     _OUTCOMES.update(tried=0, solved=0)

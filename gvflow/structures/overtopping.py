@@ -358,7 +358,7 @@ def finish_culvert_result(barrel, res, *, road, tw, vd, exit_loss, steps, units,
         hw0 = np.atleast_1d(np.asarray(res.headwater, dtype=float))
         idx = np.flatnonzero(hw0 > road.low_point)
         if idx.size:
-            qb = _split(barrel, road, q[idx], hw0[idx], tw[idx], vd[idx], down[idx], exit_loss, steps, u, q, hw0,
+            qb = _split(barrel, road, q[idx], hw0[idx], tw[idx], vd[idx], down[idx], exit_loss, steps, u,
                         barrel_headwater)
             # nudge Qb by at most a rounding so that Qb + (Q - Qb) gives Q back in floating point
             qi = q[idx]
@@ -435,25 +435,29 @@ def _shaped(v, scalar):
     return str(item) if v.dtype.kind in "USO" else float(item)
 
 
-def _first_guess(road, q, down, grid_q, grid_hw, u):
-    """Barrel discharge where Qb + Q_road(HW(Qb)) = Q on the all-barrel rating (grid_q, grid_hw) interpolated
-    linearly, and the slope of that residual there."""
-    order = np.argsort(grid_q)
-    gq = np.concatenate(([0.0], grid_q[order]))
-    gh = np.concatenate(([0.0], grid_hw[order]))
-    g = gq[None, :] + _road_flow(road, gh[None, :], down[:, None], u)[0] - q[:, None]
-    j = np.argmax(g >= 0, axis=1)
-    j = np.maximum(j, 1)
+#: fractions of its own discharge at which a scenario's all-barrel rating is sampled for the first guess
+_GUESS_FRACTIONS = np.array([0.25, 0.5, 0.75])
+
+
+def _first_guess(road, q, down, hw_all, rating, u):
+    """Barrel discharge where Qb + Q_road(HW(Qb)) = Q on each scenario's own all-barrel rating, sampled at
+    0, Q/4, Q/2, 3Q/4 and Q (``hw_all``) with its own tailwater and interpolated linearly, and the slope of
+    that residual there. Each scenario's guess uses its own inputs only, so a scenario gives the same split
+    alone as in any array."""
+    gq = np.concatenate([np.zeros((q.size, 1)), q[:, None] * _GUESS_FRACTIONS, q[:, None]], axis=1)
+    gh = np.concatenate([np.zeros((q.size, 1)), rating(gq[:, 1:-1]), hw_all[:, None]], axis=1)
+    g = gq + _road_flow(road, gh, down[:, None], u)[0] - q[:, None]
+    j = np.maximum(np.argmax(g >= 0, axis=1), 1)
     rows = np.arange(q.size)
     g0, g1 = g[rows, j - 1], g[rows, j]
-    q0, q1 = gq[j - 1], gq[j]
+    q0, q1 = gq[rows, j - 1], gq[rows, j]
     slope = (g1 - g0) / (q1 - q0)
     with np.errstate(divide="ignore", invalid="ignore"):
         x = np.where(g1 > g0, q0 - g0 / slope, q1)
     return x, np.maximum(np.where(np.isfinite(slope), slope, 1.0), 1.0)
 
 
-def _split(barrel, road, q, hw_all, tw, vd, down, exit_loss, steps, u, grid_q, grid_hw, barrel_headwater):
+def _split(barrel, road, q, hw_all, tw, vd, down, exit_loss, steps, u, barrel_headwater):
     """Barrel discharge Qb with Qb + Q_road(HW(Qb)) = Q for each overtopping case.
 
     A first guess from the all-barrel rating, one Newton-like step with that
@@ -467,9 +471,14 @@ def _split(barrel, road, q, hw_all, tw, vd, down, exit_loss, steps, u, grid_q, g
                         dtype=float).reshape(qb.shape)
         return qb + _road_flow(road, hw, down[sel], u)[0] - q[sel]
 
+    def rating(qb):  # all-barrel headwater of each row's own tailwater at the discharges qb, (rows, k)
+        k = qb.shape[1]
+        hw = barrel_headwater(barrel, qb.ravel(), np.repeat(tw, k), np.repeat(vd, k), None, exit_loss, steps, u)
+        return np.asarray(hw.headwater, dtype=float).reshape(qb.shape)
+
     everything = np.arange(q.size)
     qmin = 1e-9 * q
-    x1, slope = _first_guess(road, q, down, grid_q, grid_hw, u)
+    x1, slope = _first_guess(road, q, down, hw_all, rating, u)
     x1 = np.clip(x1, qmin, q)
     f1 = resid(x1, everything)
     x2 = np.clip(x1 - f1 / slope, qmin, q)
