@@ -543,6 +543,8 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     sub = _subcritical_pass(st, down)
     up = _upstream_start(st, sub)
     gov = _supercritical_pass(st, down, sub, up)
+    if up.ctrl is not None:
+        up.ctrl.check_solved(up.state, gov.depth[:, 0])
     # (the notes are written when first read: keep only the gates of the subcritical pass for them)
     return _solution(st, down, _SubPass(None, None, sub.gate_jet, sub.gate_submerged), up, gov)
 

@@ -401,7 +401,7 @@ def _parse_vary(reach, vary) -> dict[str, np.ndarray]:
 class _PerScenarioControl:
     """Controls that differ from scenario to scenario, seen by the solver as one control.
 
-    ``depth_at`` and ``notes`` ask each distinct control about its own scenarios;
+    ``depth_at``, ``check_solved`` and ``notes`` ask each distinct control about its own scenarios;
     ``for_scenario(s)`` is the control of scenario s; any other attribute is the
     per-scenario array of that attribute (``gate.opening``, say).
     """
@@ -429,6 +429,11 @@ class _PerScenarioControl:
         for ctrl, idx, sub in self._states(state):
             out[idx] = np.asarray(ctrl.depth_at(sub), dtype=float)
         return out
+
+    def check_solved(self, state, depth):
+        depth = np.asarray(depth, dtype=float)
+        for ctrl, idx, sub in self._states(state):
+            ctrl.check_solved(sub, depth[idx])
 
     def notes(self, state, depth):
         out: list = [None] * state.seg.n

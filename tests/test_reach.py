@@ -448,8 +448,10 @@ def test_gate_errors():
     with pytest.raises(ValueError, match="upstream control"):
         gv.Reach(segments=[gv.Segment(length=100.0, slope=0.001, section=RECT, roughness=N,
                                       gate=gv.SluiceGate(opening=0.3))], discharge=Q)
+    # a free gate (steep below it: nothing drowns it) whose pool would stand below its lip does not control
+    free = gv.Segment(length=300.0, slope=0.02, section=RECT, roughness=N, gate=gv.SluiceGate(opening=1.05))
     with pytest.raises(gv.ControlError, match="opening"):
-        gated(1.1, opening=1.05).solve()
+        gv.Reach(segments=[seg(300.0, 0.001), free], discharge=Q).solve()
 
 
 @pytest.mark.parametrize("call, word", [

@@ -443,9 +443,36 @@ def test_gate_reports_depth_behind_it_free_and_submerged():
     assert any(c.kind == "drowned jump" for c in drowned.controls)
 
 
+def _drowned_gate_pool(q, a, y3, cc=0.61):
+    """Depth behind a submerged gate in a rectangle of width B: momentum from the vena contracta (jet cc a
+    under water at y) to the water y3 below the gate, then energy from the pool to the vena contracta
+    (Henderson 1966, §6.5; from memory)."""
+    qb, yj = q / B, cc * a
+    y = math.sqrt(y3 * y3 + 2 * qb * qb / G * (1 / y3 - 1 / yj))
+    return brentq(lambda z: z + qb * qb / (2 * G * z * z) - (y + qb * qb / (2 * G * yj * yj)), y, 50.0,
+                  xtol=1e-14)
+
+
+def test_a_drowned_gate_holds_water_above_its_lip_even_where_free_flow_would_not():
+    # Q = 6 m³/s under a 1.0 m opening: free flow would leave the pool at 0.914 m, below the lip, but the
+    # tailwater drowns the gate and the pool stands above 3 m; at the head of a reach and between segments.
+    q, a = 6.0, 1.0
+    up = gv.Reach(segments=[seg(200.0, 0.001)], discharge=q, upstream=gv.SluiceGate(opening=a),
+                  downstream=gv.FixedDepth(2.5)).solve()
+    text = details(up)[0]
+    assert text.startswith("submerged flow") and "in free flow the water would stand below the gate lip" in text
+    assert f"depth behind the gate {_drowned_gate_pool(q, a, up.depth[0]):.3f} m" in text
+    mid = gv.Reach(segments=[seg(200.0, 0.001), seg(200.0, 0.001).model_copy(update=dict(
+        gate=gv.SluiceGate(opening=a)))], discharge=q, downstream=gv.FixedDepth(3.0)).solve()
+    at = np.flatnonzero(np.isclose(mid.x, 200.0))
+    assert mid.depth[at[0]] == pytest.approx(_drowned_gate_pool(q, a, mid.depth[at[1]]), rel=1e-9)
+
+
 def test_gate_opening_above_the_upstream_depth_raises():
-    # jet 0.183 m is below critical depth (0.19 m) but the water behind the gate would stand below its lip
-    reach = gv.Reach(segments=[seg(300.0, 0.001)], discharge=0.8, upstream=gv.SluiceGate(opening=0.3),
+    # jet 0.183 m is below critical depth (0.19 m) but the water behind the gate would stand below its lip;
+    # on a steep bed nothing drowns the gate, so it flows free and cannot hold the water (on a mild bed a
+    # 1.0 m tailwater drowns it, and it holds a pool above its lip: the test above)
+    reach = gv.Reach(segments=[seg(300.0, 0.02)], discharge=0.8, upstream=gv.SluiceGate(opening=0.3),
                      downstream=gv.FixedDepth(1.0))
     with pytest.raises(gv.ControlError, match="opening is above the depth"):
         reach.solve()

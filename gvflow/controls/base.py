@@ -101,6 +101,11 @@ class Control(SingleValueModel):
         """
         return [[] for _ in range(state.seg.n)]
 
+    def check_solved(self, state: EndState, depth: np.ndarray) -> None:
+        """Raise a :class:`~gvflow.errors.ControlError` where the solved depth at the control's end
+        (``depth``, as given to :meth:`notes`) shows it cannot hold the flow; called once the passes have
+        found what governs, before the result is returned. The base class accepts every depth."""
+
     def coefficients(self) -> tuple:
         """Empirical coefficients this control's depth rests on, for the result's report.
 
@@ -283,7 +288,7 @@ class SluiceGate(Control):
                 f"SluiceGate(opening={self.opening:g}): the jet depth {self.jet_depth:.4g} is not below critical "
                 f"depth {state.seg.yc[i]:.4g} for discharge {state.seg.discharge[i]:g}, so the gate does not "
                 "release supercritical flow; the opening is too large for this discharge")
-        self.upstream_depth(state)  # raises when the gate lip is clear of the water
+        # (whether the lip is clear of the water depends on the water below the gate: check_solved)
         return yj
 
     def upstream_depth(self, state, tailwater=None):
@@ -311,14 +316,22 @@ class SluiceGate(Control):
                 "opening") from None
         return y1
 
+    def _drowned(self, depth):
+        return np.asarray(depth, dtype=float) > self.jet_depth * (1 + 1e-9)
+
+    def check_solved(self, state, depth):
+        """The pool behind a free gate must stand above its lip; a drowned gate holds the water below it
+        above the lip (:meth:`upstream_depth` raises otherwise)."""
+        self.upstream_depth(state, tailwater=np.where(self._drowned(depth), depth, np.nan))
+
     def notes(self, state, depth):
         L = state.units.length
         depth = np.asarray(depth, dtype=float)
         jet = np.full(state.seg.n, self.jet_depth)
         limit = gate_sequent_depth(state.seg, jet)
-        drowned = depth > self.jet_depth * (1 + 1e-9)
-        y_free = self.upstream_depth(state)
+        drowned = self._drowned(depth)
         y1 = self.upstream_depth(state, tailwater=np.where(drowned, depth, np.nan))
+        y_free = gate_pool_depth(state.seg, state.seg, jet, None, opening=None)[0] if np.any(drowned) else y1
         top = state.seg.section.max_depth
 
         def behind(y):
@@ -330,7 +343,9 @@ class SluiceGate(Control):
                        else "the jet's sequent depth (above the crown)")
             if drowned[s]:
                 out.append([f"submerged flow: the water at the gate, {depth[s]:.3f} {L}, stands above {sequent}; "
-                            f"depth behind the gate {behind(y1[s])} (free flow would need {behind(y_free[s])})"])
+                            f"depth behind the gate {behind(y1[s])} " + (
+                                f"(free flow would need {behind(y_free[s])})" if y_free[s] > self.opening else
+                                "(in free flow the water would stand below the gate lip)")])
             else:
                 out.append([f"free flow: depth behind the gate {behind(y1[s])}; the jump below stays clear of the "
                             f"gate while the tailwater there is under {sequent}"])

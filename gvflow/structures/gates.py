@@ -392,8 +392,9 @@ def gate_pool_depth(seg_up, seg_dn, jet, tail=None, *, opening):
     tail : ndarray, optional
         Depth of the water below the gate per scenario [length]; NaN or None
         where there is none (free flow).
-    opening : float
-        Gate opening a [length]: the pool must stand above its lip.
+    opening : float or None
+        Gate opening a [length]: the pool must stand above its lip (None: not
+        checked).
 
     Returns
     -------
@@ -431,7 +432,7 @@ def gate_pool_depth(seg_up, seg_dn, jet, tail=None, *, opening):
         i = int(np.flatnonzero(none)[0])
         raise NoSolutionError(f"the gate does not hold the water back at discharge {q[i]:g}: the jet carries less "
                               "energy than critical flow upstream needs; the opening is too large")
-    if np.any(y_up <= opening):
+    if opening is not None and np.any(y_up <= opening):
         i = int(np.flatnonzero(y_up <= opening)[0])
         raise NoSolutionError(f"the water upstream ({y_up[i]:.4g}) would stand below the gate lip at discharge "
                               f"{q[i]:g}; the opening is too large for this discharge")
