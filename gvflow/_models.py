@@ -6,29 +6,23 @@ from typing import ClassVar
 
 from pydantic import BaseModel, ConfigDict, ValidationError
 
-from ._validate import invalid_input_from
-from .errors import GVFlowError
+from ._validate import OwnValidationErrors, own_error
 
 
 class _RaisesOwnErrors(type(BaseModel)):
     """Metaclass of :class:`FrozenModel`: building a model by calling its class raises gvflow's own errors,
     never pydantic's. A model-level check keeps its own error (a ControlError, say); field errors become
-    one InvalidInputError naming each field. Validation of nested data (reach files) does not pass through
-    here, so :mod:`gvflow.io` still sees pydantic's errors with their field paths."""
+    one InvalidInputError naming each field (:func:`gvflow._validate.own_error`); ``model_validate`` and
+    its kin do the same (:class:`gvflow._validate.OwnValidationErrors`)."""
 
     def __call__(cls, *args, **kwargs):
         try:
             return super().__call__(*args, **kwargs)
         except ValidationError as exc:
-            errors = exc.errors()
-            if len(errors) == 1 and not errors[0].get("loc"):
-                original = (errors[0].get("ctx") or {}).get("error")
-                if isinstance(original, GVFlowError):
-                    raise original from None
-            raise invalid_input_from(exc, cls.__name__) from None
+            raise own_error(exc, cls.__name__) from None
 
 
-class FrozenModel(BaseModel, metaclass=_RaisesOwnErrors):
+class FrozenModel(OwnValidationErrors, BaseModel, metaclass=_RaisesOwnErrors):
     """Immutable, strict model: unknown fields are rejected with their name; bad input raises gvflow's
     own errors (see :class:`_RaisesOwnErrors`)."""
 

@@ -96,6 +96,48 @@ def invalid_input_from(exc, owner: str) -> InvalidInputError:
     return InvalidInputError(f"{owner}: " + "; ".join(parts))
 
 
+def own_error(exc, owner: str) -> ValueError:
+    """The gvflow error to raise for a pydantic ``ValidationError`` met while building or validating
+    ``owner``: a model-level check's own error (a ControlError, say) where it is the only problem, else
+    one InvalidInputError naming each field (:func:`invalid_input_from`)."""
+    from .errors import GVFlowError
+
+    errors = exc.errors()
+    if len(errors) == 1 and not errors[0].get("loc"):
+        original = (errors[0].get("ctx") or {}).get("error")
+        if isinstance(original, GVFlowError):
+            return original
+    return invalid_input_from(exc, owner)
+
+
+class OwnValidationErrors:
+    """Mixin placed before pydantic's ``BaseModel``: ``model_validate``, ``model_validate_json`` and
+    ``model_validate_strings`` raise gvflow's errors (:func:`own_error`), never pydantic's
+    ``ValidationError``. (:mod:`gvflow.io` reads reach files through the model's validator itself, to
+    list every problem with its path.)"""
+
+    @classmethod
+    def _validating(cls, how, *args, **kwargs):
+        from pydantic import ValidationError
+
+        try:
+            return getattr(super(), how)(*args, **kwargs)
+        except ValidationError as exc:
+            raise own_error(exc, cls.__name__) from None
+
+    @classmethod
+    def model_validate(cls, *args, **kwargs):
+        return cls._validating("model_validate", *args, **kwargs)
+
+    @classmethod
+    def model_validate_json(cls, *args, **kwargs):
+        return cls._validating("model_validate_json", *args, **kwargs)
+
+    @classmethod
+    def model_validate_strings(cls, *args, **kwargs):
+        return cls._validating("model_validate_strings", *args, **kwargs)
+
+
 def renamed_keyword(value, old_value, *, old: str, new: str, default):
     """The value of a keyword renamed from ``old`` to ``new``: the old name still works, with a FutureWarning.
 

@@ -26,7 +26,7 @@ from pydantic import BaseModel, ConfigDict, Field, ValidationError
 from ._core.codes import pass_cost
 from ._core.records import Channel, channel, fluid
 from ._engine import core
-from ._validate import invalid_input_from, positive_array, scalar_or_array
+from ._validate import OwnValidationErrors, invalid_input_from, positive_array, scalar_or_array
 from .errors import ConvergenceError, InvalidInputError
 from .units import UnitsLike, resolve_units
 
@@ -53,7 +53,7 @@ KIND_CHEZY = 1
 KIND_DARCY = 2
 
 
-class _Roughness(BaseModel):
+class _Roughness(OwnValidationErrors, BaseModel):
     model_config = ConfigDict(frozen=True, extra="forbid")
     _value_field: ClassVar[str] = "n"
 

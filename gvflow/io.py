@@ -159,7 +159,7 @@ def parse_reach(text: str, source: str = "<reach text>") -> Reach:
     except RecursionError:
         raise ReachFileError(too_deep) from None
     try:
-        return Reach.model_validate_json(text)
+        return Reach.__pydantic_validator__.validate_json(text)  # pydantic's errors, to list each problem
     except RecursionError:
         raise ReachFileError(too_deep) from None
     except ValidationError as exc:

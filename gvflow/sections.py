@@ -26,7 +26,7 @@ from pydantic import BaseModel, ConfigDict, Field, PrivateAttr, ValidationError,
 from ._core.codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surveyed, pass_cost
 from ._core.records import Fluid, fluid
 from ._engine import core
-from ._validate import invalid_input_from, positive_array, scalar_or_array
+from ._validate import OwnValidationErrors, invalid_input_from, positive_array, scalar_or_array
 from .errors import InvalidInputError
 from .friction import Chezy, DarcyWeisbach, Manning, as_roughness, core_channel
 
@@ -46,7 +46,7 @@ _Dim = Annotated[float, Field(gt=0, allow_inf_nan=False)]
 _Slope = Annotated[float, Field(ge=0, allow_inf_nan=False)]
 
 
-class Section(BaseModel):
+class Section(OwnValidationErrors, BaseModel):
     """Base class of prismatic cross-sections. Subclasses supply ``_geometry``."""
 
     model_config = ConfigDict(frozen=True, extra="forbid")
@@ -353,7 +353,7 @@ class _Packed:
     __hash__ = None
 
 
-class StillWater(BaseModel):
+class StillWater(OwnValidationErrors, BaseModel):
     """Part of a surveyed section that holds water but conveys none until the water rises above a level.
 
     Water standing beside a culvert or bridge opening, or behind a levee until it is

@@ -12,7 +12,7 @@ from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator, model_validator
 
-from ._validate import invalid_input_from
+from ._validate import OwnValidationErrors, invalid_input_from
 from ._warn import warn
 from .errors import InvalidInputError
 
@@ -43,7 +43,7 @@ def _length_per_metre(label: str, g: float) -> float:
     return g / _G_STANDARD
 
 
-class Units(BaseModel):
+class Units(OwnValidationErrors, BaseModel):
     """A consistent system of units.
 
     Parameters

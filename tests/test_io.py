@@ -264,3 +264,21 @@ def test_demo_scenario_is_the_same_with_the_ivp_marcher(demo):
     assert len(other.jumps) == len(demo.jumps)
     for a, b in zip(demo.jumps, other.jumps, strict=True):
         assert abs(a.x - b.x) < 0.01 * demo.x[-1]
+
+
+@pytest.mark.parametrize("call, match", [
+    (lambda: gv.Reach.model_validate_json(gv.demo_reach().model_dump_json().replace('"discharge":', '"discharge":-')),
+     r"Reach: discharge"),
+    (lambda: gv.Reach.model_validate_json("{oops"), r"Reach: Invalid JSON"),
+    (lambda: gv.Reach.model_validate({"segments": [], "discharge": 1.0}), r"Reach: segments"),
+    (lambda: gv.Rectangular.model_validate({"width": -1.0}), r"Rectangular: width must be greater than 0"),
+    (lambda: gv.Manning.model_validate_json('{"n": -1}'), r"Manning: n must be"),
+    (lambda: gv.FixedDepth.model_validate({"depth": 0.0}), r"FixedDepth: depth"),
+    (lambda: gv.Units.model_validate_strings({"g": "heavy"}), r"Units: g"),
+])
+def test_validating_a_model_from_data_raises_gvflow_errors(call, match):
+    """The round-trip calls of the models (model_validate, model_validate_json, model_validate_strings)
+    name the field, as building a model by calling its class does, and never let pydantic's own
+    ValidationError out."""
+    with pytest.raises(gv.InvalidInputError, match=match):
+        call()
