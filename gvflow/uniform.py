@@ -316,10 +316,12 @@ def specific_energy(section, discharge, depth, units: UnitsLike = "SI", alpha: f
 
 
 def specific_force(section, discharge, depth, units: UnitsLike = "SI"):
-    """Specific force (momentum function) M = Q²/(g A) + A ȳ [length³] (Chow 1959, eq. 3-20).
+    """Specific force (momentum function) M = beta Q²/(g A) + A ȳ [length³] (Chow 1959, eq. 3-20).
 
-    ȳ is the depth of the centroid of the flow area below the surface. Two
-    depths with equal M are the sequent depths of a hydraulic jump.
+    ȳ is the depth of the centroid of the flow area below the surface; beta is
+    the section's momentum coefficient (1 for a single zone, from the zone
+    conveyances of a compound section). Two depths with equal M are the
+    sequent depths of a hydraulic jump (:func:`sequent_depth`).
 
     Examples
     --------
@@ -376,7 +378,9 @@ def _other_branch(section, q, y, units, value_fn, name, alpha=1.0):
 def sequent_depth(section, discharge, depth, units: UnitsLike = "SI"):
     """Sequent (conjugate) depth of a hydraulic jump by the specific-force balance [length].
 
-    Given the supercritical depth, returns the subcritical one, and vice versa.
+    Given the supercritical depth, returns the subcritical one, and vice versa:
+    the depth on the other side of critical with the same :func:`specific_force`
+    (with the section's momentum coefficient beta, as the solver's jumps).
     In a rectangle this reproduces Belanger's y2/y1 = (sqrt(1 + 8 F1²) - 1)/2
     (Chow 1959, eq. 15-3).
 
@@ -395,13 +399,12 @@ def sequent_depth(section, discharge, depth, units: UnitsLike = "SI"):
     """
     u = resolve_units(units)
     q, y = _qy(section, discharge, depth)
-
-    def m(z, qq=q):
-        g = section._geometry(z)
-        return qq * qq / (u.g * g[0]) + g[3]
-
     q1, y1 = np.atleast_1d(q).astype(float), np.atleast_1d(y).astype(float)
-    out = _other_branch(section, q1, y1, u, lambda z, qq=q1: m(z, qq), "sequent")
+
+    def m(z, qq=q1):
+        return np.asarray(specific_force(section, qq, z, u), dtype=float)
+
+    out = _other_branch(section, q1, y1, u, m, "sequent")
     return scalar_or_array(out.reshape(np.shape(y)))
 
 
@@ -421,8 +424,7 @@ def alternate_depth(section, discharge, depth, units: UnitsLike = "SI", alpha: f
     q1, y1 = np.atleast_1d(q).astype(float), np.atleast_1d(y).astype(float)
 
     def e(z, qq=q1):
-        a = section._geometry(z)[0]
-        return z + alpha * qq * qq / (2.0 * u.g * a * a)
+        return np.asarray(specific_energy(section, qq, z, u, alpha), dtype=float)
 
     out = _other_branch(section, q1, y1, u, e, "alternate", alpha)
     return scalar_or_array(out.reshape(np.shape(y)))

@@ -87,6 +87,30 @@ def test_coefficients_from_measured_zone_velocities():
     assert all(z.energy_coefficient(1.5) == 1.0 for z in zones)
 
 
+def test_sequent_depth_balances_the_specific_force_with_beta():
+    # A jump in COMPOUND from 0.3 m in the 10 m slot to above bankfull (2 m), written out by hand: areas,
+    # first moments and Manning zone conveyances of the slot and the two 100 m floodplains (division lines
+    # carry no friction), beta = A sum(K_i²/A_i)/K² (Chow 1959, §2-7), M = beta Q²/(g A) + A ȳ (Chow 1959,
+    # eq. 3-20), the sequent depth by scipy's brentq
+    from scipy.optimize import brentq
+
+    g, q, y1 = 9.80665, 30.0, 0.3
+
+    def force(y):
+        zones = [(10.0 * y, 10.0 + 4.0, 0.03)]
+        if y > 2.0:
+            zones += [(100.0 * (y - 2.0), 100.0 + (y - 2.0), 0.05)] * 2
+        k = [a ** (5 / 3) / p ** (2 / 3) / n for a, p, n in zones]
+        area = sum(a for a, _, _ in zones)
+        beta = area * sum(ki * ki / a for ki, (a, _, _) in zip(k, zones, strict=True)) / sum(k) ** 2
+        return beta * q * q / (g * area) + 5.0 * y * y + 100.0 * max(y - 2.0, 0.0) ** 2
+
+    y2 = brentq(lambda y: force(y) - force(y1), 2.0 + 1e-9, 4.0, xtol=1e-14)
+    assert gv.sequent_depth(COMPOUND, q, y1) == pytest.approx(y2, rel=1e-10)
+    assert gv.sequent_depth(COMPOUND, q, y2) == pytest.approx(y1, rel=1e-10)
+    assert gv.specific_force(COMPOUND, q, y2) == pytest.approx(force(y2), rel=1e-12)
+
+
 def test_roughness_belongs_to_the_section():
     with pytest.raises(gv.InvalidInputError, match="carries its own roughness"):
         gv.normal_depth(TRAP_POINTS, 12.0, 0.001, 0.02)
