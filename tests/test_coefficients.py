@@ -442,6 +442,7 @@ def test_docs_page_is_generated_from_the_registry():
         assert f"`{key}`" in page
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_module_entry_point_prints_the_page():
     out = subprocess.run([sys.executable, "-m", "gvflow.coefficients"], capture_output=True, text=True,
                          cwd=ROOT, check=True, env={"PYTHONPATH": str(ROOT), "PATH": ""})

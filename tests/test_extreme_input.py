@@ -131,6 +131,7 @@ def test_parse_reach_refuses_deep_nesting():
         gv.parse_reach('{"segments": ' + "[" * 5_000 + "]" * 5_000 + ', "discharge": 1}')
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_command_nested_10000_deep(tmp_path):
     path = tmp_path / "nested.json"
     path.write_text("[" * 10_000 + "]" * 10_000)
@@ -138,6 +139,7 @@ def test_command_nested_10000_deep(tmp_path):
     assert "nested too deeply" in line
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 @pytest.mark.parametrize("value", [1e308, 1e30])
 def test_command_every_number_huge(tmp_path, value):
     path = tmp_path / "huge.json"
@@ -146,6 +148,7 @@ def test_command_every_number_huge(tmp_path, value):
     assert "slope" in line
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_command_huge_numbers_within_the_field_ranges(tmp_path):
     data = json.loads(_demo_text())
     for seg in data["segments"]:

@@ -122,6 +122,7 @@ def test_jump_on_a_gentle_floor_has_no_note():
     assert not [c for c in profile.controls if c.kind == "jump on a sloping floor"]
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_command_prints_a_warning_as_one_line(tmp_path):
     import json
     import subprocess

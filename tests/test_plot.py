@@ -417,6 +417,7 @@ def test_every_plot_takes_an_axes_and_returns_it():
         assert isinstance(call(None), Axes)
 
 
+@pytest.mark.slow  # subprocess, process pool or kernel start-up
 def test_importing_gvflow_does_not_import_matplotlib():
     import subprocess
     import sys

@@ -404,7 +404,8 @@ def run_generated(n_examples, derandomize=False):
 
 
 def test_generated_reaches_quick():
-    tried, solved, compared = run_generated(40, derandomize=True)
+    # (the first 30 of the derandomized sequence; the slow test below runs thousands)
+    tried, solved, compared = run_generated(30, derandomize=True)
     assert tried >= 20 and solved >= 0.8 * tried
 
 
