@@ -217,6 +217,30 @@ def _warn_unusual(segments, coef):
              "a jump's sequent depth is taken from the level-floor momentum balance")
 
 
+def warn_above_surveys(reach, x, bounds, depth) -> None:
+    """Warn where the solved water stands above the lower end point of a surveyed section: the survey stops
+    there and the section is taken as closed by a vertical wall (:class:`gvflow.Surveyed`). Between two
+    surveyed sections the height of that point above the invert is interpolated along the segment."""
+    L = reach.resolved_units.length
+    high = []
+    for k, seg in enumerate(reach.segments):
+        top = getattr(seg.section, "bank_depth", None)
+        if top is None:
+            continue
+        i0, m = bounds[k]
+        xs = x[i0:i0 + m]
+        if seg.section_downstream is not None:
+            top = top + (seg.section_downstream.bank_depth - top) * (xs - xs[0]) / (xs[-1] - xs[0])
+        over = np.nanmax(depth[:, i0:i0 + m] - top, axis=0, initial=-np.inf)
+        if np.any(over > 1e-9 * np.max(top)):
+            j = int(np.argmax(over))
+            high.append(f"segment {k}: {over[j]:.3g} {L} above it at x = {xs[j]:.1f} {L}")
+    if high:
+        warn(f"section: the water rises above the lower end point of a surveyed section ({'; '.join(high)}), "
+             "where the survey stops and the section is taken as closed by a vertical wall; extend the survey "
+             "over the ground the water reaches")
+
+
 def _warn_mixed_units(segs, L, g) -> None:
     """Warn where a segment's normal or critical depth is many times its water-surface width (open
     sections only: a conduit's water surface narrows to nothing at its crown)."""

@@ -27,6 +27,7 @@ from ._core.codes import CIRCLE, PARABOLA, SURVEYED, TRAPEZOID, WIDE, pack_surve
 from ._core.records import Fluid, fluid
 from ._engine import core
 from ._validate import OwnValidationErrors, invalid_input_from, positive_array, scalar_or_array
+from ._warn import warn
 from .errors import InvalidInputError
 from .friction import Chezy, DarcyWeisbach, Manning, as_roughness, core_channel
 
@@ -59,6 +60,10 @@ class Section(OwnValidationErrors, BaseModel):
             super().__init__(**data)
         except ValidationError as exc:
             raise invalid_input_from(exc, type(self).__name__) from None
+
+    def warn_above_ends(self, depth, what: str) -> None:
+        """Warn where ``depth`` stands above what the section describes (a surveyed section's lower end
+        point, :meth:`Surveyed.warn_above_ends`); a geometric shape describes every depth."""
 
     # -- subclass hook --------------------------------------------------
     def core_params(self) -> tuple[int, np.ndarray]:  # pragma: no cover - abstract
@@ -498,6 +503,17 @@ class Surveyed(Section):
     def bank_depth(self) -> float:
         """Depth at which the water reaches the lower of the two end points [length]."""
         return float(min(self.elevation[0], self.elevation[-1]) - self.invert)
+
+    def warn_above_ends(self, depth, what: str) -> None:
+        """A :class:`GVFlowWarning` where ``depth`` (any shape; NaN ignored) stands above the lower end
+        point: the survey stops there and the section is taken as closed by a vertical wall, which the
+        ground beyond may not be. ``what`` names the depth in the message."""
+        y = np.asarray(depth, dtype=float)
+        top = self.bank_depth
+        if y.size and np.nanmax(y, initial=-np.inf) > top * (1.0 + 1e-9):
+            warn(f"section: {what} {np.nanmax(y):.4g} stands above the lower end point of {self!r} "
+                 f"({top:.4g} above its invert), where the survey stops and the section is taken as closed by a "
+                 "vertical wall; extend the survey over the ground the water reaches")
 
     @property
     def zone_count(self) -> int:

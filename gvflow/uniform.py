@@ -157,6 +157,7 @@ def normal_depth(section, discharge, slope, roughness=None, units: UnitsLike = "
             "conduit or a steeper slope"
         )
     _check_status(status, out, "normal depth", f"{section!r}")
+    section.warn_above_ends(out, "normal depth")
     return scalar_or_array(out.reshape(shape))
 
 
@@ -206,6 +207,7 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
                       "has several minima); returning the one of least specific energy, "
                       f"{out[i]:.6g}: gv.critical_depths gives them all", GVFlowWarning, stacklevel=2)
     _check_status(status, out, "critical depth", f"{section!r}")
+    section.warn_above_ends(out, "critical depth")
     return scalar_or_array(out.reshape(shape))
 
 
@@ -291,14 +293,17 @@ def froude_number(section, discharge, depth, units: UnitsLike = "SI"):
     return _station_values(section, discharge, depth, units, 1.0, "froude_many")
 
 
-def _station_values(section, discharge, depth, units, alpha, loop):
-    """One core relation of (discharge, depth) evaluated over broadcast arrays."""
+def _station_values(section, discharge, depth, units, alpha, loop, check=True):
+    """One core relation of (discharge, depth) evaluated over broadcast arrays; ``check``: warn of a depth
+    above what the section describes (off for the trial depths of a root search)."""
     u = resolve_units(units)
     q, y = _qy(section, discharge, depth)
     shape, (qf, yf) = _flat(q, y)
     out = np.empty(qf.size)
     ch = core_channel(section)
     getattr(core("arrays", qf.size * pass_cost(ch.kind, ch.par)), loop)(ch, fluid(u), qf, yf, alpha, out)
+    if check:
+        section.warn_above_ends(yf, "depth")
     return scalar_or_array(out.reshape(shape))
 
 
@@ -402,9 +407,10 @@ def sequent_depth(section, discharge, depth, units: UnitsLike = "SI"):
     q1, y1 = np.atleast_1d(q).astype(float), np.atleast_1d(y).astype(float)
 
     def m(z, qq=q1):
-        return np.asarray(specific_force(section, qq, z, u), dtype=float)
+        return np.asarray(_station_values(section, qq, z, u, 1.0, "force_many", check=False), dtype=float)
 
     out = _other_branch(section, q1, y1, u, m, "sequent")
+    section.warn_above_ends(out, "sequent depth")
     return scalar_or_array(out.reshape(np.shape(y)))
 
 
@@ -420,13 +426,15 @@ def alternate_depth(section, discharge, depth, units: UnitsLike = "SI", alpha: f
     True
     """
     u = resolve_units(units)
+    alpha = float(positive_array(alpha, "alpha"))
     q, y = _qy(section, discharge, depth)
     q1, y1 = np.atleast_1d(q).astype(float), np.atleast_1d(y).astype(float)
 
     def e(z, qq=q1):
-        return np.asarray(specific_energy(section, qq, z, u, alpha), dtype=float)
+        return np.asarray(_station_values(section, qq, z, u, alpha, "energy_many", check=False), dtype=float)
 
     out = _other_branch(section, q1, y1, u, e, "alternate", alpha)
+    section.warn_above_ends(out, "alternate depth")
     return scalar_or_array(out.reshape(np.shape(y)))
 
 

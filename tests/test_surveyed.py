@@ -7,6 +7,7 @@ defining equations of normal depth, critical flow and the coefficients.
 """
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -109,6 +110,29 @@ def test_sequent_depth_balances_the_specific_force_with_beta():
     assert gv.sequent_depth(COMPOUND, q, y1) == pytest.approx(y2, rel=1e-10)
     assert gv.sequent_depth(COMPOUND, q, y2) == pytest.approx(y1, rel=1e-10)
     assert gv.specific_force(COMPOUND, q, y2) == pytest.approx(force(y2), rel=1e-12)
+
+
+def test_water_above_the_surveyed_ends_warns():
+    # ground 2 m deep at its end points: beyond them the section is a vertical wall (Surveyed notes), so a
+    # depth above 2 m rests on ground that was not surveyed
+    sec = gv.Surveyed(offset=[0, 5, 10, 15, 20], elevation=[2, 1, 0, 1, 2], roughness=[0.05, 0.03, 0.05],
+                      zone_edges=[5, 15])
+    with pytest.warns(gv.GVFlowWarning, match="normal depth 4.76 stands above the lower end point"):
+        gv.normal_depth(sec, 150.0, 0.001)
+    with pytest.warns(gv.GVFlowWarning, match="critical depth 2.997 stands above"):
+        gv.critical_depth(sec, 150.0)
+    with pytest.warns(gv.GVFlowWarning, match="depth 3 stands above"):
+        gv.froude_number(sec, 150.0, [1.0, 3.0])
+    reach = gv.Reach(segments=[gv.Segment(length=500, slope=0.001, section=sec)], discharge=150.0,
+                     downstream=gv.FixedDepth(6.0))
+    with pytest.warns(gv.GVFlowWarning, match=r"segment 0: 4 m above it at x = 500.0 m.*extend the survey"):
+        reach.solve()
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        gv.normal_depth(sec, 5.0, 0.001)
+        gv.sequent_depth(sec, 5.0, 0.2)  # its root search tries depths above the ends, its answer is below
+        gv.Reach(segments=[gv.Segment(length=500, slope=0.001, section=sec)], discharge=5.0,
+                 downstream=gv.FixedDepth(1.9)).solve()
 
 
 def test_roughness_belongs_to_the_section():
