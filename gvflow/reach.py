@@ -311,6 +311,10 @@ class Reach(FrozenModel):
                                     "lists")
         beds = []
         for i, (sec, z) in enumerate(zip(secs, inv, strict=True)):
+            if isinstance(sec, Surveyed) and rough[i] is not None:
+                where = f"roughness[{i}]" if rough is roughness else "roughness"
+                raise InvalidInputError(f"{where}: section {i} is surveyed and carries its own roughness; give None "
+                                        "for it (a list with None at the surveyed stations), or leave roughness out")
             if z is None:
                 if not isinstance(sec, Surveyed):
                     raise InvalidInputError(f"inverts[{i}]: section {i} is geometric and has no elevation of its "
@@ -320,7 +324,13 @@ class Reach(FrozenModel):
         segments = []
         for i in range(x.size - 1):
             length = float(x[i + 1] - x[i])
-            segments.append(Segment(length=length, slope=(beds[i] - beds[i + 1]) / length, section=secs[i],
+            slope = (beds[i] - beds[i + 1]) / length
+            if not abs(slope) < 1.0:
+                raise InvalidInputError(
+                    f"stations {x[i]:g} and {x[i + 1]:g}: their beds ({beds[i]:g} and {beds[i + 1]:g}) differ by "
+                    f"more than the distance between them (a slope of {slope:g}); check the stations and the "
+                    "inverts (an abrupt drop is a Segment's drop, in a Reach built from segments)")
+            segments.append(Segment(length=length, slope=slope, section=secs[i],
                                     section_downstream=secs[i + 1], contraction=contraction, expansion=expansion,
                                     roughness=None if isinstance(secs[i], Surveyed) else rough[i],
                                     name=f"{x[i]:g}-{x[i + 1]:g}"))

@@ -179,6 +179,16 @@ def test_changing_section_errors_name_the_field():
                                roughness=0.02)
     with pytest.raises(gv.InvalidInputError, match="increase"):
         gv.Reach.from_sections(stations=[0, 0], sections=[a, a], discharge=1.0)
+    # a surveyed section carries its roughness: giving one too is an error, as for a Segment
+    with pytest.raises(gv.InvalidInputError, match="roughness: section 0 is surveyed"):
+        gv.Reach.from_sections(stations=[0, 10], sections=[a, a], discharge=1.0, roughness=0.5)
+    with pytest.raises(gv.InvalidInputError, match=r"roughness\[1\]: section 1 is surveyed"):
+        gv.Reach.from_sections(stations=[0, 10, 20], sections=[gv.Rectangular(width=2.0), a, a], discharge=1.0,
+                               inverts=[1.0, None, None], roughness=[0.02, 0.5, None])
+    # stations closer than their beds' difference: the message names them, not a slope the user never gave
+    lower = gv.Surveyed(offset=[0, 5, 10], elevation=[1.5, -0.5, 1.5], roughness=0.03)
+    with pytest.raises(gv.InvalidInputError, match=r"stations 10 and 10.001: their beds \(0 and -0.5\)"):
+        gv.Reach.from_sections(stations=[0, 10, 10.001], sections=[a, a, lower], discharge=1.0)
     reach = gv.Reach(segments=[gv.Segment(length=50.0, slope=S0, section=gv.Rectangular(width=6.0), roughness=N,
                                           section_downstream=gv.Rectangular(width=4.0))],
                      discharge=Q, downstream=gv.FixedDepth(1.5))
