@@ -115,13 +115,23 @@ class BatchSolution:
         return out
 
 
+#: most stations of one scenario's profile: a 1 km reach at 1 mm, about 0.5 GB of work arrays
+MAX_STATIONS = 1_000_000
+
+
 def station_layout(reach, n_steps: int, max_step: float | None):
     """Base stations: every segment gets its own stations, junctions appear twice.
 
     Returns (x, segment index of each station, bed elevation, [(first index, count)] per segment).
     """
     lengths = [s.length for s in reach.segments]
-    steps = [n_steps if max_step is None else max(n_steps, int(np.ceil(length / max_step))) for length in lengths]
+    steps = [n_steps if max_step is None else max(n_steps, math.ceil(length / max_step)) for length in lengths]
+    count = sum(steps) + len(steps)
+    if count > MAX_STATIONS:
+        raise InvalidInputError(
+            f"n_steps={n_steps}" + ("" if max_step is None else f", max_step={max_step:g}") + f" would give "
+            f"{count:,} stations, more than the {MAX_STATIONS:,} of one reach's profile; use fewer steps per "
+            "segment (n_steps) or a longer max_step")
     x_end, z_end = reach._segment_ends()
     slopes = np.array([s.slope for s in reach.segments])
     x, seg_ix, bed = core("stations", 1).layout(np.array(lengths), np.array(steps), slopes, np.array(x_end),

@@ -463,3 +463,11 @@ def test_a_mistyped_keyword_is_named_with_the_valid_ones(call, word):
     reach = gv.demo_reach()
     with pytest.raises(gv.InvalidInputError, match=f"unknown keyword {word}.*n_steps, max_step"):
         call(reach)
+
+
+def test_a_profile_of_too_many_stations_is_refused_before_any_work():
+    reach = gv.demo_reach()
+    with pytest.raises(gv.InvalidInputError, match=r"n_steps=100, max_step=1e-06 would give 750,000,003 stations"):
+        reach.solve(max_step=1e-6)
+    with pytest.raises(gv.InvalidInputError, match=r"fewer steps per segment \(n_steps\)"):
+        reach.sweep(discharge=[5.0, 6.0], n_steps=10 ** 7)
