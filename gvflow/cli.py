@@ -37,9 +37,8 @@ def _solve_and_report(reach, args) -> int:
     from .io import write_profile_csv
 
     profile = reach.solve(method=args.method, n_steps=args.steps)
-    if reach.name:
-        print(reach.name)
-    print(profile.summary())
+    summary = profile.summary()
+    # (the files first: where one cannot be written the command stops before showing any result)
     written = []
     if args.plot:
         _write_plot(profile, args.plot)
@@ -47,6 +46,9 @@ def _solve_and_report(reach, args) -> int:
     if args.csv:
         write_profile_csv(profile, args.csv)
         written.append(f"Station table ({profile.x.size} stations) written to {args.csv}")
+    if reach.name:
+        print(reach.name)
+    print(summary)
     print()
     for line in written:
         print(line)
@@ -106,11 +108,12 @@ def _parser() -> argparse.ArgumentParser:
 
     demo = sub.add_parser("demo", help="solve the bundled demo reach and print a summary",
                           description="Solve the bundled demo reach (an invented gated canal, steep chute and "
-                                      "stilling reach) and print a summary.")
+                                      "stilling reach) and print a summary.", epilog=CAUTION)
     solve_options(demo)
     demo.set_defaults(func=_demo)
     run = sub.add_parser("run", help="solve a reach file and print a summary",
-                         description="Solve the reach described in a JSON reach file and print a summary.")
+                         description="Solve the reach described in a JSON reach file and print a summary.",
+                         epilog=CAUTION)
     run.add_argument("reach", metavar="REACH.json", help="reach file (see 'gvflow schema')")
     solve_options(run)
     run.set_defaults(func=_run)
@@ -123,20 +126,15 @@ def _parser() -> argparse.ArgumentParser:
 def main(argv: list[str] | None = None) -> int:
     """Run the ``gvflow`` command with ``argv`` (default: the process arguments); return the exit code."""
     args = _parser().parse_args(argv)
+    caught = []
     try:
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", GVFlowWarning)
             code = args.func(args)
-        seen = set()
-        for w in caught:  # plausibility warnings, once each, as one line each; others as Python shows them
-            if issubclass(w.category, GVFlowWarning):
-                if str(w.message) not in seen:
-                    seen.add(str(w.message))
-                    _one_line_error(str(w.message), prefix="gvflow: warning: ")
-            else:
-                warnings.showwarning(w.message, w.category, w.filename, w.lineno)
+        _show_warnings(caught)
         return code
     except (ValueError, OSError) as exc:
+        _show_warnings(caught)  # (they may explain the error)
         _one_line_error(str(exc))
         return 2
     except (RecursionError, MemoryError) as exc:
@@ -147,6 +145,18 @@ def main(argv: list[str] | None = None) -> int:
         _one_line_error(f"{type(exc).__name__}: {exc}; please report it with the reach file",
                         prefix="gvflow: internal error: ")
         return 3
+
+
+def _show_warnings(caught) -> None:
+    """Plausibility warnings once each, as one line each; others as Python shows them."""
+    seen = set()
+    for w in caught:
+        if issubclass(w.category, GVFlowWarning):
+            if str(w.message) not in seen:
+                seen.add(str(w.message))
+                _one_line_error(str(w.message), prefix="gvflow: warning: ")
+        else:
+            warnings.showwarning(w.message, w.category, w.filename, w.lineno)
 
 
 def _one_line_error(text: str, prefix: str = "gvflow: error: ", limit: int = 1000) -> None:

@@ -98,9 +98,12 @@ def test_malformed_file_exits_2_with_field_path(tmp_path):
 
 
 def _main_error(capsys, *args):
-    """Run the command in this process; check exit code 2 and one line on stderr, return it."""
+    """Run the command in this process; check exit code 2, one line on stderr and no result shown on stdout
+    (a result never appears without the caution); return the line."""
     assert main([str(a) for a in args]) == 2
-    err = capsys.readouterr().err.strip().splitlines()
+    captured = capsys.readouterr()
+    assert captured.out == ""
+    err = captured.err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("gvflow: error: "), err
     return err[0]
 
@@ -121,8 +124,22 @@ def test_bad_steps_exits_2(reach_file, capsys):
     assert "n_steps" in _main_error(capsys, "run", reach_file, "--steps", 1)
 
 
-def test_unwritable_output_exits_2(reach_file, tmp_path, capsys):
-    assert "out.csv" in _main_error(capsys, "run", reach_file, "--csv", tmp_path / "no_dir" / "out.csv")
+def test_too_many_stations_exits_2_before_any_work(reach_file, capsys):
+    line = _main_error(capsys, "run", reach_file, "--steps", 10 ** 8)
+    assert "100,000,001 stations" in line and "fewer steps" in line
+
+
+@pytest.mark.parametrize("option, name", [("--csv", "out.csv"), ("--plot", "out.png")])
+def test_unwritable_output_exits_2_without_showing_results(reach_file, tmp_path, capsys, option, name):
+    # results never appear without the caution: the files are written before anything is printed
+    assert name in _main_error(capsys, "run", reach_file, option, tmp_path / "no_dir" / name)
+
+
+def test_each_command_help_carries_the_caution(capsys):
+    for command in ("demo", "run"):
+        with pytest.raises(SystemExit):
+            main([command, "--help"])
+        assert "CAUTION: results are for planning and checking" in " ".join(capsys.readouterr().out.split())
 
 
 def test_usage_errors_exit_2(reach_file, capsys):
