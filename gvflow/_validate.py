@@ -96,6 +96,26 @@ def invalid_input_from(exc, owner: str) -> InvalidInputError:
     return InvalidInputError(f"{owner}: " + "; ".join(parts))
 
 
+def single_number(value: np.ndarray, name: str) -> float:
+    """``value`` (a checked array) as a float; an InvalidInputError naming ``name`` where it holds more than
+    one number."""
+    if np.size(value) != 1:
+        raise InvalidInputError(f"{name} must be a single number; got {np.size(value)} values (call once per "
+                                "value)")
+    return float(np.ravel(value)[0])
+
+
+def broadcast(**arrays) -> list:
+    """``np.broadcast_arrays`` of the named arrays, in order; arrays of shapes that do not broadcast raise an
+    InvalidInputError naming each with its shape."""
+    try:
+        return np.broadcast_arrays(*arrays.values())
+    except ValueError:
+        shapes = ", ".join(f"{name} {np.shape(v)}" for name, v in arrays.items())
+        raise InvalidInputError(f"arrays of shapes that do not fit together ({shapes}): give arrays of one shape, "
+                                "or scalars beside them") from None
+
+
 def own_error(exc, owner: str) -> ValueError:
     """The gvflow error to raise for a pydantic ``ValidationError`` met while building or validating
     ``owner``: a model-level check's own error (a ControlError, say) where it is the only problem, else

@@ -13,11 +13,19 @@ from typing import Literal
 
 import numpy as np
 
-from ._core.codes import NO_ROOT, NOT_CONVERGED, pass_cost
+from ._core.codes import NO_ROOT, NOT_CONVERGED, SLOPE_CLASS_NAMES, pass_cost
 from ._core.records import fluid
 from ._engine import core
 from ._roots import bracketed_root, expand_upper
-from ._validate import finite_array, positive_array, renamed_keyword, scalar_or_array
+from ._validate import (
+    broadcast,
+    finite_array,
+    positive_array,
+    positive_float,
+    renamed_keyword,
+    scalar_or_array,
+    single_number,
+)
 from .errors import ConvergenceError, GVFlowWarning, InvalidInputError, NoSolutionError
 from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, core_channel, section_roughness
 from .units import UnitsLike, resolve_units
@@ -67,15 +75,16 @@ def _shrink_lower(fun, lo, *, what: str, increasing: bool = True):
                           "check the units and magnitude of the discharge")
 
 
-def _flat(*arrays):
-    """Broadcast arrays to one shape and return it with contiguous flat float copies."""
-    b = np.broadcast_arrays(*arrays)
+def _flat(**arrays):
+    """Broadcast the named arrays to one shape (:func:`gvflow._validate.broadcast`) and return it with
+    contiguous flat float copies."""
+    b = broadcast(**arrays)
     return b[0].shape, [np.ascontiguousarray(a.reshape(-1), dtype=float) for a in b]
 
 
 def _peak_conveyance_depth(section, rough, units, q):
     """Depth and conveyance of a closed conduit's largest conveyance, for each discharge."""
-    shape, (qf,) = _flat(np.asarray(q, dtype=float))
+    shape, (qf,) = _flat(discharge=np.asarray(q, dtype=float))
     depth, k = np.empty(qf.size), np.empty(qf.size)
     ch = core_channel(section, rough)
     core("arrays", 100 * qf.size * pass_cost(ch.kind, ch.par)).peak_conveyance_many(ch, fluid(units), qf, depth, k)
@@ -139,7 +148,7 @@ def normal_depth(section, discharge, slope, roughness=None, units: UnitsLike = "
             f"normal depth does not exist on {kind} bed (slope={float(np.min(s)):g}); uniform flow "
             "needs a bed falling downstream (slope > 0)"
         )
-    shape, (qf, sf) = _flat(q, s)
+    shape, (qf, sf) = _flat(discharge=q, slope=s)
     ch = core_channel(section, rough)
     out, status = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64)
     core("arrays", 100 * qf.size * pass_cost(ch.kind, ch.par)).normal_depth_many(ch, fluid(u), qf, sf, out, status)
@@ -186,7 +195,7 @@ def critical_depth(section, discharge, units: UnitsLike = "SI", alpha: float = 1
     u = resolve_units(units)
     q = positive_array(discharge, "discharge")
     a_ = float(positive_array(alpha, "alpha"))
-    shape, (qf,) = _flat(q)
+    shape, (qf,) = _flat(discharge=q)
     out, status, count = np.empty(qf.size), np.zeros(qf.size, dtype=np.int64), np.zeros(qf.size, dtype=np.int64)
     ch = core_channel(section)  # critical flow does not depend on the roughness
     core("arrays", 100 * qf.size * pass_cost(ch.kind, ch.par)).critical_depth_many(
@@ -276,7 +285,7 @@ def critical_slope(section, discharge, roughness=None, units: UnitsLike = "SI", 
 def _qy(section, discharge, depth):
     q = positive_array(discharge, "discharge")
     y = section._depth(depth)
-    q, y = np.broadcast_arrays(q, y)
+    q, y = broadcast(discharge=q, depth=y)
     return q, y
 
 
@@ -298,7 +307,7 @@ def _station_values(section, discharge, depth, units, alpha, loop, check=True):
     above what the section describes (off for the trial depths of a root search)."""
     u = resolve_units(units)
     q, y = _qy(section, discharge, depth)
-    shape, (qf, yf) = _flat(q, y)
+    shape, (qf, yf) = _flat(discharge=q, depth=y)
     out = np.empty(qf.size)
     ch = core_channel(section)
     getattr(core("arrays", qf.size * pass_cost(ch.kind, ch.par)), loop)(ch, fluid(u), qf, yf, alpha, out)
@@ -457,26 +466,45 @@ def slope_class(section, discharge, slope, roughness=None, units: UnitsLike = "S
         counts as critical (default :data:`CRITICAL_SLOPE_TOLERANCE`, 1e-3).
         ``tolerance=`` is its former name (still accepted, with a FutureWarning).
 
+    Returns
+    -------
+    str or ndarray of str
+        The class; an array of classes where discharge or slope is an array
+        (they broadcast together).
+
     Examples
     --------
     >>> import gvflow as gv
     >>> gv.slope_class(gv.Rectangular(width=3.0), 5.0, 0.001, 0.015)
     'mild'
+    >>> gv.slope_class(gv.Rectangular(width=3.0), 5.0, [0.001, 0.02, 0.0], 0.015).tolist()
+    ['mild', 'steep', 'horizontal']
     """
     critical_tolerance = renamed_keyword(critical_tolerance, tolerance, old="tolerance", new="critical_tolerance",
                                          default=CRITICAL_SLOPE_TOLERANCE)
-    positive_array(discharge, "discharge")
+    tol = positive_float(critical_tolerance, "critical_tolerance", allow_zero=True)
+    q = positive_array(discharge, "discharge")
     section_roughness(section, roughness)
-    s = float(finite_array(slope, "slope"))
-    if s == 0:
-        return "horizontal"
-    if s < 0:
-        return "adverse"
-    yn = normal_depth(section, discharge, s, roughness, units)
-    yc = critical_depth(section, discharge, units)
-    if abs(yn - yc) <= critical_tolerance * yc:
-        return "critical"
-    return "mild" if yn > yc else "steep"
+    s = finite_array(slope, "slope")
+    shape, (qf, sf) = _flat(discharge=q, slope=s)
+    yn, yc = np.full(qf.size, np.nan), np.ones(qf.size)
+    pos = sf > 0  # (on a level or adverse bed the class needs neither depth)
+    if np.any(pos):
+        yn[pos] = normal_depth(section, qf[pos], sf[pos], roughness, units)
+        yc[pos] = critical_depth(section, qf[pos], units)
+    out = slope_classes(sf, yn, yc, tol)
+    return str(out[0]) if shape == () else out.reshape(shape)
+
+
+def slope_classes(slope, normal_depth, critical_depth, critical_tolerance) -> np.ndarray:
+    """Slope class names of flat arrays of bed slope, normal depth (NaN: none) and critical depth: the rule
+    of :func:`gvflow._core.flow.slope_class_code`, the one used by the solver (private)."""
+    slope = np.ascontiguousarray(slope, dtype=float)
+    code = np.empty(slope.size, dtype=np.int64)
+    core("arrays", slope.size).slope_class_many(slope, np.ascontiguousarray(normal_depth, dtype=float),
+                                                np.ascontiguousarray(critical_depth, dtype=float),
+                                                float(critical_tolerance), code)
+    return np.array(SLOPE_CLASS_NAMES)[code]
 
 
 def uniform_discharge(section, depth, slope, roughness=None, units: UnitsLike = "SI"):
@@ -557,7 +585,7 @@ def conduit_capacity(section, slope, roughness=None, units: UnitsLike = "SI") ->
         raise InvalidInputError(f"conduit_capacity needs a closed conduit (e.g. gv.Circular); got {section!r}")
     u = resolve_units(units)
     rough = section_roughness(section, roughness)
-    s = positive_array(slope, "slope")
+    s = single_number(positive_array(slope, "slope"), "slope")
     d = section.max_depth
     q_full = float(uniform_discharge(section, d, s, rough, u))
     qref = np.array([q_full])

@@ -8,6 +8,7 @@ are standard and written out beside each check.
 """
 
 import math
+import re
 
 import numpy as np
 import pytest
@@ -402,6 +403,38 @@ def test_arrays_broadcast_like_scalars(sec, qs, ss, n):
         assert arr.shape == (2,)
         for k in range(2):
             assert arr[k] == pytest.approx(fn(sec, qs[0], float(y[k])), rel=1e-12)
+
+
+def test_slope_classes_and_profile_types_of_arrays():
+    # a 3 m rectangle at Q = 5: yc = (q²/g)^(1/3) (exact) and yn by Manning with scipy's brentq; the class
+    # and zone by Chow 1959, §9-2 (mild yn > yc, steep yn < yc; M1 above yn, M2 between, M3 below yc)
+    b, q, n = 3.0, 5.0, 0.015
+    yc = ((q / b) ** 2 / G) ** (1 / 3)
+    slopes = np.array([0.0005, 0.02, 0.0, -0.001])
+    yn = [brentq(lambda y, s=s: b * y * (b * y / (b + 2 * y)) ** (2 / 3) * math.sqrt(s) / n - q, 1e-3, 20.0)
+          for s in slopes[:2]]
+    expected = ["mild" if yn[0] > yc else "steep", "mild" if yn[1] > yc else "steep", "horizontal", "adverse"]
+    assert expected[:2] == ["mild", "steep"]
+    sec = gv.Rectangular(width=b)
+    assert gv.slope_class(sec, q, slopes, n).tolist() == expected
+    assert gv.slope_class(sec, [q, q], 0.0005, n).tolist() == ["mild", "mild"]
+    y = np.array([1.2 * yn[0], 0.5 * (yn[0] + yc), 0.5 * yc])
+    assert gv.profile_type(sec, q, 0.0005, n, y).tolist() == ["M1", "M2", "M3"]
+    assert gv.profile_type(sec, [q, q, q], [0.0005, 0.02, 0.0], n, 0.5 * yc).tolist() == ["M3", "S3", "H3"]
+    assert gv.profile_type(sec, q, 0.0005, n, float(y[0])) == "M1"
+
+
+@pytest.mark.parametrize("call, names", [
+    (lambda sec: gv.normal_depth(sec, [1.0, 2.0], [1e-3, 2e-3, 3e-3], 0.015), "discharge (2,), slope (3,)"),
+    (lambda sec: gv.froude_number(sec, [1.0, 2.0], [0.5, 1.0, 2.0]), "discharge (2,), depth (3,)"),
+    (lambda sec: gv.sequent_depth(sec, [1.0, 2.0], [0.2, 0.3, 0.4]), "discharge (2,), depth (3,)"),
+    (lambda sec: gv.slope_class(sec, [1.0, 2.0], [1e-3, 2e-3, 3e-3], 0.015), "discharge (2,), slope (3,)"),
+    (lambda sec: gv.profile_type(sec, [1.0, 2.0], 1e-3, 0.015, [0.2, 0.3, 0.4]),
+     "discharge (2,), slope (), depth (3,)"),
+])
+def test_arrays_that_do_not_fit_together_name_the_arguments(call, names):
+    with pytest.raises(gv.InvalidInputError, match=re.escape(f"do not fit together ({names})")):
+        call(gv.Trapezoidal(bottom_width=2.0, side_slope=1.0))
 
 
 def test_scalar_in_float_out():

@@ -9,7 +9,15 @@ from __future__ import annotations
 import math
 
 from ._jit import kernel
-from .flow import critical_depth, critical_depths, normal_depth, peak_conveyance, specific_energy, specific_force
+from .flow import (
+    critical_depth,
+    critical_depths,
+    normal_depth,
+    peak_conveyance,
+    slope_class_code,
+    specific_energy,
+    specific_force,
+)
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
 from .resistance import _zone_k, colebrook, conveyance, froude_squared, velocity_coefficients
 
@@ -50,6 +58,13 @@ def critical_depth_many(ch, fl, q, alpha, out, status, count):
 def all_critical_depths(ch, fl, q, alpha, out):
     """Every critical depth of one discharge into ``out``; returns (count, status)."""
     return critical_depths(ch, fl, q, alpha, out)
+
+
+@kernel
+def slope_class_many(slope, yn, yc, tol, out):
+    """:func:`gvflow._core.flow.slope_class_code` of each element."""
+    for j in range(slope.size):
+        out[j] = slope_class_code(slope[j], yn[j], yc[j], tol)
 
 
 @kernel

@@ -41,6 +41,10 @@ REGIME_SUB, REGIME_CRITICAL, REGIME_SUPER = 1, 0, -1
 #: The name of each regime code, the one table of them.
 REGIME_NAMES = {REGIME_SUB: "subcritical", REGIME_CRITICAL: "critical", REGIME_SUPER: "supercritical"}
 
+#: Slope classes by code (Chow 1959, §9-2), the one table of their names: see
+#: :func:`gvflow._core.flow.slope_class_code`
+SLOPE_CLASS_NAMES = ("mild", "steep", "critical", "horizontal", "adverse")
+
 # status of a root
 SOLVED = 0
 NO_ROOT = 1

@@ -356,6 +356,23 @@ def _previous_max(ch, fl, q, alpha, grid, fr2, i, m):
 
 
 @scalar_kernel
+def slope_class_code(slope, yn, yc, tol):
+    """Slope class code, an index into :data:`gvflow._core.codes.SLOPE_CLASS_NAMES`: horizontal (3) at
+    slope 0, adverse (4) below; on a positive slope mild (0) where yn - yc > tol yc or there is no normal
+    depth (yn NaN: a closed conduit that cannot carry the discharge in uniform flow), steep (1) where
+    yc - yn > tol yc, else critical (2) (Chow 1959, §9-2, with the critical band of relative width tol)."""
+    if slope == 0.0:
+        return 3
+    if slope < 0.0:
+        return 4
+    if not math.isfinite(yn) or yn - yc > tol * yc:
+        return 0
+    if yc - yn > tol * yc:
+        return 1
+    return 2
+
+
+@scalar_kernel
 def peak_conveyance(ch, fl, q):
     """(depth, conveyance) of a closed conduit's largest conveyance, by golden-section search.
 

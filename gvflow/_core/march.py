@@ -25,6 +25,7 @@ from .flow import (
     critical_depth_single,
     normal_depth_batch,
     proportional,
+    slope_class_code,
     specific_energy,
     specific_force,
     velocity_head,
@@ -600,9 +601,8 @@ def properties(cb, fl, rows, q, y, out):
 @kernel
 def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, status_n, count, known_yc):
     """Per scenario (roughness row i, discharge q[i]): critical depth, normal depth (NaN where none), the
-    friction slope at critical depth, and the slope class code (0 mild, 1 steep, 2 critical, 3 horizontal,
-    4 adverse) by the rule of :func:`gvflow.profiles.classify_slope` with band ``tol`` (a closed conduit
-    that cannot carry q in uniform flow counts as mild). ``status[i]`` and ``status_n[i]`` are the status of
+    friction slope at critical depth, and the slope class code (:func:`gvflow._core.flow.slope_class_code`
+    with band ``tol``). ``status[i]`` and ``status_n[i]`` are the status of
     the critical and the normal depth (:mod:`gvflow._core.codes`): a critical depth without a root (a conduit
     flowing full first) stands at the crown, a normal depth without one is NaN, and the caller raises where
     one did not converge. With ``known_yc`` the critical depths and their status come in ``yc`` and ``status``
@@ -617,16 +617,7 @@ def segment_constants(cb, fl, q, slope, alpha, tol, yc, yn, sf_c, code, status, 
         if status_n[i] != SOLVED:
             yn[i] = math.nan
         sf_c[i] = friction_slope(ch, fl, q[i], yc[i])
-        if slope == 0.0:
-            code[i] = 3
-        elif slope < 0.0:
-            code[i] = 4
-        elif not np.isfinite(yn[i]) or yn[i] - yc[i] > tol * yc[i]:
-            code[i] = 0
-        elif yc[i] - yn[i] > tol * yc[i]:
-            code[i] = 1
-        else:
-            code[i] = 2
+        code[i] = slope_class_code(slope, yn[i], yc[i], tol)
 
 
 @kernel

@@ -23,16 +23,16 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .._core.codes import REGIME_NAMES, REGIME_SUB, REGIME_SUPER
-from .._validate import finite_array, positive_array, positive_float, renamed_keyword
+from .._core.codes import REGIME_NAMES, REGIME_SUB, REGIME_SUPER, SLOPE_CLASS_NAMES
+from .._validate import broadcast, finite_array, positive_array, positive_float, renamed_keyword
 from ..errors import InvalidInputError, NoSolutionError
-from ..uniform import CRITICAL_SLOPE_TOLERANCE, critical_depth, normal_depth
+from ..uniform import CRITICAL_SLOPE_TOLERANCE, critical_depth, normal_depth, slope_classes
 from ..units import UnitsLike
 
 __all__ = ["ProfileShape", "PROFILE_SHAPES", "PROFILE_LABELS", "SLOPE_CLASSES", "classify", "profile_type",
            "classify_slope"]
 
-SLOPE_CLASSES = ("mild", "steep", "critical", "horizontal", "adverse")
+SLOPE_CLASSES = SLOPE_CLASS_NAMES
 _LETTER = {"mild": "M", "steep": "S", "critical": "C", "horizontal": "H", "adverse": "A"}
 
 
@@ -147,14 +147,8 @@ def classify_slope(slope, normal_depth, critical_depth, critical_tolerance: floa
     s = float(finite_array(slope, "slope"))
     tol = positive_float(critical_tolerance, "critical_tolerance", allow_zero=True)
     yc = float(positive_array(critical_depth, "critical_depth"))
-    if s == 0:
-        return "horizontal"
-    if s < 0:
-        return "adverse"
-    yn = float(positive_array(normal_depth, "normal_depth"))
-    if abs(yn - yc) <= tol * yc:
-        return "critical"
-    return "mild" if yn > yc else "steep"
+    yn = float(positive_array(normal_depth, "normal_depth")) if s > 0 else math.nan
+    return str(slope_classes([s], [yn], [yc], tol)[0])
 
 
 def classify(slope_class: str, depth, normal_depth, critical_depth):
@@ -236,14 +230,14 @@ def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike =
     ----------
     section : Section
         Cross-section.
-    discharge : float
+    discharge : float or ndarray
         Discharge Q [length³/s].
-    slope : float
+    slope : float or ndarray
         Bed slope S0 [-], positive falling downstream.
     roughness : float, Manning, Chezy or DarcyWeisbach
         Resistance law; a float is Manning's n.
     depth : float or ndarray
-        Flow depth [length].
+        Flow depth [length]. Discharge, slope and depth broadcast together.
     units : "SI", "US" or Units
         Unit system.
     critical_tolerance : float
@@ -275,14 +269,18 @@ def profile_type(section, discharge, slope, roughness, depth, units: UnitsLike =
     """
     critical_tolerance = renamed_keyword(critical_tolerance, tolerance, old="tolerance", new="critical_tolerance",
                                          default=CRITICAL_SLOPE_TOLERANCE)
-    s = float(finite_array(slope, "slope"))
-    yc = float(critical_depth(section, discharge, units, alpha))
-    if s > 0:
+    tol = positive_float(critical_tolerance, "critical_tolerance", allow_zero=True)
+    q = positive_array(discharge, "discharge")
+    y = positive_array(depth, "depth")
+    q, s, y = broadcast(discharge=q, slope=finite_array(slope, "slope"), depth=y)
+    qf, sf, yf = (np.ravel(a).astype(float) for a in (q, s, y))
+    yc = np.atleast_1d(critical_depth(section, qf, units, alpha)).astype(float)
+    yn = np.full(qf.size, math.nan)
+    pos = sf > 0
+    if np.any(pos):
         try:
-            yn = float(normal_depth(section, discharge, s, roughness, units))
+            yn[pos] = normal_depth(section, qf[pos], sf[pos], roughness, units)
         except NoSolutionError as exc:
             raise NoSolutionError(f"no profile type: {exc}") from None
-    else:
-        positive_array(discharge, "discharge")
-        yn = math.nan
-    return classify(classify_slope(s, yn, yc, critical_tolerance), depth, yn, yc)
+    labels = _zone_labels(slope_classes(sf, yn, yc, tol), yf, np.where(np.isnan(yn), yc, yn), yc).reshape(y.shape)
+    return str(labels) if labels.ndim == 0 else labels
