@@ -257,3 +257,11 @@ def test_bad_culvert_input_raises():
         st.outlet_control_headwater(pipe(), 1.0, 0.5, exit_loss=1.5)
     with pytest.raises(gv.InvalidInputError, match="discharge"):
         st.inlet_control_headwater(pipe(), -1.0)
+    with pytest.raises(gv.InvalidInputError, match=r"do not fit together \(discharge \(3,\), tailwater \(2,\)"):
+        st.culvert_headwater(pipe(), [1.0, 2.0, 3.0], tailwater=[0.5, 0.6])
+    with pytest.raises(gv.InvalidInputError, match=r"do not fit together \(discharge \(3,\), tailwater \(2,\)"):
+        st.outlet_control_headwater(pipe(), [1.0, 2.0, 3.0], [0.5, 0.6])
+    with pytest.raises(gv.InvalidInputError, match="allowable_headwater must be a single number"):
+        st.culvert_headwater(pipe(), 1.0, tailwater=0.5, allowable_headwater=[1.0, 2.0])
+    with pytest.raises(gv.InvalidInputError, match="slope must be a single number"):
+        gv.conduit_capacity(gv.Circular(diameter=1.0), [0.001, 0.01], 0.013)

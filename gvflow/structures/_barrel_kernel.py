@@ -78,3 +78,14 @@ def barrel_partial_geometry(barrel, h):
     ch = barrel_channel(barrel)
     core("arrays", flat.size).geometry_many(ch.kind, ch.par, flat, out)
     return out[0].reshape(shape), out[1].reshape(shape)
+
+
+def barrel_friction_slope(barrel, q, h, u):
+    """Manning friction slope (Q/K)² in a barrel at depths h (0 < h <= rise) for discharges q per barrel, K
+    the core's conveyance of the partly full section."""
+    q, h = np.broadcast_arrays(np.asarray(q, dtype=float), np.asarray(h, dtype=float))
+    shape, qf = _flat(q)
+    hf = np.ascontiguousarray(h, dtype=float).ravel()
+    k = np.empty_like(qf)
+    core("arrays", qf.size).conveyance_many(barrel_channel(barrel), fluid(u), qf, hf, k)
+    return ((qf / k) ** 2).reshape(shape)

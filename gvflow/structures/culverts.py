@@ -60,14 +60,14 @@ from pydantic import Field
 
 from .. import coefficients
 from .._roots import bracketed_root
-from .._validate import finite_array, positive_array, scalar_or_array
+from .._validate import broadcast, finite_array, positive_array, scalar_or_array, single_number
 from ..coefficients import INLET_TYPES, CulvertInlet
 from ..errors import ConvergenceError, InvalidInputError, NoSolutionError
 from ..friction import AnyRoughness
 from ..sections import AnySection
 from ..uniform import normal_depth
 from ..units import UnitsLike, resolve_units
-from ._barrel_kernel import barrel_critical_depth, barrel_partial_geometry, run_march
+from ._barrel_kernel import barrel_critical_depth, barrel_friction_slope, barrel_partial_geometry, run_march
 from ._common import FrozenModel
 from .overtopping import finish_culvert_result, performance_table, plot_performance
 
@@ -469,15 +469,8 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
     """Vectorised outlet-control march. q per barrel; tw, vd broadcast to q's shape."""
     g = u.g
     d = barrel.height
-    n = barrel.roughness
-    k = u.manning_k
     ke = barrel.ke
     q, tw, vd = (np.atleast_1d(np.array(v, dtype=float)) for v in np.broadcast_arrays(q, tw, vd))
-
-    def area_sf(h, qq):
-        a, p = barrel._area_perimeter(h)
-        conv = k / n * a * (a / p) ** (2.0 / 3.0)
-        return a, (qq / conv) ** 2
 
     dc = barrel._critical_depth(q, u)
     h_low = np.minimum(dc, d)
@@ -498,8 +491,8 @@ def _outlet_control(barrel, q, tw, vd, kx, steps, u):
     h_out = h.copy()
 
     dx = barrel.length / steps
-    sf_low = area_sf(h_low, q)[1]
-    sf_full = area_sf(np.full(q.shape, d), q)[1]
+    sf_low = barrel_friction_slope(barrel, q, h_low, u)
+    sf_full = barrel_friction_slope(barrel, q, np.full(q.shape, d), u)
     sf_max = np.maximum(sf_low, sf_full)
     # march upstream by the standard step method (compiled: gvflow.structures._barrel_kernel)
     h, failed, full_all, bad = run_march(barrel, q, h, h_low, sf_max, dx, steps, u)
@@ -562,7 +555,7 @@ def outlet_control_headwater(barrel, discharge, tailwater, *, tailwater_velocity
         raise InvalidInputError(f"tailwater_velocity must be non-negative; got {float(np.min(vd)):g}")
     kx = _loss_coefficient(exit_loss, "exit_loss")
     n = _check_steps(steps)
-    shape = np.broadcast(q, tw, vd).shape
+    shape = broadcast(discharge=q, tailwater=tw, tailwater_velocity=vd)[0].shape
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # out of range: refused by the check
         hw, h_out, h_in, flow = _outlet_control(barrel, q, tw, vd, kx, n, u)
     check_headwater_ratio(barrel, hw / barrel.height, q * barrel.barrels, u, "outlet")
@@ -732,9 +725,10 @@ def culvert_headwater(barrel, discharge, *, tailwater=None, downstream_channel: 
     else:
         tw = finite_array(tailwater, "tailwater")
         vd = finite_array(tailwater_velocity, "tailwater_velocity")
+        broadcast(discharge=q_total, tailwater=tw, tailwater_velocity=vd)  # (names them where they do not fit)
     allowable = None
     if allowable_headwater is not None:
-        allowable = float(positive_array(allowable_headwater, "allowable_headwater"))
+        allowable = single_number(positive_array(allowable_headwater, "allowable_headwater"), "allowable_headwater")
     if road is not None and not hasattr(road, "low_point"):
         raise InvalidInputError(f"road must be a RoadCrest; got {road!r}")
     # with a road the barrels carry only part of the discharge: a headwater of many rises for the whole of it
