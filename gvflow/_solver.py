@@ -233,20 +233,20 @@ def _march_changing(marcher, seg, x_order, y0, crit0, branch, rival):
         y = np.where(failed, fill, y)
         crit |= failed
     if rows.size:
-        _keep_to_branch(sub, rows, t, y, crit, res.n_valid, branch, carried)
+        _keep_to_branch(sub, rows, t, y, crit, res.n_valid, branch)
     return y, crit
 
 
-def _keep_to_branch(sub, rows, t, y, crit, n_valid, branch, carried):
+def _keep_to_branch(sub, rows, t, y, crit, n_valid, branch):
     """Scenarios ``rows`` (the batch ``sub``) of a changing segment with several critical depths: from the
-    first station where the march left the branch it started on (whose critical depth along the segment is
-    ``carried``), past a maximum of specific energy, which bounds the branch as critical depth does, the
-    depth is that limit, flagged critical, as in a prismatic segment."""
+    first station where the march left the branch it was on, past a maximum of specific energy
+    (:func:`gvflow._core.changing.left_branch`), which bounds the branch as critical depth does, the depth
+    is that limit, flagged critical, as in a prismatic segment."""
     out_j, out_far = np.empty(rows.size, np.int64), np.empty(rows.size)
     core("changing", 200 * y.shape[1] * rows.size * sub.cost).left_branch(
         sub.cb, sub.change.along, sub.fl, np.ascontiguousarray(sub.discharge), t, sub.alpha,
         np.ascontiguousarray(y[rows]), np.ascontiguousarray(np.minimum(n_valid[rows], y.shape[1])), int(branch),
-        carried, out_j, out_far)
+        out_j, out_far)
     for r, j, far in zip(rows.tolist(), out_j.tolist(), out_far.tolist(), strict=True):
         if j < y.shape[1]:
             y[r, j:] = far if far == far and 0.0 < far < np.inf else y[r, j - 1]

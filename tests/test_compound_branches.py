@@ -20,6 +20,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad, solve_ivp
+from scipy.optimize import brentq
+from shapely.geometry import LineString, Polygon, box
 
 import gvflow as gv
 from gvflow._core.codes import SUB, SUPER
@@ -230,6 +232,77 @@ def test_a_reach_through_changing_compound_sections_keeps_each_profile_on_its_br
         edges = np.flatnonzero(np.diff(np.concatenate([[0], mask.astype(int), [0]])))
         for a, b in zip(edges[::2], edges[1::2], strict=True):
             assert np.unique(branch[a:b]).size == 1, (p.x[a:b], p.depth[a:b], branch[a:b])
+
+
+def _clipped_hydraulics(x, z, edges, roughness, y):
+    """(area, conveyance, alpha) of the polyline section (x, z) at level y, zones between ``edges``: each
+    zone's area and wetted ground length by shapely's clipping of the water polygon and of the ground line
+    to the zone, K_i = A_i^(5/3) / (n_i P_i^(2/3)), alpha = sum(K_i³/A_i²) / (K³/A²) (Chow 1959, §2-7)."""
+    top = max(max(z), y) + 1.0
+    ground = Polygon([(x[0], top), *zip(x, z, strict=True), (x[-1], top)])
+    line = LineString(list(zip(x, z, strict=True)))
+    zones = []
+    for lo, hi, n in zip(edges[:-1], edges[1:], roughness, strict=True):
+        window = box(lo, min(z) - 1.0, hi, y)
+        a, p = ground.intersection(window).area, line.intersection(window).length
+        zones.append((a, a ** (5 / 3) / (n * p ** (2 / 3)) if a > 0 else 0.0))
+    a, k = sum(v[0] for v in zones), sum(v[1] for v in zones)
+    alpha = sum(ki ** 3 / ai ** 2 for ai, ki in zones if ai > 0) / (k ** 3 / a ** 2)
+    return a, k, alpha
+
+
+@pytest.mark.parametrize("method", ["standard_step", "ivp"])
+def test_a_backwater_where_the_upper_critical_depth_vanishes_along_the_segment(method):
+    # A main channel with sloping banks between flat floodplains (zone edges at the tops of the banks, no
+    # walls) narrows from 12 m (one critical depth at Q = 60) to 10 m (two) over 300 m, under 3.0 m of
+    # tailwater. Going upstream the upper critical depth and the maximum of specific energy beside it vanish
+    # together and the two subcritical branches they bounded become one: the backwater rises on without a
+    # break. (It used to stop where the upper critical depth vanished and hold that depth, flagged critical,
+    # to the head of the segment.)
+    # Reference: the sections between are gvflow's documented interpolation (gvflow.sections.
+    # matched_parameters), taken as given; their hydraulics by shapely's clipping (above), and the
+    # standard step written out: Sf from the mean conveyance, and the transition loss C |Δ(alpha V²/2g)|,
+    # 0.1 where the velocity head grows downstream and 0.3 where it falls (as in
+    # tests/test_changing_sections.py), solved by brentq station by station.
+    from gvflow.sections import matched_parameters
+
+    def section(z, w, fp=200.0):
+        return gv.Surveyed(offset=[-fp - 5, -fp, -w / 2 - 1, -w / 2, w / 2, w / 2 + 1, fp, fp + 5],
+                           elevation=[z + 4, z + 2, z + 2, z, z, z + 2, z + 2, z + 4], roughness=[0.08, 0.03, 0.08],
+                           zone_edges=[-w / 2 - 1, w / 2 + 1])
+
+    length, s0, tail, cc, ce = 300.0, 0.001, 3.0, 0.1, 0.3
+    up, down = section(100.0 + s0 * length, 12.0), section(100.0, 10.0)
+    assert len(gv.critical_depths(up, Q)) == 1 and len(gv.critical_depths(down, Q)) == 2
+    reach = gv.Reach.from_sections(stations=[0.0, length], sections=[up, down], discharge=Q,
+                                   downstream=gv.FixedDepth(tail), contraction=cc, expansion=ce)
+    p = reach.solve(method=method, n_steps=20)
+
+    _, par_up, par_dn = matched_parameters(up, down)
+
+    def state(y, x):
+        par = (1 - x / length) * par_up + x / length * par_dn
+        m, nz = int(round(par[0])), int(round(par[1]))
+        a, k, alpha = _clipped_hydraulics(par[2:2 + m], par[2 + m:2 + 2 * m], par[2 + 2 * m:3 + 2 * m + nz],
+                                          [0.08, 0.03, 0.08], y)
+        return alpha * Q ** 2 / (2 * G * a ** 2), k
+
+    ys = [tail]
+    for x_up, x_dn in zip(p.x[::-1][1:], p.x[::-1][:-1], strict=True):
+        hv2, k2 = state(ys[-1], x_dn)
+        h2 = s0 * (length - x_dn) + ys[-1] + hv2
+
+        def resid(y, x_up=x_up, hv2=hv2, k2=k2, h2=h2, dx=x_dn - x_up):
+            hv1, k1 = state(y, x_up)
+            loss = (cc if hv2 > hv1 else ce) * abs(hv2 - hv1)
+            return s0 * (length - x_up) + y + hv1 - (h2 + dx * (2 * Q / (k1 + k2)) ** 2 + loss)
+
+        ys.append(brentq(resid, 2.3, 3.5, xtol=1e-14))
+    ref = np.array(ys[::-1])
+    tol = 1e-9 if method == "standard_step" else 2e-3  # (ivp integrates the differential form)
+    np.testing.assert_allclose(p.depth, ref, rtol=0, atol=tol)
+    assert ref[0] < 2.75  # the backwater falls through the stretch where the upper critical depth vanished
+    assert (p.regime == "subcritical").all() and p.profile_types == ["M1"]
 
 
 def test_ivp_through_changing_compound_sections_stops_where_the_loss_makes_the_equation_singular():

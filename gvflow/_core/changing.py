@@ -32,7 +32,7 @@ import math
 import numpy as np
 
 from ._jit import kernel, scalar_kernel
-from .codes import DARCY
+from .codes import DARCY, SUB, SUPER
 from .flow import branch_limits, critical_depth, proportional, specific_energy, specific_force, velocity_head
 from .geometry import SURVEYED, geometry, max_depth
 from .march import _ratio, evenly_spaced, extrapolate, station_state, station_values, step_from, stop_march
@@ -506,21 +506,21 @@ def critical_along(cb, dn, fl, q, t, alpha, hint, out):
 
 
 @kernel
-def left_branch(cb, dn, fl, q, t, alpha, y, n_valid, branch, carried, out_j, out_far):
-    """Where the march of scenario s (depths y[s, :n_valid[s]] at fractions t) left the branch it started on:
-    the first station whose depth's branch (:func:`~gvflow._core.flow.branch_limits`) is bounded by another
-    critical depth than ``carried[s, j]`` (:func:`critical_along`), or m where none did; ``out_far[s]`` the
-    far limit of the branch at the station before."""
+def left_branch(cb, dn, fl, q, t, alpha, y, n_valid, branch, out_j, out_far):
+    """Where the march of scenario s (depths y[s, :n_valid[s]] at fractions t) left the branch it was on: the
+    first station j whose depth lies past the far limit at j of the branch holding the depth before
+    (:func:`~gvflow._core.flow.branch_limits`: a maximum of specific energy, which a profile cannot pass), or
+    m where none did; ``out_far[s]`` that limit. Where the section changes so that a critical depth and the
+    maximum beside it vanish together, the two branches they bounded become one and the profile stays on
+    it."""
     for s in range(q.shape[0]):
         out_j[s] = t.shape[0]
         out_far[s] = math.nan
-        far_prev = math.nan
-        for j in range(n_valid[s]):
+        for j in range(1, n_valid[s]):
             ch = channel_at(cb, dn, s, t[j])
             qj = q[s] + dn.added * t[j]
-            near, far, _ = branch_limits(ch, fl, qj, alpha, y[s, j], branch)
-            if abs(near - carried[s, j]) > 1e-6 * carried[s, j]:
+            _, far, _ = branch_limits(ch, fl, qj, alpha, y[s, j - 1], branch)
+            if 0.0 < far < math.inf and ((branch == SUB and y[s, j] > far) or (branch == SUPER and y[s, j] < far)):
                 out_j[s] = j
-                out_far[s] = far_prev
+                out_far[s] = far
                 break
-            far_prev = far
