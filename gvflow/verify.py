@@ -206,6 +206,13 @@ def depth_at_distance(section, discharge, slope, roughness, start_depth, distanc
         When the profile reaches critical depth (or zero depth) before that
         distance.
 
+    Notes
+    -----
+    Far along a profile that tends to normal depth the depth is normal depth
+    to within round-off of the friction slope; there the answer is the depth
+    the quadrature last resolved, within about 1e-7 of normal depth
+    (relative).
+
     Examples
     --------
     >>> import gvflow as gv
@@ -240,9 +247,16 @@ def _invert(f: _Integrand, y0: float, d: float, rtol: float) -> float:
         # the length to normal depth is infinite: bracket by closing in on it geometrically
         edge = y0
         for k in range(1, 15):
-            edge = limit + (y0 - limit) * 10.0 ** (-k)
-            if abs(f.length(y0, edge, rtol)) >= abs(d):
-                break
+            last, edge = edge, limit + (y0 - limit) * 10.0 ** (-k)
+            try:
+                if abs(f.length(y0, edge, rtol)) >= abs(d):
+                    break
+            except ConvergenceError:
+                # within some 1e-9 of normal depth S0 - Sf is round-off and the quadrature cannot close in
+                # further; the profile is past ``last``, nearer normal depth than it: that is the depth
+                if abs(last - limit) <= 1e-6 * limit:
+                    return last
+                raise
         finite_end = False
     elif math.isinf(limit):
         edge = 2.0 * y0

@@ -141,3 +141,21 @@ def test_verify_errors_are_clear():
     with pytest.raises(gv.InvalidInputError, match="positive bed slope"):
         gv.direct_integration_length(sec, 10.0, 0.0, 0.015, 2.0, 1.5)
     assert math.isfinite(gv.profile_length(sec, 10.0, 0.001, 0.015, 0.3, gv.critical_depth(sec, 10.0)))
+
+
+@pytest.mark.parametrize("section, start", [(gv.Rectangular(width=2.0), 0.3666), (gv.Circular(diameter=1.0), 0.8)])
+def test_depth_far_along_a_backwater_is_normal_depth(section, start):
+    # An M1 traced 5 km upstream has reached normal depth to round-off; scipy's solve_ivp (LSODA) of
+    # dy/dx = (S0 - Sf)/(1 - Fr²) with the public section and friction functions gives the reference
+    # (Chow 1959, eq. 9-8). It used to raise a ConvergenceError once the quadrature met round-off there.
+    from scipy.integrate import solve_ivp
+
+    q, s0, n = 0.5, 0.001, 0.013
+
+    def rhs(x, y):
+        sf = (q / gv.conveyance(section, y[0], n)) ** 2
+        return [(s0 - sf) / (1.0 - gv.froude_number(section, q, y[0]) ** 2)]
+
+    for d in (-1000.0, -5000.0):
+        ref = solve_ivp(rhs, [0.0, d], [start], rtol=1e-12, atol=1e-14, method="LSODA").y[0, -1]
+        assert gv.depth_at_distance(section, q, s0, n, start, d) == pytest.approx(ref, rel=1e-7)
