@@ -416,6 +416,33 @@ def test_pool_discharge_needs_a_pool_and_water_above_it():
         gv.solve_discharge_from_pool(held)
 
 
+def test_pool_discharge_into_a_pipe_just_below_its_crown():
+    # A pool 0.89 m above the invert of a 0.9 m pipe (mild, 100 m, normal depth downstream): the entrance
+    # depth is normal depth, so yn(Q) + (1 + ke) Q²/(2 g A²) = H (energy from the pool, Chow 1959 ch. 10;
+    # from memory), solved here with the circle's area and Manning written out and brentq: 0.8009 m³/s. Its
+    # bracket starts at the largest entrance discharge (0.878), above what the pipe carries in uniform flow
+    # (0.871): the search used to step down past the root and give up.
+    d, s0, n, ke = 0.9, 0.002, 0.013, 0.5
+
+    def area_perimeter(y):
+        th = 2 * math.acos(1 - 2 * y / d)
+        return d * d * (th - math.sin(th)) / 8, d * th / 2
+
+    def manning(y):
+        a, p = area_perimeter(y)
+        return a * (a / p) ** (2 / 3) * math.sqrt(s0) / n
+
+    def head_needed(q):
+        y = brentq(lambda z: manning(z) - q, 1e-9, 0.938 * d, xtol=1e-15)
+        return y + (1 + ke) * q * q / (2 * G * area_perimeter(y)[0] ** 2)
+
+    q_ref = brentq(lambda q: head_needed(q) - 0.89, 0.05, 0.86, xtol=1e-14)
+    reach = gv.Reach(segments=[gv.Segment(length=100.0, slope=s0, section=gv.Circular(diameter=d), roughness=n)],
+                     discharge=0.1, upstream=gv.Pool(level=s0 * 100.0 + 0.89, entrance_loss=ke),
+                     downstream=gv.UniformFlow())
+    assert gv.solve_discharge_from_pool(reach).discharge == pytest.approx(q_ref, rel=1e-8)
+
+
 # --------------------------------------------------------------------------------------------
 # sluice gate report
 # --------------------------------------------------------------------------------------------

@@ -1002,11 +1002,28 @@ def solve_discharge_from_pool(reach, *, method="standard_step", n_steps: int = 1
             last, hi = exc, 0.8 * hi
     else:
         raise NoSolutionError(f"the reach cannot be solved for any discharge up to {q_max:.6g}: {last}")
+    if f_hi < 0 and last is not None:
+        # the root may lie between the largest discharge solved and the one that failed: bisect that gap until
+        # the residual turns or the gap closes (the reach stops being solvable at a discharge in it: for a
+        # conduit, the largest it carries in uniform flow)
+        bad = hi / 0.8
+        for _ in range(50):
+            if bad - hi <= 1e-12 * bad:
+                break
+            mid = 0.5 * (hi + bad)
+            try:
+                f_mid = residual(solve(mid))
+            except GVFlowError as exc:
+                last, bad = exc, mid
+                continue
+            hi, f_hi = mid, f_mid
+            if f_hi >= 0:
+                break
     if f_hi < 0:
         if last is not None:
             raise NoSolutionError(
                 f"the pool would deliver more than {hi:.6g}, the largest discharge the reach can be solved for "
-                f"(at {hi / 0.8:.6g}: {last})")
+                f"(above it: {last})")
         if f_hi < -1e-9 * head:
             raise ConvergenceError(
                 f"the entrance energy at the largest discharge the pool can pass ({hi:.6g}) falls {-f_hi:.3g} short "
