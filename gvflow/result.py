@@ -180,23 +180,27 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
     ends = {k: [] for k in range(nseg)}
     for k, x_up, x_down in runs:
         ends[k] += [x_up, x_down]
+    starts = reach.boundaries[:-1]
+    first, last = np.full(nseg, np.inf), np.full(nseg, -np.inf)  # where each segment's full water begins and ends
     for j in range(x.size - 1):
-        k = seg[j]
-        if seg[j + 1] != k or not (full[j] or full[j + 1]):
+        k = seg[j + 1]
+        # an interval belongs to one segment: both stations in it, or the junction station it shares with the
+        # segment above (kept once in a profile) and the segment's first station below it
+        if not (full[j] or full[j + 1]) or (seg[j] != k and x[j] != starts[k]):
             continue
         xa, xb = x[j], x[j + 1]
-        if full[j] and full[j + 1]:
-            lengths[k] += xb - xa
-            continue
-        inside = [t for t in ends[k] if xa <= t <= xb]
-        t = inside[0] if inside else 0.5 * (xa + xb)
-        lengths[k] += (xb - t) if full[j + 1] else (t - xa)
+        if not (full[j] and full[j + 1]):
+            inside = [t for t in ends[k] if xa <= t <= xb]
+            t = inside[0] if inside else 0.5 * (xa + xb)
+            xa, xb = (t, xb) if full[j + 1] else (xa, t)
+        lengths[k] += xb - xa
+        first[k], last[k] = min(first[k], xa), max(last[k], xb)
     notes = []
     for k in (lengths > 0).nonzero()[0]:
         sel = (seg == k) & full
         h = y[sel] - crown[k]
         xs = x[sel]
-        notes.append(note(float(xs.min()), "surcharge", k=k, length=lengths[k], x_end=xs.max(), head=h.max(),
+        notes.append(note(float(first[k]), "surcharge", k=k, length=lengths[k], x_end=last[k], head=h.max(),
                           x_head=xs[np.argmax(h)],
                           sf_full=float(sol.segs[k].friction_slope(np.full(sol.segs[k].n, crown[k]))[i])))
     return lengths, notes

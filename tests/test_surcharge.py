@@ -159,6 +159,10 @@ def test_free_surface_meets_the_full_flow_line_continuously(method):
     assert p.surcharged[p.segment == 0].all()
     assert not p.surcharged[p.segment == 2].any()
     assert p.surcharged_lengths[k] == pytest.approx(x_t - p.reach.boundaries[k], abs=1e-9)
+    # the note on it names the same stretch, from the crossing, not from the station after it
+    note_k = [c for c in p.controls if c.kind == "surcharge" and f"segment {k} runs full" in c.text]
+    assert len(note_k) == 1 and note_k[0].x == pytest.approx(p.reach.boundaries[k], abs=1e-9)
+    assert f"to {x_t:.2f} m" in note_k[0].text
     # the free surface tends to the crown: the last free depth is within a station's rise of it
     assert d - y_free < 0.05 * d
     # the profile types end where the pipe fills
@@ -182,6 +186,21 @@ def test_tailwater_at_the_crown_fills_the_whole_pipe(kw, offset):
     assert p.depth[0] == pytest.approx(head, abs=tol)
     assert p.surcharged_lengths[0] == pytest.approx(length, abs=tol)
     assert p.surcharged[:-1].all()
+
+
+def test_a_full_segment_below_another_counts_its_whole_length():
+    # every station of two 0.9 m pipes stands above the crown (tailwater 3 m, Q above full capacity): each
+    # runs full over its whole length; the first step below the junction used to be left out (59.4 of 60 m)
+    pipe = gv.Circular(diameter=0.9)
+    reach = gv.Reach(segments=[gv.Segment(length=80.0, slope=0.004, section=pipe, roughness=0.013),
+                               gv.Segment(length=60.0, slope=0.03, section=pipe, roughness=0.013)],
+                     discharge=3.0, downstream=gv.FixedDepth(3.0))
+    p = reach.solve()
+    assert p.surcharged.all()
+    np.testing.assert_array_equal(p.surcharged_lengths, [80.0, 60.0])
+    notes = [c for c in p.controls if c.kind == "surcharge"]
+    assert [(c.x, round(c.x + float(re.search(r"over ([0-9.]+)", c.text).group(1)), 6)) for c in notes] == \
+        [(0.0, 80.0), (80.0, 140.0)]
 
 
 def test_methods_agree_on_the_surcharged_stretch():
