@@ -113,17 +113,26 @@ def check_segments(reach, segs, sf_c, coef=None) -> None:
     per_m = units.length_per_metre
     for k, (s, batch) in enumerate(zip(reach.segments, segs, strict=True)):
         _check_depths(k, s, batch, batch.discharge, units, per_m)
-        _check_critical_slope(k, s, np.asarray(sf_c[k], dtype=float))
+        _check_critical_slope(k, s, np.asarray(sf_c[k], dtype=float), batch, units)
     _warn_unusual(reach.segments, coef)
     _warn_mixed_units(segs, units.length, units.g)
 
 
-def _check_critical_slope(k, s, sf_c):
-    """The friction slope at critical depth (the critical slope) must lie in :data:`CRITICAL_SLOPE_RANGE`."""
+def _check_critical_slope(k, s, sf_c, batch, units):
+    """The friction slope at critical depth (the critical slope) must lie in :data:`CRITICAL_SLOPE_RANGE`.
+    In a closed conduit a discharge far above what it carries puts critical depth at (or within round-off
+    of) the crown, where that slope is the full-flow friction slope: one above the range there points at
+    the discharge first."""
     lo, hi = CRITICAL_SLOPE_RANGE
     bad = ~((sf_c >= lo) & (sf_c <= hi))
     if bad.any():
         value = float(sf_c[bad][0])
+        i = int(np.flatnonzero(bad)[0])
+        if s.section.closed and value > hi:
+            raise InvalidInputError(
+                f"discharge: {batch.discharge[i]:.4g} {units.discharge} is far more than {s.section!r} of segment "
+                f"{k} carries: near its crown the friction slope would be {value:.4g}; check the discharge and its "
+                f"unit, the conduit's size, and its roughness {s.roughness!r}")
         what = "smoother" if not value >= lo else "rougher"
         raise InvalidInputError(
             f"segments.{k}.roughness: {s.roughness!r} gives a critical slope (friction slope at critical depth) "
@@ -215,6 +224,28 @@ def _warn_unusual(segments, coef):
         warn(f"slope: bed slope above {STEEP_SLOPE:g} ({', '.join(steep)}), where the small-slope assumptions "
              "(depth measured vertically, hydrostatic pressure) start to err; depths are vertical depths and "
              "a jump's sequent depth is taken from the level-floor momentum balance")
+
+
+#: a grade line more than this many conduit heights above the crown is no sewer's or culvert's: a warning
+FULL_HEAD_RISES = 100.0
+
+
+def warn_pressure_heads(reach, bounds, depth) -> None:
+    """Warn where a conduit running full has its grade line more than :data:`FULL_HEAD_RISES` heights above
+    its crown: legal, but no real system stands so, and a discharge in the wrong unit gives it."""
+    L = reach.resolved_units.length
+    high = []
+    for k, seg in enumerate(reach.segments):
+        top = seg.section.max_depth
+        if not top < np.inf:
+            continue
+        i0, m = bounds[k]
+        head = np.nanmax(depth[:, i0:i0 + m], initial=-np.inf) - top
+        if head > FULL_HEAD_RISES * top:
+            high.append(f"segment {k}: {head:.4g} {L}, {head / top:.3g} times its height")
+    if high:
+        warn(f"discharge: the grade line of a conduit running full stands far above its crown ({'; '.join(high)}); "
+             "check the discharge and its unit, and the conduit's size")
 
 
 def warn_above_surveys(reach, x, bounds, depth) -> None:

@@ -30,7 +30,7 @@ from ._core.records import Channel
 from ._engine import core
 from ._near_critical import near_critical_notes
 from ._notes import note
-from ._plausible import check_reach, check_segments, note_sloping_jumps, warn_above_surveys
+from ._plausible import check_reach, check_segments, note_sloping_jumps, warn_above_surveys, warn_pressure_heads
 from ._validate import positive_array
 from .controls import EndState
 from .errors import ControlError, ConvergenceError, InvalidInputError, NoSolutionError
@@ -556,6 +556,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     if up.ctrl is not None:
         up.ctrl.check_solved(up.state, gov.depth[:, 0])
     warn_above_surveys(reach, st.x, st.bounds, gov.depth)
+    warn_pressure_heads(reach, st.bounds, gov.depth)
     # (the notes are written when first read: keep only the gates of the subcritical pass for them)
     return _solution(st, down, _SubPass(None, None, sub.gate_jet, sub.gate_submerged), up, gov)
 

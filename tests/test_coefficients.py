@@ -216,7 +216,7 @@ ALLOWED_LITERALS = {
                                          8: "figure size / font size", 25: "plot marker spacing"},
     "gvflow/jumps.py": {8.0: "Belanger's 8 F²"},
     "gvflow/controls/structures.py": {0.1: "bracket step", 0.8: "bracket step", 15: "bracket iterations",
-                                      40: "bracket iterations",
+                                      40: "bracket iterations", 50: "bisection cap",
                                       90.0: "default notch angle", 100: "default steps / bounds",
                                       200: "iteration cap"},
 }

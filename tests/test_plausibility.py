@@ -59,6 +59,24 @@ def test_depth_many_times_the_width_warns_of_mixed_units():
     assert len(caught) == 1 and "mixed units" in str(caught[0].message)
 
 
+def test_a_discharge_far_above_a_pipe_names_the_discharge():
+    # 0.8 m³/s entered in l/s for a 0.9 m sewer: the message names the discharge (n = 0.013 is an ordinary
+    # pipe), and 200 m³/s, which solves, warns of a grade line some 24 km above the crown: the closed form
+    # D + L (Sf_full - S0) with Manning full flow, Sf_full = (n Q / (A R^(2/3)))², A = pi D²/4, R = D/4
+    d, s0, n, length = 0.9, 0.005, 0.013, 200.0
+
+    def reach(q):
+        return gv.Reach(segments=[gv.Segment(length=length, slope=s0, section=gv.Circular(diameter=d),
+                                             roughness=n)], discharge=q, downstream=gv.FixedDepth(1.3))
+
+    with pytest.raises(gv.InvalidInputError, match=r"^discharge: 800 m³/s is far more than Circular"):
+        reach(800.0).solve()
+    with pytest.warns(gv.GVFlowWarning, match=r"stands far above its crown \(segment 0: 2.441e\+04 m"):
+        p = reach(200.0).solve()
+    sf = (n * 200.0 / (math.pi * d * d / 4 * (d / 4) ** (2 / 3))) ** 2
+    assert p.depth[0] == pytest.approx(1.3 + length * (sf - s0), rel=1e-12)
+
+
 def test_demo_and_everyday_reaches_are_quiet():
     assert _solve_recording(gv.demo_reach())[1] == []
     assert _solve_recording(gv.demo_reach(), method="ivp")[1] == []
