@@ -257,9 +257,14 @@ def _kfactor(section, depth, roughness, units, discharge):
     flat_y = np.ascontiguousarray(y.reshape(-1))
     out = np.empty(flat_y.size)
     ch = core_channel(section, roughness)
-    core("arrays", flat_y.size * pass_cost(ch.kind, ch.par)).conveyance_many(
-        ch, fluid(units), np.ascontiguousarray(q.reshape(-1), dtype=float), flat_y, out)
+    with np.errstate(over="ignore"):
+        core("arrays", flat_y.size * pass_cost(ch.kind, ch.par)).conveyance_many(
+            ch, fluid(units), np.ascontiguousarray(q.reshape(-1), dtype=float), flat_y, out)
     if not np.all(np.isfinite(out)):
+        i = int(np.flatnonzero(~np.isfinite(out))[0])
+        if out[i] == np.inf:
+            raise InvalidInputError(f"depth: the conveyance at depth {flat_y[i]:.4g} is beyond the range of floating "
+                                    "point numbers; check the depth and its unit")
         raise ConvergenceError("Colebrook-White iteration did not converge", iterations=50)
     return out.reshape(y.shape)
 

@@ -310,7 +310,12 @@ def _station_values(section, discharge, depth, units, alpha, loop, check=True):
     shape, (qf, yf) = _flat(discharge=q, depth=y)
     out = np.empty(qf.size)
     ch = core_channel(section)
-    getattr(core("arrays", qf.size * pass_cost(ch.kind, ch.par)), loop)(ch, fluid(u), qf, yf, alpha, out)
+    with np.errstate(over="ignore"):
+        getattr(core("arrays", qf.size * pass_cost(ch.kind, ch.par)), loop)(ch, fluid(u), qf, yf, alpha, out)
+    if check and not np.all(np.isfinite(out)):
+        i = int(np.flatnonzero(~np.isfinite(out))[0])
+        raise InvalidInputError(f"discharge {qf[i]:.4g} and depth {yf[i]:.4g} give a value beyond the range of "
+                                "floating point numbers; check them and their units")
     if check:
         section.warn_above_ends(yf, "depth")
     return scalar_or_array(out.reshape(shape))

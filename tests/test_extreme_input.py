@@ -124,6 +124,16 @@ def _every_number(value):
     return walk(json.loads(_demo_text()))
 
 
+@pytest.mark.parametrize("call, match", [
+    (lambda sec: gv.conveyance(sec, 1e150, 0.015), r"^depth: the conveyance at depth 1e\+150 is beyond"),
+    (lambda sec: gv.specific_force(sec, 5.0, 1e200), r"^discharge 5 and depth 1e\+200 give a value beyond"),
+])
+def test_a_result_beyond_floating_point_is_an_error_naming_the_input(call, match):
+    # (a Manning conveyance once said "Colebrook-White iteration did not converge"; a specific force was inf)
+    with pytest.raises(gv.InvalidInputError, match=match):
+        call(gv.Trapezoidal(bottom_width=2.0, side_slope=1.0))
+
+
 def test_parse_reach_refuses_deep_nesting():
     with pytest.raises(ReachFileError, match="nested too deeply"):
         gv.parse_reach("[" * 10_000 + "]" * 10_000)
