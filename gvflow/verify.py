@@ -208,10 +208,9 @@ def depth_at_distance(section, discharge, slope, roughness, start_depth, distanc
 
     Notes
     -----
-    Far along a profile that tends to normal depth the depth is normal depth
-    to within round-off of the friction slope; there the answer is the depth
-    the quadrature last resolved, within about 1e-7 of normal depth
-    (relative).
+    Far along a profile that tends to normal depth the answer is taken within
+    1e-8 of normal depth (relative), or, where round-off in S0 - Sf stops the
+    quadrature before that, the depth it last resolved (within 1e-6).
 
     Examples
     --------
@@ -232,6 +231,11 @@ def depth_at_distance(section, discharge, slope, roughness, start_depth, distanc
     return scalar_or_array(out)
 
 
+#: depth_at_distance closes in on normal depth to within this fraction of it and no further: past that the
+#: depth is normal depth for any purpose, and S0 - Sf nears round-off
+_NORMAL_CLOSE = 1e-8
+
+
 def _invert(f: _Integrand, y0: float, d: float, rtol: float) -> float:
     if d == 0.0:
         return y0
@@ -248,15 +252,20 @@ def _invert(f: _Integrand, y0: float, d: float, rtol: float) -> float:
         edge = y0
         for k in range(1, 15):
             last, edge = edge, limit + (y0 - limit) * 10.0 ** (-k)
+            final = abs(edge - limit) <= _NORMAL_CLOSE * limit
+            if final:
+                edge = limit + math.copysign(_NORMAL_CLOSE * limit, y0 - limit)
             try:
                 if abs(f.length(y0, edge, rtol)) >= abs(d):
                     break
             except ConvergenceError:
-                # within some 1e-9 of normal depth S0 - Sf is round-off and the quadrature cannot close in
-                # further; the profile is past ``last``, nearer normal depth than it: that is the depth
+                # close to normal depth S0 - Sf is round-off and the quadrature cannot close in further; the
+                # profile is past ``last``, nearer normal depth than it: that is the depth
                 if abs(last - limit) <= 1e-6 * limit:
                     return last
                 raise
+            if final:
+                return edge  # past it the profile is normal depth to within _NORMAL_CLOSE
         finite_end = False
     elif math.isinf(limit):
         edge = 2.0 * y0

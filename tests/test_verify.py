@@ -143,19 +143,27 @@ def test_verify_errors_are_clear():
     assert math.isfinite(gv.profile_length(sec, 10.0, 0.001, 0.015, 0.3, gv.critical_depth(sec, 10.0)))
 
 
-@pytest.mark.parametrize("section, start", [(gv.Rectangular(width=2.0), 0.3666), (gv.Circular(diameter=1.0), 0.8)])
-def test_depth_far_along_a_backwater_is_normal_depth(section, start):
+@pytest.mark.parametrize("shape, start", [("rectangle", 0.3666), ("circle", 0.8)])
+def test_depth_far_along_a_backwater_is_normal_depth(shape, start):
     # An M1 traced 5 km upstream has reached normal depth to round-off; scipy's solve_ivp (LSODA) of
-    # dy/dx = (S0 - Sf)/(1 - Fr²) with the public section and friction functions gives the reference
-    # (Chow 1959, eq. 9-8). It used to raise a ConvergenceError once the quadrature met round-off there.
+    # dy/dx = (S0 - Sf)/(1 - Q² T/(g A³)) (Chow 1959, eq. 9-8) with Manning and the geometry written out
+    # (a 2 m rectangle; a 1 m circle, A = D²(θ - sin θ)/8, P = D θ/2, T = D sin(θ/2), θ = 2 acos(1 - 2y/D))
+    # gives the reference. It used to raise a ConvergenceError once the quadrature met round-off there.
     from scipy.integrate import solve_ivp
 
     q, s0, n = 0.5, 0.001, 0.013
 
-    def rhs(x, y):
-        sf = (q / gv.conveyance(section, y[0], n)) ** 2
-        return [(s0 - sf) / (1.0 - gv.froude_number(section, q, y[0]) ** 2)]
+    def geometry(y):
+        if shape == "rectangle":
+            return 2.0 * y, 2.0 + 2.0 * y, 2.0
+        th = 2.0 * math.acos(1.0 - 2.0 * y)
+        return (th - math.sin(th)) / 8.0, th / 2.0, math.sin(th / 2.0)
 
-    for d in (-1000.0, -5000.0):
-        ref = solve_ivp(rhs, [0.0, d], [start], rtol=1e-12, atol=1e-14, method="LSODA").y[0, -1]
-        assert gv.depth_at_distance(section, q, s0, n, start, d) == pytest.approx(ref, rel=1e-7)
+    def rhs(x, y):
+        a, p, t = geometry(y[0])
+        sf = (n * q / (a * (a / p) ** (2 / 3))) ** 2
+        return [(s0 - sf) / (1.0 - q * q * t / (gv.SI.g * a ** 3))]
+
+    section = gv.Rectangular(width=2.0) if shape == "rectangle" else gv.Circular(diameter=1.0)
+    ref = solve_ivp(rhs, [0.0, -5000.0], [start], rtol=1e-12, atol=1e-14, method="LSODA").y[0, -1]
+    assert gv.depth_at_distance(section, q, s0, n, start, -5000.0) == pytest.approx(ref, rel=1e-7)
