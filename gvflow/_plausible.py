@@ -31,6 +31,7 @@ from ._warn import warn
 from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
 from .errors import InvalidInputError
 from .friction import Manning
+from .units import MAX_DEPTH_M
 
 #: Longest reach accepted [m]: ten thousand kilometres, longer than the longest river
 #: (about 6,700 km, from memory).
@@ -38,8 +39,6 @@ MAX_REACH_LENGTH_M = 1.0e7
 #: Shortest segment accepted, as a fraction of the reach length: positions carry about 16 significant
 #: digits, and a segment must span many of their last units to hold evenly spaced stations.
 MIN_SEGMENT_FRACTION = 1.0e-9
-#: Deepest critical or normal depth accepted [m] (ten kilometres: deeper than any channel or sea).
-MAX_DEPTH_M = 1.0e4
 #: Shallowest critical depth accepted [m]: far thinner than a molecule of water (about 3e-10 m), and
 #: still far above the floating-point floor. Not a physical bound on useful results (nothing that thin
 #: is open-channel flow) but the bound of what is computed: solvers probing small discharges (the pool
@@ -228,6 +227,25 @@ def _warn_unusual(segments, coef):
 
 #: a grade line more than this many conduit heights above the crown is no sewer's or culvert's: a warning
 FULL_HEAD_RISES = 100.0
+
+
+def check_solved_depths(reach, x, bounds, depth) -> None:
+    """Refuse a solved profile whose water stands deeper than :data:`MAX_DEPTH_M` in an open section (a
+    conduit running full is left to :func:`warn_pressure_heads`): no channel holds it, and some input (a
+    gate opening, a tailwater, a unit) is not what was meant."""
+    units = reach.resolved_units
+    y_max, L = MAX_DEPTH_M * units.length_per_metre, units.length
+    for k, seg in enumerate(reach.segments):
+        if seg.section.closed:
+            continue
+        i0, m = bounds[k]
+        deep = np.nanmax(depth[:, i0:i0 + m], axis=0, initial=-np.inf)
+        if np.any(deep > y_max):
+            j = int(np.argmax(deep))
+            raise InvalidInputError(
+                f"segments.{k}: the water would stand {deep[j]:.4g} {L} deep at x = {x[i0 + j]:.1f} {L}, more than "
+                f"any channel holds ({y_max:.4g} {L}); check what holds it up there (a gate opening, a control "
+                "downstream, the roughness) and the units")
 
 
 def warn_pressure_heads(reach, bounds, depth) -> None:

@@ -30,7 +30,14 @@ from ._core.records import Channel
 from ._engine import core
 from ._near_critical import near_critical_notes
 from ._notes import note
-from ._plausible import check_reach, check_segments, note_sloping_jumps, warn_above_surveys, warn_pressure_heads
+from ._plausible import (
+    check_reach,
+    check_segments,
+    check_solved_depths,
+    note_sloping_jumps,
+    warn_above_surveys,
+    warn_pressure_heads,
+)
 from ._validate import positive_array
 from .controls import EndState
 from .errors import ControlError, ConvergenceError, InvalidInputError, NoSolutionError
@@ -555,6 +562,7 @@ def solve_batch(reach, marcher, discharge, coef=None, n_steps: int = 100, max_st
     gov = _supercritical_pass(st, down, sub, up)
     if up.ctrl is not None:
         up.ctrl.check_solved(up.state, gov.depth[:, 0])
+    check_solved_depths(reach, st.x, st.bounds, gov.depth)
     warn_above_surveys(reach, st.x, st.bounds, gov.depth)
     warn_pressure_heads(reach, st.bounds, gov.depth)
     # (the notes are written when first read: keep only the gates of the subcritical pass for them)

@@ -43,6 +43,11 @@ def _length_per_metre(label: str, g: float) -> float:
     return g / _G_STANDARD
 
 
+#: Deepest water accepted anywhere [m] (ten kilometres: deeper than any channel or sea); see
+#: :mod:`gvflow._plausible` for the other bounds of what is computed.
+MAX_DEPTH_M = 1.0e4
+
+
 class Units(OwnValidationErrors, BaseModel):
     """A consistent system of units.
 

@@ -2,6 +2,7 @@
 jump located on a steep floor."""
 
 import math
+import re
 import warnings
 
 import numpy as np
@@ -75,6 +76,23 @@ def test_a_discharge_far_above_a_pipe_names_the_discharge():
         p = reach(200.0).solve()
     sf = (n * 200.0 / (math.pi * d * d / 4 * (d / 4) ** (2 / 3))) ** 2
     assert p.depth[0] == pytest.approx(1.3 + length * (sf - s0), rel=1e-12)
+
+
+def test_a_gate_opening_far_too_small_is_refused():
+    # a 1 µm opening passing 6 m³/s would hold a pool of q²/(2 g (Cc a)²) = 5.5e11 m behind it (energy to
+    # the vena contracta, Henderson 1966, §6.5; from memory): beyond any channel, at the head of a reach and
+    # between segments
+    rect = gv.Rectangular(width=3.0)
+
+    def seg(**kw):
+        return gv.Segment(length=200.0, slope=0.001, section=rect, roughness=0.015, **kw)
+
+    pool = re.escape(f"{(6.0 / 3.0) ** 2 / (2 * gv.SI.g * (0.61e-6) ** 2):.4g}")
+    with pytest.raises(gv.InvalidInputError, match=rf"^upstream.opening: .* {pool} m deep behind it"):
+        gv.Reach(segments=[seg()], discharge=6.0, upstream=gv.SluiceGate(opening=1e-6)).solve()
+    with pytest.raises(gv.InvalidInputError, match=rf"^segments.0: the water would stand {pool} m deep"):
+        gv.Reach(segments=[seg(), seg(gate=gv.SluiceGate(opening=1e-6))], discharge=6.0,
+                 downstream=gv.FixedDepth(2.0)).solve()
 
 
 def test_demo_and_everyday_reaches_are_quiet():

@@ -23,9 +23,10 @@ from pydantic import Field
 
 from .. import coefficients
 from .._models import SingleValueModel
-from ..errors import ControlError, NoSolutionError
+from ..errors import ControlError, InvalidInputError, NoSolutionError
 from ..sections import Rectangular, WideRectangular
 from ..structures.gates import gate_pool_depth, gate_sequent_depth
+from ..units import MAX_DEPTH_M
 
 __all__ = [
     "EndState",
@@ -321,8 +322,15 @@ class SluiceGate(Control):
 
     def check_solved(self, state, depth):
         """The pool behind a free gate must stand above its lip; a drowned gate holds the water below it
-        above the lip (:meth:`upstream_depth` raises otherwise)."""
-        self.upstream_depth(state, tailwater=np.where(self._drowned(depth), depth, np.nan))
+        above the lip (:meth:`upstream_depth` raises otherwise). A pool deeper than any channel holds
+        (:data:`gvflow.units.MAX_DEPTH_M`) means an opening far too small for the discharge."""
+        pool = self.upstream_depth(state, tailwater=np.where(self._drowned(depth), depth, np.nan))
+        y_max = MAX_DEPTH_M * state.units.length_per_metre
+        if np.any(pool > y_max):
+            raise InvalidInputError(
+                f"upstream.opening: {self!r} would hold the water {float(np.max(pool)):.4g} {state.units.length} "
+                f"deep behind it, more than any channel holds ({y_max:.4g} {state.units.length}): the opening is "
+                "far too small for the discharge; check it and its unit")
 
     def notes(self, state, depth):
         L = state.units.length
