@@ -59,6 +59,47 @@ def test_lateral_inflow_on_a_mild_channel_matches_direct_integration():
     np.testing.assert_allclose(p.velocity, p.discharge / (b * p.depth), rtol=1e-12)
 
 
+@pytest.mark.parametrize("method", ["standard_step", "ivp"])
+def test_lateral_inflow_in_a_compound_section_keeps_the_momentum_coefficient(method):
+    # A 10 m main channel 2 m deep (n 0.03) between 100 m floodplains (n 0.05) with vertical outer walls,
+    # all above bankfull: the momentum coefficient beta = A sum(K_i²/A_i)/K² varies with depth (Chow 1959,
+    # §2-7), so M = beta Q²/(g A) + A ȳ, and the inflow, which brings no momentum along the channel, gives
+    # dM/dx = A (S0 - Sf), i.e. dy/dx = (S0 - Sf - 2 beta Q q*/(g A²)) / (dM/dy / A) (Chow 1959, ch. 12, for
+    # beta = 1; from memory). Written out here with the rectangles' exact areas and Manning zone
+    # conveyances, dM/dy by central differences, integrated by scipy's solve_ivp. Both methods must solve
+    # this one equation (method="ivp" used the energy form with alpha, 6 mm off here).
+    from scipy.integrate import solve_ivp
+
+    s0, length, q0, qstar, tail = 5e-4, 400.0, 40.0, 0.05, 2.8
+    section = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
+                          roughness=[0.05, 0.03, 0.05], zone_edges=[0, 10])
+    reach = gv.Reach(segments=[gv.Segment(length=length, slope=s0, section=section, lateral_inflow=qstar)],
+                     discharge=q0, downstream=gv.FixedDepth(tail))
+
+    def zones(y):
+        h = y - 2.0
+        main, plain = (10.0 * y, 14.0, 0.03), (100.0 * h, 100.0 + h, 0.05)
+        return [(a, a ** (5 / 3) / (n * p ** (2 / 3))) for a, p, n in (main, plain, plain)]
+
+    def force_area_beta_k(y, q):
+        z = zones(y)
+        a, k = sum(v[0] for v in z), sum(v[1] for v in z)
+        beta = a * sum(ki * ki / ai for ai, ki in z) / k ** 2
+        return beta * q * q / (G * a) + 5.0 * y * y + 100.0 * (y - 2.0) ** 2, a, beta, k
+
+    def rhs(x, y):
+        q = q0 + qstar * x
+        _, a, beta, k = force_area_beta_k(y[0], q)
+        h = 1e-6 * y[0]
+        dmdy = (force_area_beta_k(y[0] + h, q)[0] - force_area_beta_k(y[0] - h, q)[0]) / (2 * h)
+        return [(s0 - (q / k) ** 2 - 2 * beta * q * qstar / (G * a * a)) / (dmdy / a)]
+
+    ref = solve_ivp(rhs, (length, 0.0), [tail], method="DOP853", rtol=1e-11, atol=1e-12, dense_output=True)
+    p = reach.solve(method, n_steps=400)
+    assert p.depth.min() > 2.0  # above bankfull throughout
+    np.testing.assert_allclose(p.depth, ref.sol(p.x)[0], rtol=2e-6)
+
+
 def test_lateral_inflow_carries_into_the_next_segment_and_sweeps():
     rect = gv.Rectangular(width=4.0)
     reach = gv.Reach(segments=[gv.Segment(length=200.0, slope=5e-4, section=rect, roughness=0.015,

@@ -475,8 +475,12 @@ def slope_at(cb, dn, fl, s, q, s0, alpha, cc, ce, t, dtdx, y):
     sf = (q / kk) * (q / kk)
     if qstar != 0.0:
         # spatially varied flow in one section (momentum form, module notes): the inflow brings no
-        # momentum along the channel, dy/dx = (S0 - Sf - 2 alpha Q q*/(g A²)) / (1 - Fr²)
-        return _ratio(s0 - sf - 2.0 * al * q * qstar / (fl.g * a * a), 1.0 - fr2), fr2
+        # momentum along the channel, so dM/dx = A (S0 - Sf) with M = beta Q²/(gA) + A ybar and dQ/dx = q*:
+        # dy/dx = (S0 - Sf - 2 beta Q q*/(g A²)) / (dM/dy / A), the same balance as :func:`momentum_step`
+        # (dM/dy / A = 1 - Q² T/(g A³) where beta is 1; by central differences where beta varies)
+        hh = 1e-6 * y
+        den = (specific_force(ch, fl, q, y + hh, alpha) - specific_force(ch, fl, q, y - hh, alpha)) / (2.0 * hh * a)
+        return _ratio(s0 - sf - 2.0 * be * q * qstar / (fl.g * a * a), den), 1.0 - den
     h = 1e-6
     tp = min(t + h, 1.0)
     tm = max(t - h, 0.0)
