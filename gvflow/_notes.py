@@ -111,6 +111,14 @@ def _several_critical(x, u, *, k, depths, x_end, used) -> str:
             "and the exchange with the main channel is left out): check the result with a finer spacing")
 
 
+def _untraced(x, u, *, k, x_end) -> str:
+    return (f"from x = {x:.2f} to {x_end:.2f} {u.length} in segment {k}, where the section changes, no depth on the "
+            "profile's branch balances the energy of the water beside it (a choke, or the limit of a branch of a "
+            "compound section): the depths shown there are each station's critical depth, not a traced profile. "
+            "The flow passes critical depth there and would run supercritical below it, to a jump, which is not "
+            "traced inside a changing segment: add sections between, or check that stretch by hand")
+
+
 def _choke(x, u, *, k, depth, yn) -> str:
     return (f"the section of segment {k + 1} passes the flow only through critical depth, which holds the water "
             f"upstream at {depth:.3f} {u.length}, above segment {k}'s normal depth {yn:.3f} {u.length}")
@@ -166,6 +174,7 @@ FORMATTERS = {
     "sections far apart": _sections_far_apart,
     "several critical depths": _several_critical,
     "choke": _choke,
+    "untraced stretch": _untraced,
     "near-critical flow": _near_critical,
     "gate": _gate,
     "submerged outlet": _submerged_outlet,

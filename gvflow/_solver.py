@@ -899,6 +899,7 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
     _conveyance_ratio_notes(notes, st.segments, segs, st.bounds, x, depth)
     _choke_notes(notes, segs, classes, st.bounds, x, depth, regime)
     _several_critical_notes(notes, segs, st.bounds, x, depth)
+    _untraced_notes(notes, segs, st.bounds, x, regime)
     _jump_energy_notes(notes, segs, gov.jumps)
     near_critical_notes(notes, segs, st.bounds, x, depth)
     for k, jet in sub.gate_jet.items():
@@ -998,6 +999,21 @@ def _several_critical_notes(notes, segs, bounds, x, depth):
                 notes[s].append(note(float(x[i0 + inside[0]]), "several critical depths", k=k,
                                      depths=tuple(float(v) for v in buf[:count]),
                                      x_end=float(x[i0 + inside[-1]]), used=float(seg.yc[s])))
+
+
+def _untraced_notes(notes, segs, bounds, x, regime):
+    """Note each stretch of a changing segment held at critical depth (two stations or more): there the
+    march found no depth on its branch that balances the energy (a choke between unlike sections, or the
+    limit of a branch of a compound section), and the depths are each station's critical depth
+    (:func:`_march_changing`), not a traced profile."""
+    for k, seg in enumerate(segs):
+        if seg.change is None:
+            continue
+        i0, m = bounds[k]
+        crit = regime[:, i0:i0 + m] == REGIME_CRITICAL
+        for s in np.flatnonzero((crit[:, :-1] & crit[:, 1:]).any(axis=1)).tolist():
+            run = np.flatnonzero(crit[s])
+            notes[s].append(note(float(x[i0 + run[0]]), "untraced stretch", k=k, x_end=float(x[i0 + run[-1]])))
 
 
 def _jump_energy_notes(notes, segs, jumps):

@@ -267,3 +267,27 @@ def test_sections_between_two_surveyed_ones_keep_their_point_count():
     for t in np.linspace(0.0, 1.0, 101):
         par = core("changing", 1).blend(kind, up, dn, t)
         assert par[0] == up[0] and par[1] == up[1]
+
+
+def test_a_choke_inside_a_changing_segment_is_named_not_passed_off_as_a_profile():
+    # A 4 m channel opening over 5 m into a 12 m one with floodplains, under a tailwater too low for the
+    # narrow section: the subcritical profile traced up from the tailwater finds no depth that balances the
+    # energy in the narrow part (the narrow section's least specific energy is above the water's energy;
+    # critical depths by gv.critical_depths). The stations there are held at critical depth, and the result
+    # must say that this stretch is not a traced profile.
+    def section(z, w, fp):
+        return gv.Surveyed(offset=[-fp - 5, -fp, -w / 2 - 1, -w / 2, w / 2, w / 2 + 1, fp, fp + 5],
+                           elevation=[z + 4, z + 2, z + 2, z, z, z + 2, z + 2, z + 4], roughness=[0.08, 0.03, 0.08],
+                           zone_edges=[-w / 2 - 1, w / 2 + 1])
+
+    narrow, wide = section(100.02, 4.0, 10.0), section(100.0, 12.0, 150.0)
+    q = 30.0
+    e_narrow = gv.specific_energy(narrow, q, gv.critical_depths(narrow, q)[0])  # its least specific energy
+    p = gv.Reach.from_sections(stations=[0, 5], sections=[narrow, wide], discharge=q,
+                               downstream=gv.FixedDepth(1.5)).solve()
+    assert p.energy_grade[-1] < 100.02 + e_narrow  # the water below cannot pass the narrow section subcritical
+    held = np.flatnonzero(p.regime == "critical")
+    assert held.size >= 2 and held[0] == 0
+    notes = [c for c in p.controls if c.kind == "untraced stretch"]
+    assert len(notes) == 1 and notes[0].x == 0.0 and f"to {p.x[held[-1]]:.2f} m" in notes[0].text
+    assert "not a traced profile" in notes[0].text
