@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._core.codes import REGIME_NAMES
+from ._core.codes import REGIME_NAMES, REGIME_SUB, REGIME_SUPER
 from ._engine import core
 from .profiles.classify import _zone_labels
 
@@ -50,8 +50,28 @@ def _labelled(sol, cls, k, r, x0, x1, med, ynk, yck) -> list[ProfilePiece]:
         crown = np.array([sg.section.max_depth for sg in sol.segs])
         ynk = np.where(no_yn & (cls == "mild"), crown[k], ynk)
     labels = _zone_labels(cls, med, ynk, yck).tolist()
+    # a piece keeps the regime its label names: in a changing segment the depths compared are the
+    # segment's, from one end, and may put a piece in a zone of the other regime; the piece's own regime
+    # then decides the side of critical depth and normal depth the rest
+    for j, (lab, rr) in enumerate(zip(labels, r.tolist(), strict=True)):
+        if (lab in _SUBCRITICAL_LABELS) != (rr == REGIME_SUB) and rr in (REGIME_SUB, REGIME_SUPER):
+            labels[j] = _regime_label(str(lab[0]), rr == REGIME_SUB, bool(med[j] > ynk[j]))
     return [ProfilePiece(lab, kk, a, b, REGIME_NAMES[rr])
             for lab, kk, rr, a, b in zip(labels, k.tolist(), r.tolist(), x0.tolist(), x1.tolist(), strict=True)]
+
+
+#: the profile types whose flow is subcritical (Chow 1959, §9-2); the others are supercritical
+_SUBCRITICAL_LABELS = frozenset(("M1", "M2", "S1", "C1", "H2", "A2"))
+
+
+def _regime_label(letter: str, sub: bool, above_normal: bool) -> str:
+    """The profile type of slope letter ``letter`` on the side of critical depth its regime puts it (``sub``),
+    and of normal depth ``above_normal`` where both zones of that regime exist (M1/M2, S2/S3)."""
+    if letter == "M":
+        return ("M1" if above_normal else "M2") if sub else "M3"
+    if letter == "S":
+        return "S1" if sub else ("S2" if above_normal else "S3")
+    return letter + ("1" if letter == "C" and sub else "2" if sub else "3")
 
 
 #: regime code given, for the piece search only, to stations where a closed conduit runs full: they

@@ -291,3 +291,22 @@ def test_a_choke_inside_a_changing_segment_is_named_not_passed_off_as_a_profile(
     notes = [c for c in p.controls if c.kind == "untraced stretch"]
     assert len(notes) == 1 and notes[0].x == 0.0 and f"to {p.x[held[-1]]:.2f} m" in notes[0].text
     assert "not a traced profile" in notes[0].text
+
+
+def test_a_supercritical_profile_through_changing_sections_is_labelled_by_its_zone():
+    # A steep 200 m segment between two compound sections, supercritical from a 1.0 m depth at its head:
+    # there yn < y < yc of the head's own section (gv.normal_depth, gv.critical_depths), and the profile is
+    # supercritical at every station, so it is an S2 (Chow 1959, §9-2). It was labelled S1 from the depths of
+    # the segment's downstream end.
+    def section(z, wl, wc, wr, dep=1.5):
+        return gv.Surveyed(offset=[-wl - 10, -wl, -wc / 2 - 2, -wc / 2, wc / 2, wc / 2 + 2, wr, wr + 10],
+                           elevation=[z + dep + 2, z + dep + 0.3, z + dep, z, z, z + dep, z + dep + 0.3, z + dep + 2],
+                           roughness=[0.07, 0.035, 0.06], zone_edges=[-wc / 2 - 2, wc / 2 + 2])
+
+    head, end = section(106.0, 25, 5, 25), section(102.0, 30, 7, 20)
+    q = 20.0
+    assert gv.normal_depth(head, q, 0.02) < 1.0 < gv.critical_depths(head, q)[0]
+    p = gv.Reach.from_sections(stations=[0, 200], sections=[head, end], discharge=q,
+                               upstream=gv.FixedDepth(1.0)).solve()
+    assert (p.regime == "supercritical").all()
+    assert p.profile_types == ["S2"]
