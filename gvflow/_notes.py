@@ -38,10 +38,14 @@ def _control_governs(x, u, *, control=None, assumed=None) -> str:
     return f"{control.describe(u)} governs"
 
 
-def _unused_control(x, u, *, end, control) -> str:
+def _unused_control(x, u, *, end, control, critical=None) -> str:
     if end == "upstream":
         return (f"upstream control {control.describe(u)} does not govern: the flow entering the reach is "
                 "subcritical and is governed from downstream")
+    if critical is not None:
+        return (f"downstream control {control.describe(u)} does not govern: it stands below critical depth "
+                f"{critical:.3f} {u.length}, so the flow leaves the reach through critical depth (a free overfall) "
+                "and the water below does not reach up to it")
     return (f"downstream control {control.describe(u)} does not govern: the flow leaving the reach is "
             "supercritical")
 

@@ -672,10 +672,15 @@ def _downstream_start(st: _Setup) -> _Downstream:
         y_down = np.asarray(ctrl.depth_at(end_state), dtype=float)
         # (a control above a conduit's crown submerges its outlet: the conduit starts full, see _sub_segment)
         governs_down = last.subcritical_at(y_down)
+        # a depth below the lowest critical depth cannot govern: the flow leaves through critical depth (a free
+        # overfall) and the control is unused, as at the end of a steep segment. A depth in the supercritical
+        # band between two critical depths of a compound section is refused: which way the water leaves is
+        # not clear there.
         must_be_sub = False if governs_down.all() else (code != _STEEP) & (code != _CRITICAL) & ~governs_down
         if must_be_sub is not False and must_be_sub.any():
-            i = int(np.flatnonzero(must_be_sub)[0])
-            if last.several_critical()[i]:
+            several = must_be_sub & last.several_critical() & ~(y_down < last.yc)
+            if several.any():
+                i = int(np.flatnonzero(several)[0])
                 near, far = (v[i] for v in last.branch_limits(y_down, SUPER))
                 raise ControlError(
                     f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, where the flow in this "
@@ -683,11 +688,6 @@ def _downstream_start(st: _Setup) -> _Downstream:
                     f"specific energy, and critical depth {near:.4g} the compound Froude number exceeds 1); the "
                     f"flow leaving a {classes[i, -1]} segment is subcritical, so its downstream control must give "
                     "a subcritical depth. For a free overfall or a drop use gv.CriticalFlow()")
-            raise ControlError(
-                f"downstream control {_one(ctrl, i)!r} gives depth {y_down[i]:.4g}, below critical depth "
-                f"{last.yc[i]:.4g} (discharge {st.q[i]:g}); the flow leaving a {classes[i, -1]} segment is "
-                "subcritical, so its downstream control must be at or above critical depth. For a free "
-                "overfall or a drop use gv.CriticalFlow()")
     if not np.isfinite(y_down).all():
         i = int(np.flatnonzero(~np.isfinite(y_down))[0])
         raise NoSolutionError(
@@ -914,7 +914,9 @@ def _control_notes(st: _Setup, down: _Downstream, sub: _SubPass, up: _Upstream, 
             if governs_down[s] and regime[s, -1] != REGIME_SUPER:
                 notes[s].append(note(float(x[-1]), "downstream control", control=_one(ctrl, s)))
             elif not governs_down[s]:
-                notes[s].append(note(float(x[-1]), "unused control", end="downstream", control=_one(ctrl, s)))
+                below = regime[s, -1] != REGIME_SUPER and down.y_down[s] < segs[-1].yc[s]
+                notes[s].append(note(float(x[-1]), "unused control", end="downstream", control=_one(ctrl, s),
+                                     critical=float(segs[-1].yc[s]) if below else None))
         _add_details(notes, ctrl, down.end_state, depth[:, -1], float(x[-1]))
     elif st.reach.downstream is None:
         for s in range(n):

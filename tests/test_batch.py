@@ -319,9 +319,12 @@ def test_one_coefficient_for_mixed_laws_is_rejected():
 
 
 def test_a_scenario_with_impossible_control_names_its_discharge():
-    # the tailwater is below critical depth for the larger discharge: a clear error, not NaN
-    with pytest.raises(gv.ControlError, match="discharge 30"):
-        chute(tailwater=1.5).sweep(discharge=[10.0, 30.0])
+    # a gate whose jet stands above critical depth for the smaller discharge (not for the larger): a clear
+    # error naming that scenario's discharge, not NaN
+    opening = 0.5 * (yc_rect(10.0) + yc_rect(30.0)) / 0.61
+    reach = chute().model_copy(update={"upstream": gv.SluiceGate(opening=opening)})
+    with pytest.raises(gv.ControlError, match="for discharge 10"):
+        reach.sweep(discharge=[30.0, 10.0])
 
 
 # -- progress ---------------------------------------------------------------------------------------
@@ -349,9 +352,9 @@ def test_progress_without_tqdm_warns_and_runs(monkeypatch):
 def small_reaches(count, bad=()):
     reaches = []
     for i in range(count):
-        tail = 0.05 if i in bad else 1.2 + 0.01 * (i % 10)
+        gate = gv.SluiceGate(opening=5.0) if i in bad else None  # (a jet far above critical depth)
         reaches.append(gv.Reach(segments=[seg(200.0, 0.001 + 0.0001 * (i % 5))], discharge=2.0 + 0.05 * i,
-                                downstream=gv.FixedDepth(tail)))
+                                upstream=gate, downstream=gv.FixedDepth(1.2 + 0.01 * (i % 10))))
     return reaches
 
 
@@ -371,7 +374,7 @@ def test_solve_many_in_order_with_errors_in_their_slots():
     assert len(out) == 12
     for i, (r, p) in enumerate(zip(reaches, out, strict=True)):
         if i in (3, 8):
-            assert isinstance(p, gv.ControlError) and "below critical depth" in str(p)
+            assert isinstance(p, gv.ControlError) and "is not below critical depth" in str(p)
         else:
             assert_same_profile(p, r.solve(n_steps=20), tol=0)
 

@@ -114,9 +114,10 @@ def test_missing_file_exits_2(tmp_path, capsys):
 
 
 def test_physically_impossible_reach_exits_2(tmp_path, capsys):
+    # a gate whose jet (0.61 x 2 m) stands above critical depth: it cannot release supercritical flow
     reach = gv.Reach(segments=[gv.Segment(length=100.0, slope=0.001, section=gv.Rectangular(width=3.0),
-                                          roughness=0.015)], discharge=5.0, downstream=gv.FixedDepth(0.2))
-    path = gv.write_reach(reach, tmp_path / "low_tailwater.json")
+                                          roughness=0.015)], discharge=5.0, upstream=gv.SluiceGate(opening=2.0))
+    path = gv.write_reach(reach, tmp_path / "wide_open_gate.json")
     assert "critical depth" in _main_error(capsys, "run", path)
 
 

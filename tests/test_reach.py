@@ -239,10 +239,16 @@ def test_energy_balance_closes_between_stations():
     assert np.max(np.abs(head[:-1] - head[1:] - loss)) < 1e-10
 
 
-def test_downstream_depth_below_critical_on_mild_segment_is_an_error():
-    reach = gv.Reach(segments=[seg(100.0, 0.001)], discharge=Q, downstream=gv.FixedDepth(0.4))
-    with pytest.raises(gv.ControlError, match="below critical depth"):
-        reach.solve()
+def test_downstream_depth_below_critical_on_a_mild_segment_is_unused():
+    # A tailwater below critical depth cannot hold subcritical flow: the water leaves through critical depth
+    # (a free overfall), as the API contract says of a control that cannot govern, and as at the end of a
+    # steep segment. The profile equals the one under gv.CriticalFlow().
+    low = gv.Reach(segments=[seg(100.0, 0.001)], discharge=Q, downstream=gv.FixedDepth(0.4)).solve()
+    brink = gv.Reach(segments=[seg(100.0, 0.001)], discharge=Q, downstream=gv.CriticalFlow()).solve()
+    np.testing.assert_array_equal(low.depth, brink.depth)
+    assert low.depth[-1] == pytest.approx(yc_rect(), rel=1e-12)
+    unused = [c for c in low.controls if c.kind == "unused control"]
+    assert len(unused) == 1 and "below critical depth 0.657 m" in unused[0].text
 
 
 def test_uniform_flow_control_on_horizontal_bed_is_an_error():

@@ -22,11 +22,11 @@ import numpy as np
 from pydantic import Field
 
 from .. import coefficients
+from .. import units as _units
 from .._models import SingleValueModel
 from ..errors import ControlError, InvalidInputError, NoSolutionError
 from ..sections import Rectangular, WideRectangular
 from ..structures.gates import gate_pool_depth, gate_sequent_depth
-from ..units import MAX_DEPTH_M
 
 __all__ = [
     "EndState",
@@ -325,7 +325,7 @@ class SluiceGate(Control):
         above the lip (:meth:`upstream_depth` raises otherwise). A pool deeper than any channel holds
         (:data:`gvflow.units.MAX_DEPTH_M`) means an opening far too small for the discharge."""
         pool = self.upstream_depth(state, tailwater=np.where(self._drowned(depth), depth, np.nan))
-        y_max = MAX_DEPTH_M * state.units.length_per_metre
+        y_max = _units.MAX_DEPTH_M * state.units.length_per_metre
         if np.any(pool > y_max):
             raise InvalidInputError(
                 f"upstream.opening: {self!r} would hold the water {float(np.max(pool)):.4g} {state.units.length} "
