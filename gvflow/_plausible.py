@@ -31,6 +31,7 @@ from ._warn import warn
 from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
 from .errors import InvalidInputError
 from .friction import Manning
+from .sections import Surveyed
 from .units import MAX_DEPTH_M
 
 #: Longest reach accepted [m]: ten thousand kilometres, longer than the longest river
@@ -235,6 +236,8 @@ def check_solved_depths(reach, x, bounds, depth) -> None:
     gate opening, a tailwater, a unit) is not what was meant."""
     units = reach.resolved_units
     y_max, L = MAX_DEPTH_M * units.length_per_metre, units.length
+    if depth.max() <= y_max:  # (the usual case at once; NaN, where a march stopped, goes on to the check)
+        return
     for k, seg in enumerate(reach.segments):
         if seg.section.closed:
             continue
@@ -270,12 +273,11 @@ def warn_above_surveys(reach, x, bounds, depth) -> None:
     """Warn where the solved water stands above the lower end point of a surveyed section: the survey stops
     there and the section is taken as closed by a vertical wall (:class:`gvflow.Surveyed`). Between two
     surveyed sections the height of that point above the invert is interpolated along the segment."""
-    L = reach.resolved_units.length
     high = []
     for k, seg in enumerate(reach.segments):
-        top = getattr(seg.section, "bank_depth", None)
-        if top is None:
+        if not isinstance(seg.section, Surveyed):
             continue
+        top = seg.section.bank_depth
         i0, m = bounds[k]
         xs = x[i0:i0 + m]
         if seg.section_downstream is not None:
@@ -283,9 +285,11 @@ def warn_above_surveys(reach, x, bounds, depth) -> None:
         over = np.nanmax(depth[:, i0:i0 + m] - top, axis=0, initial=-np.inf)
         if np.any(over > 1e-9 * np.max(top)):
             j = int(np.argmax(over))
-            high.append(f"segment {k}: {over[j]:.3g} {L} above it at x = {xs[j]:.1f} {L}")
+            high.append((k, over[j], xs[j]))
     if high:
-        warn(f"section: the water rises above the lower end point of a surveyed section ({'; '.join(high)}), "
+        L = reach.resolved_units.length
+        where = "; ".join(f"segment {k}: {h:.3g} {L} above it at x = {xk:.1f} {L}" for k, h, xk in high)
+        warn(f"section: the water rises above the lower end point of a surveyed section ({where}), "
              "where the survey stops and the section is taken as closed by a vertical wall; extend the survey "
              "over the ground the water reaches")
 
