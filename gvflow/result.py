@@ -198,6 +198,8 @@ def _surcharge(reach, sol: BatchSolution, i: int, x, y, seg):
     notes = []
     for k in (lengths > 0).nonzero()[0]:
         sel = (seg == k) & full
+        if not sel.any():  # full only at the junction station it shares with the segment above
+            sel = full & (x == starts[k])
         h = y[sel] - crown[k]
         xs = x[sel]
         notes.append(note(float(first[k]), "surcharge", k=k, length=lengths[k], x_end=last[k], head=h.max(),

@@ -103,9 +103,10 @@ class Control(SingleValueModel):
         return [[] for _ in range(state.seg.n)]
 
     def check_solved(self, state: EndState, depth: np.ndarray) -> None:
-        """Raise a :class:`~gvflow.errors.ControlError` where the solved depth at the control's end
-        (``depth``, as given to :meth:`notes`) shows it cannot hold the flow; called once the passes have
-        found what governs, before the result is returned. The base class accepts every depth."""
+        """Raise one of gvflow's errors (a :class:`~gvflow.errors.ControlError`, or an
+        :class:`~gvflow.errors.InvalidInputError` for a depth no channel holds) where the solved depth at the
+        control's end (``depth``, as given to :meth:`notes`) shows it cannot hold the flow; called once the
+        passes have found what governs, before the result is returned. The base class accepts every depth."""
 
     def coefficients(self) -> tuple:
         """Empirical coefficients this control's depth rests on, for the result's report.
