@@ -95,6 +95,10 @@ def check_reach(reach) -> None:
             f"datum: bed elevations reach {top:.4g} {L}, beyond ten thousand kilometres from zero, where the "
             "depths would lose their digits: give elevations from a local datum")
     for k, s in enumerate(segments):
+        if s.drop > MAX_DEPTH_M * per_m:
+            raise InvalidInputError(
+                f"segments.{k}.drop: an invert drop of {s.drop:.4g} {L} is more than any channel holds "
+                f"({MAX_DEPTH_M * per_m:.4g} {L}): check the value and its unit")
         if s.length < MIN_SEGMENT_FRACTION * total:
             raise InvalidInputError(
                 f"segments.{k}.length: {s.length:.4g} {L} is too short against the reach length {total:.4g} {L} "

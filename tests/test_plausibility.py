@@ -95,6 +95,15 @@ def test_a_gate_opening_far_too_small_is_refused():
                  downstream=gv.FixedDepth(2.0)).solve()
 
 
+def test_an_invert_drop_deeper_than_any_channel_is_refused():
+    # (a drop of 100 km between two segments was solved, at 1,400 m/s below it)
+    rect = gv.Rectangular(width=3.0)
+    segs = [gv.Segment(length=200.0, slope=0.001, section=rect, roughness=0.015),
+            gv.Segment(length=200.0, slope=0.001, section=rect, roughness=0.015, drop=1e5)]
+    with pytest.raises(gv.InvalidInputError, match=r"^segments.1.drop: an invert drop of 1e\+05 m"):
+        gv.Reach(segments=segs, discharge=6.0, downstream=gv.FixedDepth(2.0)).solve()
+
+
 def test_demo_and_everyday_reaches_are_quiet():
     assert _solve_recording(gv.demo_reach())[1] == []
     assert _solve_recording(gv.demo_reach(), method="ivp")[1] == []
