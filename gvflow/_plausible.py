@@ -32,6 +32,7 @@ from .controls import Culvert, FixedDepth, FixedStage, SluiceGate
 from .errors import InvalidInputError
 from .friction import Manning
 from .sections import Surveyed
+from .uniform import STEEP_SLOPE
 from .units import MAX_DEPTH_M
 
 #: Longest reach accepted [m]: ten thousand kilometres, longer than the longest river
@@ -55,12 +56,6 @@ CRITICAL_SLOPE_RANGE = (1.0e-10, 1.0e3)
 #: Usual range of Manning's n [s/m^(1/3)]: from smooth lined channels (glass, finished metal) to
 #: channels dense with brush and trees (Chow 1959, table 5-6, from memory).
 MANNING_N_USUAL = (0.008, 0.20)
-#: Bed slope above which the small-slope assumptions (depth measured vertically, hydrostatic pressure,
-#: sin θ ≈ tan θ) start to err by more than about half a per cent (cos θ = 0.995 at a slope of 0.1),
-#: and above which the weight of a jump's roller may no longer be neglected (FHWA 2006, HEC-14,
-#: *Hydraulic Design of Energy Dissipators for Culverts and Channels*, FHWA-NHI-06-086, ch. 6,
-#: eq. 6.7 and the text beside it: "may be neglected for slopes less than 10 percent").
-STEEP_SLOPE = 0.1
 #: A depth more than this many times the water-surface width looks like mixed units (common practice).
 DEPTH_TO_WIDTH_SUSPECT = 10.0
 

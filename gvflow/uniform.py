@@ -26,6 +26,7 @@ from ._validate import (
     scalar_or_array,
     single_number,
 )
+from ._warn import warn
 from .errors import ConvergenceError, GVFlowWarning, InvalidInputError, NoSolutionError
 from .friction import Chezy, DarcyWeisbach, Manning, _kfactor, core_channel, section_roughness
 from .units import UnitsLike, resolve_units
@@ -52,6 +53,14 @@ __all__ = [
 CRITICAL_SLOPE_TOLERANCE = 1e-3
 
 _TINY = 1e-12  # smallest depth tried, as a fraction of the reference depth
+
+
+#: Bed slope above which the small-slope assumptions (depth measured vertically, hydrostatic pressure,
+#: sin θ ≈ tan θ) start to err by more than about half a per cent (cos θ = 0.995 at a slope of 0.1),
+#: and above which the weight of a jump's roller may no longer be neglected (FHWA 2006, HEC-14,
+#: *Hydraulic Design of Energy Dissipators for Culverts and Channels*, FHWA-NHI-06-086, ch. 6,
+#: eq. 6.7 and the text beside it: "may be neglected for slopes less than 10 percent").
+STEEP_SLOPE = 0.1
 
 
 def _shrink_lower(fun, lo, *, what: str, increasing: bool = True):
@@ -167,6 +176,9 @@ def normal_depth(section, discharge, slope, roughness=None, units: UnitsLike = "
         )
     _check_status(status, out, "normal depth", f"{section!r}")
     section.warn_above_ends(out, "normal depth")
+    if np.any(sf > STEEP_SLOPE):
+        warn(f"slope: bed slope {float(np.max(sf)):g} is above {STEEP_SLOPE:g}, where the small-slope assumptions of "
+             "uniform flow (depth measured vertically, sin θ = tan θ) start to err")
     return scalar_or_array(out.reshape(shape))
 
 

@@ -104,6 +104,15 @@ def test_an_invert_drop_deeper_than_any_channel_is_refused():
         gv.Reach(segments=segs, discharge=6.0, downstream=gv.FixedDepth(2.0)).solve()
 
 
+def test_normal_depth_on_a_slope_beyond_the_small_slope_assumptions_warns():
+    # a reach warns above a slope of 0.1 (HEC-14, as STEEP_SLOPE says); the public normal depth does too
+    with pytest.warns(gv.GVFlowWarning, match=r"^slope: bed slope 2 is above 0.1"):
+        gv.normal_depth(gv.Rectangular(width=3.0), 5.0, 2.0, 0.015)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        gv.normal_depth(gv.Rectangular(width=3.0), 5.0, 0.05, 0.015)
+
+
 def test_demo_and_everyday_reaches_are_quiet():
     assert _solve_recording(gv.demo_reach())[1] == []
     assert _solve_recording(gv.demo_reach(), method="ivp")[1] == []
