@@ -25,9 +25,12 @@ import math
 import numpy as np
 from scipy import integrate, optimize, special
 
+from ._core.codes import pass_cost
+from ._core.records import fluid
+from ._engine import core
 from ._validate import finite_float, positive_array, positive_float, scalar_or_array
 from .errors import ConvergenceError, InvalidInputError, NoSolutionError
-from .friction import Chezy, DarcyWeisbach, _kfactor, as_roughness
+from .friction import Chezy, DarcyWeisbach, as_roughness, core_channel, section_roughness
 from .sections import WideRectangular
 from .uniform import critical_depth, normal_depth
 from .units import UnitsLike, resolve_units
@@ -44,12 +47,13 @@ __all__ = [
 
 
 class _Integrand:
-    """dx/dy of one flow as a fast scalar function, plus its reference depths."""
+    """dx/dy of one flow as a fast scalar function (the core's :func:`gvflow._core.march.dxdy`, one call
+    per depth), plus its reference depths."""
 
     def __init__(self, section, discharge, slope, roughness, units, alpha):
         self.section = section
         self.u = resolve_units(units)
-        self.rough = as_roughness(roughness)
+        self.rough = section_roughness(section, roughness)
         self.q = float(positive_array(discharge, "discharge"))
         self.s0 = finite_float(slope, "slope")
         self.alpha = positive_float(alpha, "alpha")
@@ -63,15 +67,12 @@ class _Integrand:
         # On a critical slope (yn = yc to round-off) the zeros of numerator and
         # denominator cancel: dx/dy stays finite and normal depth is no pole.
         self.pole = self.yn if abs(self.yn - self.yc) > 1e-9 * self.yc else math.nan
-        self._qa = np.array([self.q])
+        self._ch, self._fl = core_channel(section, self.rough), fluid(self.u)
+        self._cost = pass_cost(self._ch.kind, self._ch.par)
 
     def __call__(self, y: float) -> float:
-        yy = np.array([min(y, self.section.max_depth)])
-        a, _, t = self.section._geometry(yy)[:3]
-        k = _kfactor(self.section, yy, self.rough, self.u, self._qa)
-        num = self.s0 - (self.q / k[0]) ** 2
-        den = 1.0 - self.alpha * self.q * self.q * t[0] / (self.u.g * a[0] ** 3)
-        return den / num
+        return core("march", self._cost).dxdy(self._ch, self._fl, self.q, self.s0, self.alpha,
+                                              min(y, self.section.max_depth))
 
     def check_range(self, y1: float, y2: float):
         lo, hi = min(y1, y2), max(y1, y2)
@@ -126,8 +127,9 @@ def profile_length(section, discharge, slope, roughness, depth_from, depth_to, u
         Discharge Q [length³/s].
     slope : float
         Bed slope S0 [-] (any sign).
-    roughness : float, Manning, Chezy or DarcyWeisbach
-        Resistance law; a float is Manning's n.
+    roughness : float, Manning, Chezy, DarcyWeisbach or None
+        Resistance law; a float is Manning's n. None for a surveyed section,
+        which carries its own.
     depth_from, depth_to : float or ndarray
         Depths at the two ends [length], both in the same zone (neither normal
         nor critical depth strictly between them). Critical depth may be an

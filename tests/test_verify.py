@@ -167,3 +167,33 @@ def test_depth_far_along_a_backwater_is_normal_depth(shape, start):
     section = gv.Rectangular(width=2.0) if shape == "rectangle" else gv.Circular(diameter=1.0)
     ref = solve_ivp(rhs, [0.0, -5000.0], [start], rtol=1e-12, atol=1e-14, method="LSODA").y[0, -1]
     assert gv.depth_at_distance(section, q, s0, n, start, -5000.0) == pytest.approx(ref, rel=1e-7)
+
+
+def test_profile_length_in_a_compound_section_against_quadrature():
+    # A 10 m main channel 2 m deep (n 0.03) between 100 m floodplains (n 0.05) with vertical outer walls,
+    # above bankfull: dx/dy = (dE/dy)/(S0 - Sf) with E = y + alpha Q²/(2 g A²), alpha = sum(K_i³/A_i²)/(K³/A²)
+    # from the rectangles' exact areas and Manning zone conveyances (Chow 1959, §2-7 and eq. 9-8; dE/dy by
+    # central differences), integrated by scipy's quad. profile_length takes a surveyed section's own
+    # roughness (roughness=None), as the other public functions do.
+    from scipy.integrate import quad
+
+    q, s0 = 60.0, 0.0005
+
+    def energy_k(y):
+        h = y - 2.0
+        zones = [(a, a ** (5 / 3) / (n * p ** (2 / 3))) for a, p, n in
+                 ((10.0 * y, 14.0, 0.03), (100.0 * h, 100.0 + h, 0.05), (100.0 * h, 100.0 + h, 0.05))]
+        a, k = sum(z[0] for z in zones), sum(z[1] for z in zones)
+        alpha = sum(ki ** 3 / ai ** 2 for ai, ki in zones) / (k ** 3 / a ** 2)
+        return y + alpha * q * q / (2 * gv.SI.g * a * a), k
+
+    def dxdy(y):
+        h = 1e-6 * y
+        dedy = (energy_k(y + h)[0] - energy_k(y - h)[0]) / (2 * h)
+        return dedy / (s0 - (q / energy_k(y)[1]) ** 2)
+
+    ref = quad(dxdy, 3.0, 2.7, epsabs=0.0, epsrel=1e-11)[0]
+    section = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
+                          roughness=[0.05, 0.03, 0.05], zone_edges=[0, 10])
+    with pytest.warns(gv.GVFlowWarning, match="2 critical depths"):
+        assert gv.profile_length(section, q, s0, None, 3.0, 2.7) == pytest.approx(ref, rel=1e-8)
