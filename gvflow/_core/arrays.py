@@ -19,6 +19,7 @@ from .flow import (
     specific_force,
 )
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
+from .march import gvf_terms
 from .resistance import _zone_k, colebrook, conveyance, froude_squared, velocity_coefficients
 
 
@@ -65,6 +66,13 @@ def slope_class_many(slope, yn, yc, tol, out):
     """:func:`gvflow._core.flow.slope_class_code` of each element."""
     for j in range(slope.size):
         out[j] = slope_class_code(slope[j], yn[j], yc[j], tol)
+
+
+@kernel
+def gvf_terms_many(ch, fl, q, s0, alpha, y, num, den):
+    """:func:`gvflow._core.march.gvf_terms` (S0 - Sf and 1 - Fr²) of each element."""
+    for j in range(q.size):
+        num[j], den[j] = gvf_terms(ch, fl, q[j], s0[j], alpha, y[j])
 
 
 @kernel

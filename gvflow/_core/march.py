@@ -241,8 +241,8 @@ _GL_W = np.array([0.1713244923791704, 0.3607615730481386, 0.4679139345726910,
 @scalar_kernel
 def gvf_terms(ch, fl, q, s0, alpha, y):
     """Numerator and denominator of the GVF equation dy/dx = (S0 - Sf)/(1 - alpha Q² T/(g A³)) at depth y
-    (Chow 1959, *Open-Channel Hydraulics*, eq. 9-13, x downstream): the compiled mirror of
-    :func:`gvflow.profiles.equation.gvf_terms`, for the marchers."""
+    (Chow 1959, *Open-Channel Hydraulics*, eq. 9-13, x downstream), with the compound Froude number where
+    alpha varies with depth; the marchers' and :func:`gvflow.profiles.equation.gvf_terms`'s one home."""
     a, t, m, kk, dlnk, al, be, fr2 = hydraulics(ch, fl, q, y, alpha)
     return s0 - slope_of(q, kk), 1.0 - fr2
 

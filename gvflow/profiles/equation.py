@@ -16,8 +16,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from .._validate import finite_array, positive_array, positive_float, scalar_or_array
-from ..friction import _kfactor, as_roughness
+from .._core.codes import pass_cost
+from .._core.records import fluid
+from .._engine import core
+from .._validate import broadcast, finite_array, positive_array, positive_float, scalar_or_array
+from ..friction import core_channel, section_roughness
 from ..units import UnitsLike, resolve_units
 
 __all__ = ["gvf_slope", "gvf_inverse_slope", "gvf_terms"]
@@ -34,8 +37,9 @@ def gvf_terms(section, discharge, slope, roughness, depth, units: UnitsLike = "S
         Discharge Q [length³/s].
     slope : float or ndarray
         Bed slope S0 [-], positive falling downstream (zero or negative allowed).
-    roughness : float, Manning, Chezy or DarcyWeisbach
-        Resistance law; a float is Manning's n.
+    roughness : float, Manning, Chezy, DarcyWeisbach or None
+        Resistance law; a float is Manning's n. None for a surveyed section,
+        which carries its own.
     depth : float or ndarray
         Flow depth y [length].
     units : "SI", "US" or Units
@@ -46,7 +50,9 @@ def gvf_terms(section, discharge, slope, roughness, depth, units: UnitsLike = "S
     Returns
     -------
     numerator, denominator : float or ndarray
-        S0 - Sf [-] and 1 - alpha Fr² [-], broadcast over the inputs.
+        S0 - Sf [-] and 1 - alpha Fr² [-], broadcast over the inputs (a
+        compound section's alpha varies with depth: the denominator is then
+        1 - Fr² of its compound Froude number, 1 - dE/dy).
 
     Notes
     -----
@@ -60,17 +66,18 @@ def gvf_terms(section, discharge, slope, roughness, depth, units: UnitsLike = "S
     (0.000592, 0.9161)
     """
     u = resolve_units(units)
-    rough = as_roughness(roughness)
+    rough = section_roughness(section, roughness)
     a_ = positive_float(alpha, "alpha")
     q = positive_array(discharge, "discharge")
     s0 = finite_array(slope, "slope")
     y = section._depth(depth)
-    q, s0, y = np.broadcast_arrays(q, s0, y)
-    a, _, t = section._geometry(y)[:3]
-    k = _kfactor(section, y, rough, u, q)
-    num = s0 - (q / k) ** 2
-    den = 1.0 - a_ * q * q * t / (u.g * a ** 3)
-    return scalar_or_array(np.asarray(num)), scalar_or_array(np.asarray(den))
+    q, s0, y = broadcast(discharge=q, slope=s0, depth=y)
+    flat = [np.ascontiguousarray(v, dtype=float).ravel() for v in (q, s0, y)]
+    num, den = np.empty(flat[0].size), np.empty(flat[0].size)
+    ch = core_channel(section, rough)
+    core("arrays", num.size * pass_cost(ch.kind, ch.par)).gvf_terms_many(ch, fluid(u), *flat[:2], a_, flat[2], num,
+                                                                          den)
+    return scalar_or_array(num.reshape(y.shape)), scalar_or_array(den.reshape(y.shape))
 
 
 def _ratio(top, bottom):
