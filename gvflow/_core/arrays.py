@@ -20,7 +20,15 @@ from .flow import (
 )
 from .geometry import SURVEYED, geometry, zone_count, zone_geometry
 from .march import gvf_terms
-from .resistance import _zone_k, colebrook, conveyance, froude_squared, velocity_coefficients
+from .resistance import (
+    _zone_k,
+    colebrook,
+    conveyance,
+    friction_slope,
+    froude_squared,
+    sf_average,
+    velocity_coefficients,
+)
 
 
 @kernel
@@ -73,6 +81,21 @@ def gvf_terms_many(ch, fl, q, s0, alpha, y, num, den):
     """:func:`gvflow._core.march.gvf_terms` (S0 - Sf and 1 - Fr²) of each element."""
     for j in range(q.size):
         num[j], den[j] = gvf_terms(ch, fl, q[j], s0[j], alpha, y[j])
+
+
+@kernel
+def energy_friction_many(ch, fl, q, y, alpha, energy, sf):
+    """Specific energy and friction slope at each depth y[j] for one discharge q."""
+    for j in range(y.size):
+        energy[j] = specific_energy(ch, fl, q, y[j], alpha)
+        sf[j] = friction_slope(ch, fl, q, y[j])
+
+
+@kernel
+def sf_average_many(avg, s1, s2, out):
+    """The mean friction slope (:func:`gvflow._core.resistance.sf_average`, code ``avg``) of each pair."""
+    for j in range(s1.size):
+        out[j] = sf_average(avg, s1[j], s2[j])[0]
 
 
 @kernel

@@ -19,35 +19,22 @@ import math
 import numpy as np
 from scipy import optimize
 
+from .._core.codes import AVERAGES, pass_cost
+from .._core.records import fluid
+from .._engine import core
 from .._validate import finite_float, positive_array, positive_float
 from ..errors import ConvergenceError, InvalidInputError, NoSolutionError
-from ..friction import _kfactor, as_roughness
+from ..friction import core_channel, section_roughness
 from ..uniform import critical_depth, normal_depth
 from ..units import UnitsLike, resolve_units
 
 __all__ = ["direct_step", "FRICTION_AVERAGES"]
 
 
-def _arithmetic(s1, s2):
-    return 0.5 * (s1 + s2)
-
-
-def _geometric(s1, s2):
-    return np.sqrt(s1 * s2)
-
-
-def _harmonic(s1, s2):
-    return 2.0 * s1 * s2 / (s1 + s2)
-
-
-def _conveyance(s1, s2):
-    return 4.0 / (1.0 / np.sqrt(s1) + 1.0 / np.sqrt(s2)) ** 2
-
-
-#: Mean friction slope over a step, by name: arithmetic (S1 + S2)/2, geometric
-#: sqrt(S1 S2), harmonic 2 S1 S2/(S1 + S2), conveyance (2Q/(K1 + K2))².
-FRICTION_AVERAGES = {"arithmetic": _arithmetic, "geometric": _geometric, "harmonic": _harmonic,
-                     "conveyance": _conveyance}
+#: The mean friction slopes over a step, by name (the core's averages,
+#: :func:`gvflow._core.resistance.sf_average`): arithmetic (S1 + S2)/2, geometric sqrt(S1 S2), harmonic
+#: 2 S1 S2/(S1 + S2), conveyance (2Q/(K1 + K2))².
+FRICTION_AVERAGES = AVERAGES
 
 
 class _Flow:
@@ -60,21 +47,27 @@ class _Flow:
         self.section = section
         self.q = float(positive_array(discharge, "discharge"))
         self.s0 = finite_float(slope, "slope")
-        self.rough = as_roughness(roughness)
+        self.rough = section_roughness(section, roughness)
         self.u = resolve_units(units)
         self.alpha = positive_float(alpha, "alpha")
         self.avg = FRICTION_AVERAGES[friction_average]
-        self._qa = np.array([self.q])
+        self._ch, self._fl = core_channel(section, self.rough), fluid(self.u)
 
     def energy_friction(self, y):
-        a = self.section._geometry(y)[0]
-        k = _kfactor(self.section, y, self.rough, self.u, self._qa)
-        return y + self.alpha * self.q * self.q / (2.0 * self.u.g * a * a), (self.q / k) ** 2
+        """Specific energy and friction slope at the depths ``y`` (the core's relations)."""
+        y = np.ascontiguousarray(y, dtype=float)
+        e, sf = np.empty(y.size), np.empty(y.size)
+        core("arrays", y.size * pass_cost(self._ch.kind, self._ch.par)).energy_friction_many(
+            self._ch, self._fl, self.q, y, self.alpha, e, sf)
+        return e, sf
 
     def steps(self, y):
         """Signed length of each depth step of the sequence ``y`` (x downstream)."""
         e, sf = self.energy_friction(y)
-        den = self.s0 - self.avg(sf[:-1], sf[1:])
+        mean = np.empty(sf.size - 1)
+        core("arrays", sf.size).sf_average_many(self.avg, np.ascontiguousarray(sf[:-1]), np.ascontiguousarray(sf[1:]),
+                                                mean)
+        den = self.s0 - mean
         if np.any(den == 0):
             raise InvalidInputError("a depth step has a mean friction slope equal to the bed slope: the "
                                     "depths straddle normal depth; keep them on one side of it")
