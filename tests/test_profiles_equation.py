@@ -4,6 +4,7 @@ import math
 
 import numpy as np
 import pytest
+from hand_sections import compound_energy_and_conveyance
 
 import gvflow as gv
 from gvflow.profiles import PROFILE_SHAPES
@@ -86,22 +87,15 @@ def test_bad_input_raises():
 
 
 def test_gvf_terms_of_a_compound_section_use_its_compound_froude_number():
-    # A 10 m main channel 2 m deep (n 0.03) between 100 m floodplains (n 0.05), above bankfull: S0 - Sf with
-    # the Manning zone conveyances summed, and 1 - Fr² = dE/dy with alpha = sum(K_i³/A_i²)/(K³/A²) varying
-    # with depth (Chow 1959, §2-7; dE/dy by central differences), all from the rectangles' exact areas.
+    # The compound section of tests/hand_sections.py above bankfull: S0 - Sf with the Manning zone
+    # conveyances summed, and 1 - Fr² = dE/dy with alpha varying with depth (Chow 1959, §2-7; dE/dy by
+    # central differences), all from the rectangles' exact areas.
     q, s0, y = 60.0, 0.0005, 2.6
-
-    def energy_k(d):
-        h = d - 2.0
-        zones = [(a, a ** (5 / 3) / (n * p ** (2 / 3))) for a, p, n in
-                 ((10.0 * d, 14.0, 0.03), (100.0 * h, 100.0 + h, 0.05), (100.0 * h, 100.0 + h, 0.05))]
-        a, k = sum(z[0] for z in zones), sum(z[1] for z in zones)
-        alpha = sum(ki ** 3 / ai ** 2 for ai, ki in zones) / (k ** 3 / a ** 2)
-        return d + alpha * q * q / (2 * gv.SI.g * a * a), k
 
     section = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
                           roughness=[0.05, 0.03, 0.05], zone_edges=[0, 10])
     num, den = gv.gvf_terms(section, q, s0, None, y)
-    assert num == pytest.approx(s0 - (q / energy_k(y)[1]) ** 2, rel=1e-12)
+    energy = compound_energy_and_conveyance
+    assert num == pytest.approx(s0 - (q / energy(y, q)[1]) ** 2, rel=1e-12)
     h = 1e-6
-    assert den == pytest.approx((energy_k(y + h)[0] - energy_k(y - h)[0]) / (2 * h), rel=1e-7)
+    assert den == pytest.approx((energy(y + h, q)[0] - energy(y - h, q)[0]) / (2 * h), rel=1e-7)

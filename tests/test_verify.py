@@ -4,6 +4,7 @@ import math
 
 import numpy as np
 import pytest
+from hand_sections import compound_energy_and_conveyance
 
 import gvflow as gv
 from gvflow.verify import bresse_function
@@ -170,27 +171,18 @@ def test_depth_far_along_a_backwater_is_normal_depth(shape, start):
 
 
 def test_profile_length_in_a_compound_section_against_quadrature():
-    # A 10 m main channel 2 m deep (n 0.03) between 100 m floodplains (n 0.05) with vertical outer walls,
-    # above bankfull: dx/dy = (dE/dy)/(S0 - Sf) with E = y + alpha Q²/(2 g A²), alpha = sum(K_i³/A_i²)/(K³/A²)
-    # from the rectangles' exact areas and Manning zone conveyances (Chow 1959, §2-7 and eq. 9-8; dE/dy by
-    # central differences), integrated by scipy's quad. profile_length takes a surveyed section's own
-    # roughness (roughness=None), as the other public functions do.
+    # The compound section of tests/hand_sections.py above bankfull: dx/dy = (dE/dy)/(S0 - Sf) with its hand
+    # E and K (Chow 1959, eq. 9-8; dE/dy by central differences), integrated by scipy's quad. profile_length
+    # takes a surveyed section's own roughness (roughness=None), as the other public functions do.
     from scipy.integrate import quad
 
     q, s0 = 60.0, 0.0005
 
-    def energy_k(y):
-        h = y - 2.0
-        zones = [(a, a ** (5 / 3) / (n * p ** (2 / 3))) for a, p, n in
-                 ((10.0 * y, 14.0, 0.03), (100.0 * h, 100.0 + h, 0.05), (100.0 * h, 100.0 + h, 0.05))]
-        a, k = sum(z[0] for z in zones), sum(z[1] for z in zones)
-        alpha = sum(ki ** 3 / ai ** 2 for ai, ki in zones) / (k ** 3 / a ** 2)
-        return y + alpha * q * q / (2 * gv.SI.g * a * a), k
-
     def dxdy(y):
         h = 1e-6 * y
-        dedy = (energy_k(y + h)[0] - energy_k(y - h)[0]) / (2 * h)
-        return dedy / (s0 - (q / energy_k(y)[1]) ** 2)
+        energy = compound_energy_and_conveyance
+        dedy = (energy(y + h, q)[0] - energy(y - h, q)[0]) / (2 * h)
+        return dedy / (s0 - (q / energy(y, q)[1]) ** 2)
 
     ref = quad(dxdy, 3.0, 2.7, epsabs=0.0, epsrel=1e-11)[0]
     section = gv.Surveyed(offset=[-100, -100, 0, 0, 10, 10, 110, 110], elevation=[5, 2, 2, 0, 0, 2, 2, 5],
