@@ -53,7 +53,7 @@ def barrel_critical_depth(barrel, q, u):
                                                          np.zeros(flat.shape, np.int64))
     if np.any(status == NOT_CONVERGED):
         raise ConvergenceError("critical depth in the barrel did not converge", iterations=200)
-    out = np.where(status == SOLVED, out, float(barrel.height))
+    out = np.where(status == SOLVED, np.minimum(out, float(barrel.height)), float(barrel.height))
     return out.reshape(shape)
 
 

@@ -130,11 +130,13 @@ class _Barrel(FrozenModel):
     def height(self) -> float:  # pragma: no cover - abstract
         raise NotImplementedError
 
-    def _partial(self, h):  # pragma: no cover - abstract
-        raise NotImplementedError
+    def _partial(self, h):
+        """Flow area and wetted perimeter of the partly full barrel at depths h (the core's geometry)."""
+        return barrel_partial_geometry(self, h)
 
-    def _critical_depth(self, q, u):  # pragma: no cover - abstract
-        raise NotImplementedError
+    def _critical_depth(self, q, u):
+        """Critical depth per barrel for discharges q, at most the rise (the core's critical depth)."""
+        return barrel_critical_depth(self, q, u)
 
     @property
     def full_area(self) -> float:  # pragma: no cover - abstract
@@ -200,11 +202,6 @@ class CircularBarrel(_Barrel):
         """Full barrel perimeter [length]."""
         return math.pi * self.diameter
 
-    def _partial(self, h):
-        return barrel_partial_geometry(self, h)
-
-    def _critical_depth(self, q, u):
-        return barrel_critical_depth(self, q, u)
 
 
 class BoxBarrel(_Barrel):
@@ -247,11 +244,6 @@ class BoxBarrel(_Barrel):
         """Full barrel perimeter [length]."""
         return 2.0 * (self.span + self.rise)
 
-    def _partial(self, h):
-        return self.span * h, self.span + 2.0 * h
-
-    def _critical_depth(self, q, u):
-        return np.minimum(np.cbrt((q / self.span) ** 2 / u.g), self.rise)
 
 
 AnyBarrel = Annotated[CircularBarrel | BoxBarrel, Field(discriminator="shape")]
